@@ -1,0 +1,53 @@
+"""Physical constants and unit conversions (SI inside the code, always).
+
+Every group names its source. Convenience units (Earth masses, GPa, Gyr) are
+converted here and only at the edges of the program (config, CLI, plots).
+"""
+
+from __future__ import annotations
+
+# --- Fundamental constants -------------------------------------------------
+#: Newtonian constant of gravitation [m^3 kg^-1 s^-2]; CODATA 2018
+#: (Tiesinga et al. 2021, Rev. Mod. Phys. 93:025010).
+G = 6.67430e-11
+#: Stefan-Boltzmann constant [W m^-2 K^-4]; CODATA 2018 (exact from h, c, k).
+STEFAN_BOLTZMANN = 5.670374419e-8
+#: Molar gas constant [J mol^-1 K^-1]; CODATA 2018 (exact, N_A k).
+GAS_CONSTANT = 8.314462618
+
+# --- Earth reference values ------------------------------------------------
+#: Earth mass [kg]: IAU 2015 Resolution B3 nominal GM_E = 3.986004e14 m^3 s^-2
+#: divided by the CODATA 2018 G (Prsa et al. 2016, AJ 152:41).
+EARTH_MASS = 3.986004e14 / G  # = 5.9722e24 kg
+#: Earth mean radius [m] (Moritz 2000, Geodetic Reference System 1980 mean radius R_1).
+EARTH_RADIUS = 6.371e6
+
+# --- Time -------------------------------------------------------------------
+#: Julian year [s] (IAU: 365.25 d of 86400 s).
+YEAR = 365.25 * 86400.0
+MYR = 1.0e6 * YEAR
+GYR = 1.0e9 * YEAR
+
+# --- Pressure ---------------------------------------------------------------
+GPA = 1.0e9
+TPA = 1.0e12
+BAR = 1.0e5
+
+# --- Molar masses [kg/mol] (IUPAC 2013 standard atomic weights) -------------
+MOLAR_MASS_MG = 24.305e-3
+MOLAR_MASS_FE = 55.845e-3
+MOLAR_MASS_SI = 28.0855e-3
+MOLAR_MASS_O = 15.999e-3
+
+#: cm^3/mol to m^3/mol
+CM3_PER_MOL = 1.0e-6
+
+
+def earth_masses_to_kg(mass_earth: float) -> float:
+    """Convert a mass in Earth masses to kg (IAU 2015 nominal Earth mass)."""
+    return float(mass_earth) * EARTH_MASS
+
+
+def kg_to_earth_masses(mass_kg: float) -> float:
+    """Convert a mass in kg to Earth masses."""
+    return float(mass_kg) / EARTH_MASS
