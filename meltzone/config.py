@@ -128,10 +128,12 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
         "co2_inventory_kg": Key(0.0, "kg", "total CO2 of mantle + atmosphere (grey atmosphere)", lo=0.0),
     },
     "initial": {
-        "upper_temperature_k": Key(4000.0, "K", "initial upper-mantle potential temperature", lo=500.0,
-                                   hi=20000.0),
-        "core_temperature_k": Key(6000.0, "K", "initial temperature at the top of the core", lo=500.0,
-                                  hi=30000.0),
+        "upper_temperature_k": Key(0.0, "K", "initial upper-mantle potential temperature; 0 = fully molten "
+                                   "start (50 K above the liquidus at every depth)", lo=0.0, hi=20000.0),
+        "core_temperature_k": Key(0.0, "K", "initial temperature at the top of the core; 0 = the mantle adiabat "
+                                  "at the CMB plus initial_cmb_jump_k", lo=0.0, hi=30000.0),
+        "initial_cmb_jump_k": Key(200.0, "K", "initial excess of the core over the mantle adiabat at the CMB "
+                                  "(used when core_temperature_k = 0)", lo=0.0, hi=10000.0),
     },
     "run": {
         "end_time_gyr": Key(10.0, "Gyr", "model time at which the run stops", lo=0.0, lo_open=True, hi=100.0),
@@ -139,6 +141,7 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
         "max_temperature_step_k": Key(10.0, "K", "largest change of either temperature in one step",
                                       lo=0.01, hi=500.0),
         "max_steps": Key(200000, "1", "upper bound on accepted steps", lo=100, hi=10000000),
+        "max_step_myr": Key(20.0, "Myr", "largest time step", lo=1e-6, hi=1000.0),
     },
 })
 

@@ -1,0 +1,302 @@
+"""Melt layers through time: identity by overlap, events with refined times, and the run's summary.
+
+Input: the per-step melt intervals the kernel found (contiguous runs of mantle
+nodes with melt fraction phi > 0; :mod:`meltzone.evolution.kernel`), the
+history and the interior grid.
+
+* Identity: a layer at step s continues the layer(s) of step s-1 whose node
+  ranges overlap it. One-to-one overlap keeps the id; when one layer overlaps
+  several at the next step it *split* (the largest by melt mass keeps the id);
+  when several overlap one they *merged* (the id of the largest survives).
+  An interval with no predecessor *formed*; a layer with no successor *froze*.
+* Events: formed, froze, split, merged, reached-surface, reached-cmb (per
+  layer), and the regime events magma-ocean-ended (melt fraction at the top of
+  the mantle fell below the rheological transition), stagnant-lid-formed,
+  inner-core-nucleated and last-melt.
+* Event times of formed, froze, last-melt, magma-ocean-ended and
+  inner-core-nucleated are refined inside their step: the state is
+  interpolated by cubic Hermite polynomials (values and rates at both ends),
+  T(r) and phi(r) are rebuilt from it, and the crossing is found with
+  scipy.optimize.brentq to ``EVENT_TIME_TOLERANCE`` of the step length.
+  The other events are given at the end of the step that shows them.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from scipy.optimize import brentq
+
+from .constants import YEAR
+
+#: Relative tolerance (of the step length) to which event times are refined.
+EVENT_TIME_TOLERANCE = 1e-6
+
+EVENT_KINDS = ("formed", "froze", "split", "merged", "reached-surface", "reached-cmb", "magma-ocean-ended",
+               "stagnant-lid-formed", "inner-core-nucleated", "last-melt")
+
+
+def _hermite(t, t0, t1, y0, y1, d0, d1):
+    h = t1 - t0
+    s = (t - t0) / h
+    h00 = 2 * s**3 - 3 * s**2 + 1
+    h10 = s**3 - 2 * s**2 + s
+    h01 = -2 * s**3 + 3 * s**2
+    h11 = s**3 - s**2
+    return h00 * y0 + h10 * h * d0 + h01 * y1 + h11 * h * d1
+
+
+class _Interp:
+    """State between two history steps (cubic Hermite on T_u, T_c and the lid)."""
+
+    def __init__(self, result):
+        self.r = result
+        h = result.history
+        self.t = h["time"]
+        self.cols = [(h["upper_temperature"], h["upper_temperature_rate"]),
+                     (h["core_temperature"], h["core_temperature_rate"]),
+                     (h["lid_thickness"], h["lid_rate"])]
+        self.stagnant = result.spec.convection.regime == "stagnant-lid"
+
+    def state(self, step, t):
+        from .evolution import kernel as k
+
+        t0, t1 = self.t[step - 1], self.t[step]
+        y = np.zeros(k.N_Y)
+        for j, (v, d) in zip((k.Y_TU, k.Y_TC, k.Y_LID), self.cols):
+            y[j] = _hermite(t, t0, t1, v[step - 1], v[step], d[step - 1], d[step])
+        if not self.stagnant:
+            y[k.Y_LID] = 0.0
+        return y
+
+    def profile(self, step, t):
+        return self.r.profile_at_state(t, self.state(step, t))
+
+
+def _refine(fn, t0, t1):
+    """Root of fn in [t0, t1] (fn(t0) and fn(t1) of opposite sign), else the end of the step."""
+    f0, f1 = fn(t0), fn(t1)
+    if not (np.isfinite(f0) and np.isfinite(f1)) or f0 == 0.0 or f0 * f1 > 0.0:
+        return t1
+    return brentq(fn, t0, t1, xtol=max(EVENT_TIME_TOLERANCE * (t1 - t0), 1e-3), rtol=1e-15)
+
+
+def track(result):
+    """Layer table rows and the event list of a Result.
+
+    Returns ``(rows, events)``: ``rows`` a dict of arrays (one entry per layer per step) and
+    ``events`` a list of dicts {time, kind, layer, depth, pressure} in SI units (layer -1 for
+    regime events), sorted by time.
+    """
+    it = result.interior
+    ms = it.mantle
+    r_nodes = it.r[ms]
+    p_nodes = it.P[ms]
+    n_nodes = len(r_nodes)
+    radius = it.radius
+    h = result.history
+    t = h["time"]
+    iv = result.intervals
+    interp = _Interp(result)
+    grid = result.kernel_inputs[0]
+    from .evolution import kernel as k
+
+    tsol = grid[k.G_TSOL]
+
+    steps = iv["step"]
+    order = np.argsort(steps, kind="stable")
+    by_step: dict[int, list[int]] = {}
+    for idx in order:
+        by_step.setdefault(int(steps[idx]), []).append(int(idx))
+
+    rows = {key: [] for key in ("layer", "step", "time", "top_radius", "bottom_radius", "top_depth",
+                                "bottom_depth", "top_pressure", "bottom_pressure", "max_melt_fraction",
+                                "mean_melt_fraction", "melt_mass", "full_top_depth", "full_bottom_depth")}
+    events = []
+    next_id = 0
+    prev: list[tuple[int, int, int, float]] = []  # (layer id, bottom node, top node, mass)
+    touched_surface: set[int] = set()
+    touched_cmb: set[int] = set()
+
+    def depth_of(node):
+        return float(radius - r_nodes[node])
+
+    def add_event(time, kind, layer, node):
+        events.append({"time": float(time), "kind": kind, "layer": int(layer),
+                       "depth": depth_of(node) if node is not None else float("nan"),
+                       "pressure": float(p_nodes[node]) if node is not None else float("nan")})
+
+    def excess(step, tt, lo, hi):
+        temp, _ = interp.profile(step, tt)
+        return float(np.max(temp[lo:hi + 1] - tsol[lo:hi + 1]))
+
+    for s in range(len(t)):
+        cur = []
+        for idx in by_step.get(s, []):
+            cur.append((int(iv["bottom_node"][idx]), int(iv["top_node"][idx]), float(iv["melt_mass"][idx]), idx))
+        # overlaps (node ranges, with a one-node tolerance so that neighbours count as touching)
+        links_cur = [[j for j, p in enumerate(prev) if p[1] <= c[1] + 1 and c[0] <= p[2] + 1] for c in cur]
+        links_prev = [[i for i, lc in enumerate(links_cur) if j in lc] for j in range(len(prev))]
+        ids = [-1] * len(cur)
+        # merges first: a current interval fed by several previous layers keeps the largest id
+        for i, lc in enumerate(links_cur):
+            if len(lc) >= 1:
+                best = max(lc, key=lambda j: prev[j][3])
+                ids[i] = prev[best][0]
+                if len(lc) > 1:
+                    for j in lc:
+                        if j != best:
+                            add_event(t[s], "merged", prev[j][0], cur[i][1])
+        # splits: a previous layer feeding several current intervals keeps its id on the largest
+        for j, lp in enumerate(links_prev):
+            if len(lp) > 1:
+                keep = max(lp, key=lambda i: cur[i][2])
+                for i in lp:
+                    if i != keep and ids[i] == prev[j][0]:
+                        ids[i] = next_id
+                        next_id += 1
+                        add_event(t[s], "split", prev[j][0], cur[i][1])
+        for i, c in enumerate(cur):
+            if ids[i] < 0:
+                ids[i] = next_id
+                next_id += 1
+                when = t[s]
+                if s > 0:
+                    lo, hi = max(c[0] - 1, 0), min(c[1] + 1, n_nodes - 1)
+                    when = _refine(lambda tt: excess(s, tt, lo, hi), t[s - 1], t[s])
+                add_event(when, "formed", ids[i], c[1])
+        for j, lp in enumerate(links_prev):
+            if not lp:
+                b, tp = prev[j][1], prev[j][2]
+                lo, hi = max(b - 1, 0), min(tp + 1, n_nodes - 1)
+                when = _refine(lambda tt: excess(s, tt, lo, hi), t[s - 1], t[s])
+                add_event(when, "froze", prev[j][0], tp)
+        for i, c in enumerate(cur):
+            lid = ids[i]
+            if c[1] == n_nodes - 1 and lid not in touched_surface:
+                touched_surface.add(lid)
+                add_event(t[s], "reached-surface", lid, c[1])
+            if c[0] == 0 and lid not in touched_cmb:
+                touched_cmb.add(lid)
+                add_event(t[s], "reached-cmb", lid, c[0])
+            idx = c[3]
+            ft, fb = int(iv["full_top_node"][idx]), int(iv["full_bottom_node"][idx])
+            rows["layer"].append(lid)
+            rows["step"].append(s)
+            rows["time"].append(t[s])
+            rows["top_radius"].append(r_nodes[c[1]])
+            rows["bottom_radius"].append(r_nodes[c[0]])
+            rows["top_depth"].append(depth_of(c[1]))
+            rows["bottom_depth"].append(depth_of(c[0]))
+            rows["top_pressure"].append(p_nodes[c[1]])
+            rows["bottom_pressure"].append(p_nodes[c[0]])
+            rows["max_melt_fraction"].append(iv["max_melt_fraction"][idx])
+            rows["mean_melt_fraction"].append(iv["mean_melt_fraction"][idx])
+            rows["melt_mass"].append(c[2])
+            rows["full_top_depth"].append(depth_of(ft) if ft >= 0 else math.nan)
+            rows["full_bottom_depth"].append(depth_of(fb) if fb >= 0 else math.nan)
+        prev = [(ids[i], c[0], c[1], c[2]) for i, c in enumerate(cur)]
+
+    _regime_events(result, interp, add_event, n_nodes)
+    events.sort(key=lambda e: (e["time"], EVENT_KINDS.index(e["kind"])))
+    table = {key: np.asarray(v, dtype=np.int64 if key in ("layer", "step") else np.float64)
+             for key, v in rows.items()}
+    return table, events
+
+
+def _regime_events(result, interp, add_event, n_nodes):
+    from .evolution import kernel as k
+
+    h = result.history
+    t = h["time"]
+    regime = h["regime"]
+    par = result.kernel_inputs[3]
+    phi_c = par[k.P_PHI_C]
+    top = n_nodes - 1
+    for s in range(1, len(t)):
+        if regime[s - 1] == 0 and regime[s] != 0:
+            when = _refine(lambda tt: interp.profile(s, tt)[1][top] - phi_c, t[s - 1], t[s])
+            add_event(when, "magma-ocean-ended", -1, top)
+        if regime[s] == 2 and regime[s - 1] != 2:
+            add_event(t[s], "stagnant-lid-formed", -1, top)
+    ric = h["inner_core_radius"]
+    if ric[0] <= 0.0 and np.any(ric > 0.0):
+        s = int(np.argmax(ric > 0.0))
+        core = result.kernel_inputs[1]
+
+        def centre(tt):
+            tc = interp.state(s, tt)[k.Y_TC]
+            return core[k.C_TMELT, 0] - tc * core[k.C_F, 0]
+
+        add_event(_refine(centre, t[s - 1], t[s]), "inner-core-nucleated", -1, None)
+    melt = h["melt_mass"]
+    if melt[-1] <= 0.0 and np.any(melt > 0.0):
+        s = int(len(melt) - np.argmax(melt[::-1] > 0.0))  # first step of the final melt-free stretch
+        grid = result.kernel_inputs[0]
+
+        def most(tt):
+            temp, _ = interp.profile(s, tt)
+            return float(np.max(temp - grid[k.G_TSOL]))
+
+        add_event(_refine(most, t[s - 1], t[s]), "last-melt", -1, None)
+
+
+def summarize(result, table=None, events=None) -> dict:
+    """JSON-ready summary of a run (SI, with times in years where the key says ``_yr``)."""
+    if table is None or events is None:
+        table, events = track(result)
+    h = result.history
+    it = result.interior
+    ends = [e["time"] for e in events if e["kind"] == "magma-ocean-ended"]
+    mo_end = ends[0] / YEAR if ends else (0.0 if h["regime"][0] != 0 else None)
+    last = [e["time"] for e in events if e["kind"] == "last-melt"]
+    last_melt = last[-1] / YEAR if last else (None if h["melt_mass"][-1] > 0 else 0.0)
+    basal = basal_layer(result, table, events)
+    n_layers = int(len(np.unique(table["layer"]))) if len(table["layer"]) else 0
+    return {
+        "planet": result.spec.planet.name,
+        "mass_kg": it.mass,
+        "radius_m": it.radius,
+        "magma_ocean_end_yr": mo_end,
+        "last_melt_yr": last_melt,
+        "basal_layer": basal,
+        "final_upper_temperature_k": float(h["upper_temperature"][-1]),
+        "final_surface_heat_flow_w": float(h["surface_heat_flow"][-1]),
+        "final_cmb_heat_flow_w": float(h["cmb_heat_flow"][-1]),
+        "inner_core_radius_m": float(h["inner_core_radius"][-1]),
+        "n_layers": n_layers,
+        "max_melt_depth_m": float(np.max(table["bottom_depth"])) if n_layers else 0.0,
+        "max_melt_pressure_pa": float(np.max(table["bottom_pressure"])) if n_layers else 0.0,
+        "energy_closure": result.energy_closure,
+        "end_time_yr": float(h["time"][-1] / YEAR),
+        "events": [{"time_yr": e["time"] / YEAR, "kind": e["kind"], "layer": e["layer"],
+                    "depth_m": None if math.isnan(e["depth"]) else e["depth"],
+                    "pressure_pa": None if math.isnan(e["pressure"]) else e["pressure"]} for e in events],
+    }
+
+
+def basal_layer(result, table, events):
+    """The basal melt layer: a layer on the CMB that is not connected to the surface.
+
+    Returns None or {start_yr, end_yr, max_thickness_m} (end_yr None if it outlives the run)."""
+    it = result.interior
+    top_node = len(it.r[it.mantle]) - 1
+    cmb_depth = it.radius - it.core_radius
+    if not len(table["layer"]):
+        return None
+    basal_rows = (np.isclose(table["bottom_depth"], cmb_depth, rtol=0, atol=1.0)
+                  & (table["top_depth"] > 0.0))
+    _ = top_node
+    if not np.any(basal_rows):
+        return None
+    first = int(np.argmax(basal_rows))
+    lid = int(table["layer"][first])
+    rows = basal_rows & (table["layer"] == lid)
+    start = float(table["time"][first])
+    thickness = float(np.max(table["bottom_depth"][rows] - table["top_depth"][rows]))
+    froze = [e["time"] for e in events if e["kind"] == "froze" and e["layer"] == lid]
+    merged = [e["time"] for e in events if e["kind"] == "merged" and e["layer"] == lid]
+    end = froze[0] if froze else (merged[0] if merged else None)
+    return {"layer": lid, "start_yr": start / YEAR, "end_yr": None if end is None else end / YEAR,
+            "max_thickness_m": thickness}
