@@ -116,7 +116,101 @@ def interior(config, mass, core_fraction, overrides, as_json):
 
 def interior_json(it, spec) -> dict:
     """The JSON object printed by ``meltzone interior --json``."""
-    return it.summary_dict()
+    from . import phases
+    from .melting import get_model
+
+    out = it.summary_dict()
+    mantle = it.mantle
+    model = get_model(spec.melting.model, spec.melting.table_file or None)
+    out["flags"] = phases.flags(it.radius - it.r[mantle], it.P[mantle], it.T_ref[mantle], model)
+    return out
+
+
+# ---------------------------------------------------------------- curves
+#: Pressures [GPa] printed by ``meltzone curves MODEL`` without --pressure-gpa (those inside the range).
+_DEFAULT_CURVE_PRESSURES_GPA = (0.0, 5.0, 10.0, 25.0, 50.0, 100.0, 136.0, 250.0, 500.0, 1000.0, 2000.0, 3000.0,
+                                5000.0)
+
+
+def _parse_pressures_gpa(text: str) -> list[float]:
+    import math
+
+    try:
+        values = [float(v) for v in text.split(",") if v.strip()]
+    except ValueError:
+        raise click.BadParameter(f"{text!r} is not a comma-separated list of numbers", param_hint="--pressure-gpa")
+    if not values or not all(math.isfinite(v) for v in values):
+        raise click.BadParameter(f"{text!r}: give one or more finite pressures in GPa", param_hint="--pressure-gpa")
+    return values
+
+
+@main.command()
+@click.argument("model", required=False)
+@click.option("--pressure-gpa", default=None, metavar="P1,P2,...",
+              help="Pressures [GPa] at which to print the solidus and liquidus, e.g. 0,25,136,500.")
+@click.option("--table-file", type=click.Path(dir_okay=False), default=None,
+              help="CSV table for MODEL 'table' (header pressure_gpa or pressure_pa, solidus_k, liquidus_k).")
+@click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
+              help="Draw the P-T diagram to this file (.png, .pdf or .svg).")
+@click.option("--max-pressure-gpa", type=float, default=None, help="Upper pressure of the plot [GPa].")
+@click.option("--json", "as_json", is_flag=True, help="Print JSON in SI units.")
+@_user_errors
+def curves(model, pressure_gpa, table_file, plot_path, max_pressure_gpa, as_json):
+    """List the mantle melting models, or print / plot the solidus and liquidus of MODEL."""
+    from .constants import GPA
+    from .melting import TABLE_MODEL_ID, get_model, list_models
+
+    if model is None:
+        if pressure_gpa or plot_path:
+            raise click.UsageError("give a MODEL to print or plot (see `meltzone curves` for the ids)")
+        rows = []
+        for mid in list_models():
+            if mid == TABLE_MODEL_ID and not table_file:
+                rows.append({"id": mid, "min_pressure_pa": None, "max_pressure_pa": None,
+                             "validated_max_pressure_pa": None, "citation": "user CSV table (--table-file)"})
+            else:
+                rows.append(get_model(mid, table_file).describe())
+        if as_json:
+            _echo_json(rows)
+            return
+        click.echo(f"{'id':<17}{'range [GPa]':>14}{'validated to':>14}  citation")
+        for r in rows:
+            rng, val = "from file", "-"
+            if r["max_pressure_pa"] is not None:
+                rng = f"{r['min_pressure_pa'] / GPA:g}-{r['max_pressure_pa'] / GPA:g}"
+                val = f"{r['validated_max_pressure_pa'] / GPA:g}"
+            click.echo(f"{r['id']:<17}{rng:>14}{val:>14}  {r['citation']}")
+        return
+
+    melting_model = get_model(model, table_file)
+    if plot_path:
+        from .plot import plot_curves
+
+        plot_curves(melting_model, plot_path,
+                    max_pressure_pa=None if max_pressure_gpa is None else max_pressure_gpa * GPA)
+        click.echo(f"wrote {plot_path}", err=as_json)
+        if not pressure_gpa:
+            return
+    if pressure_gpa:
+        p_gpa = _parse_pressures_gpa(pressure_gpa)
+    else:
+        lo, hi = melting_model.min_pressure_pa / GPA, melting_model.max_pressure_pa / GPA
+        p_gpa = sorted({lo, hi, *(p for p in _DEFAULT_CURVE_PRESSURES_GPA if lo <= p <= hi)})
+    p_pa = [p * GPA for p in p_gpa]
+    sol = melting_model.solidus(p_pa)
+    liq = melting_model.liquidus(p_pa)
+    extrapolated = melting_model.extrapolated(p_pa)
+    if as_json:
+        _echo_json({"model": melting_model.id, "pressure_pa": p_pa, "solidus_k": [float(t) for t in sol],
+                    "liquidus_k": [float(t) for t in liq], "extrapolated": [bool(e) for e in extrapolated]})
+        return
+    click.echo(f"model     {melting_model.id}\ncitation  {melting_model.citation}\n"
+               f"range     {melting_model.min_pressure_pa / GPA:g}-{melting_model.max_pressure_pa / GPA:g} GPa, "
+               f"validated to {melting_model.validated_max_pressure_pa / GPA:g} GPa (* = extrapolated)\n")
+    click.echo(f"{'P [GPa]':>10}{'solidus [K]':>14}{'liquidus [K]':>14}")
+    for p, s, t, e in zip(p_gpa, sol, liq, extrapolated):
+        click.echo(f"{p:>10g}{s:>14.1f}{t:>14.1f}{' *' if e else ''}")
+    click.echo("\nModel estimate from published fits, not a measurement.")
 
 
 def demo_config_path():
