@@ -86,7 +86,8 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                                  choices=("linear", "katz2003")),
         "water_wt_percent": Key(0.0, "wt%", "bulk mantle water content lowering the solidus (Katz et al. 2003)",
                                 lo=0.0, hi=5.0),
-        "core_melting_depression_k": Key(0.0, "K", "lowering of the iron melting curve by light elements",
+        "core_melting_depression_k": Key(700.0, "K", "lowering of the iron melting curve by light elements "
+                                         "(~700 K for Earth's core, Alfe et al. 2002, EPSL 195:91; from memory)",
                                          lo=0.0, hi=3000.0),
     },
     "convection": {
@@ -94,7 +95,10 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
         "viscosity_prefactor_pa_s": Key(6.127e10, "Pa s", "Arrhenius prefactor A in A exp[(E + P V)/(R T)]",
                                         lo=0.0, lo_open=True),
         "activation_energy_j_mol": Key(3.35e5, "J/mol", "activation energy E", lo=0.0, hi=1.0e6),
-        "activation_volume_m3_mol": Key(4.0e-6, "m^3/mol", "activation volume V", lo=0.0, hi=3.0e-5),
+        "activation_volume_m3_mol": Key(4.0e-6, "m^3/mol", "activation volume V0 at zero pressure", lo=0.0,
+                                        hi=3.0e-5),
+        "activation_volume_decay_pa": Key(2.0e11, "Pa", "pressure scale over which the activation volume "
+                                          "decays, V(P) = V0 exp(-P / P_d); 0 keeps V constant", lo=0.0),
         "critical_rayleigh": Key(450.0, "1", "critical Rayleigh number", lo=1.0, hi=1.0e5),
         "beta": Key(1.0 / 3.0, "1", "exponent of the Nusselt-Rayleigh scaling", lo=0.05, hi=0.5),
         "rheology_a": Key(2.5, "1", "factor of the rheological temperature scale (stagnant lid)",
@@ -137,7 +141,7 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
     },
     "run": {
         "end_time_gyr": Key(10.0, "Gyr", "model time at which the run stops", lo=0.0, lo_open=True, hi=100.0),
-        "rtol": Key(1.0e-6, "1", "relative tolerance of the time integrator", lo=1.0e-12, hi=1.0e-2),
+        "rtol": Key(1.0e-7, "1", "relative tolerance of the time integrator", lo=1.0e-12, hi=1.0e-2),
         "max_temperature_step_k": Key(10.0, "K", "largest change of either temperature in one step",
                                       lo=0.01, hi=500.0),
         "max_steps": Key(200000, "1", "upper bound on accepted steps", lo=100, hi=10000000),

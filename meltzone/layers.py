@@ -60,18 +60,15 @@ class _Interp:
         self.stagnant = result.spec.convection.regime == "stagnant-lid"
 
     def state(self, step, t):
-        from .evolution import kernel as k
-
+        """(T_u, T_c, lid) at time t inside step ``step`` (between history rows step-1 and step)."""
         t0, t1 = self.t[step - 1], self.t[step]
-        y = np.zeros(k.N_Y)
-        for j, (v, d) in zip((k.Y_TU, k.Y_TC, k.Y_LID), self.cols):
-            y[j] = _hermite(t, t0, t1, v[step - 1], v[step], d[step - 1], d[step])
+        vals = [_hermite(t, t0, t1, v[step - 1], v[step], d[step - 1], d[step]) for v, d in self.cols]
         if not self.stagnant:
-            y[k.Y_LID] = 0.0
-        return y
+            vals[2] = 0.0
+        return vals[0], vals[1], max(vals[2], 0.0)
 
-    def profile(self, step, t):
-        return self.r.profile_at_state(t, self.state(step, t))
+    def profile(self, step, t, with_diagnostics=False):
+        return self.r.profile_at_state(t, *self.state(step, t), with_diagnostics=with_diagnostics)
 
 
 def _refine(fn, t0, t1):
@@ -216,7 +213,7 @@ def _regime_events(result, interp, add_event, n_nodes):
     top = n_nodes - 1
     for s in range(1, len(t)):
         if regime[s - 1] == 0 and regime[s] != 0:
-            when = _refine(lambda tt: interp.profile(s, tt)[1][top] - phi_c, t[s - 1], t[s])
+            when = _refine(lambda tt: interp.profile(s, tt, True)[2][k.D_PHI_TOP] - phi_c, t[s - 1], t[s])
             add_event(when, "magma-ocean-ended", -1, top)
         if regime[s] == 2 and regime[s - 1] != 2:
             add_event(t[s], "stagnant-lid-formed", -1, top)
@@ -226,7 +223,7 @@ def _regime_events(result, interp, add_event, n_nodes):
         core = result.kernel_inputs[1]
 
         def centre(tt):
-            tc = interp.state(s, tt)[k.Y_TC]
+            tc = interp.state(s, tt)[1]
             return core[k.C_TMELT, 0] - tc * core[k.C_F, 0]
 
         add_event(_refine(centre, t[s - 1], t[s]), "inner-core-nucleated", -1, None)

@@ -19,7 +19,7 @@ import time as _time
 import numpy as np
 
 from ..config import PlanetSpec, as_spec
-from ..constants import GPA, GYR, MYR
+from ..constants import GYR, MYR
 from ..errors import ConvergenceError
 from ..interior import Interior, build_interior
 
@@ -90,6 +90,7 @@ def build_arrays(spec: PlanetSpec, interior: Interior):
     par[k.P_A_VISC] = cv.viscosity_prefactor_pa_s
     par[k.P_E_ACT] = cv.activation_energy_j_mol
     par[k.P_V_ACT] = cv.activation_volume_m3_mol
+    par[k.P_V_DECAY] = cv.activation_volume_decay_pa
     par[k.P_RA_CR] = cv.critical_rayleigh
     par[k.P_BETA] = cv.beta
     par[k.P_A_RH] = cv.rheology_a
@@ -118,8 +119,9 @@ def build_arrays(spec: PlanetSpec, interior: Interior):
     return grid, core, iso, par, law, model
 
 
-def initial_state(spec: PlanetSpec, grid, par) -> np.ndarray:
-    """y0: the fully molten start by default (50 K above the liquidus at every mantle node)."""
+def initial_temperatures(spec: PlanetSpec, grid) -> tuple[float, float]:
+    """(T_u, T_c) at the start: by default 50 K above the liquidus at every mantle node (fully molten),
+    and the core the mantle adiabat at the CMB plus ``initial.initial_cmb_jump_k``."""
     from . import kernel as k
 
     tu = spec.initial.upper_temperature_k
@@ -128,22 +130,30 @@ def initial_state(spec: PlanetSpec, grid, par) -> np.ndarray:
     tc = spec.initial.core_temperature_k
     if tc <= 0.0:
         tc = tu * grid[k.G_F, 0] + spec.initial.initial_cmb_jump_k
+    return tu, tc
+
+
+def initial_state(spec: PlanetSpec, grid, core, par, law) -> np.ndarray:
+    """y0 of the kernel (energies, lid, 0) and the temperatures it stands for."""
+    from . import kernel as k
+
+    tu, tc = initial_temperatures(spec, grid)
     y0 = np.zeros(k.N_Y)
-    y0[k.Y_TU] = tu
-    y0[k.Y_TC] = tc
-    y0[k.Y_LID] = LID_MIN if par[k.P_STAGNANT] > 0.5 else 0.0
-    return y0
+    lid = LID_MIN if par[k.P_STAGNANT] > 0.5 else 0.0
+    k.energy_state(tu, tc, lid, 0.0, grid, core, par, law, y0)
+    return y0, tu, tc
 
 
-def run_kernel(grid, core, iso, par, law, y0, max_steps, progress=None):
+def run_kernel(grid, core, iso, par, law, y0, t_guess, max_steps, progress=None):
     """Run the integrator to the end time, growing the buffers when they fill. Returns (hist, iv, state)."""
     from . import kernel as k
 
     hist = np.zeros((4096, k.N_H))
     iv = np.zeros((8192, k.N_I))
-    state = np.zeros(9)
+    state = np.zeros(11)
     state[1:1 + k.N_Y] = y0
     state[5] = 1.0  # first step [s]; the controller grows it
+    state[9], state[10] = t_guess
     chunk = 2000 if progress is not None else max_steps
     done = 0
     while True:
@@ -164,7 +174,7 @@ def run_kernel(grid, core, iso, par, law, y0, max_steps, progress=None):
                     "raise run.max_steps or run.max_temperature_step_k")
         elif status == k.STATUS_STEP_TOO_SMALL:
             raise ConvergenceError(f"time step collapsed at t = {state[0]:.4g} s "
-                                   f"(T_u = {state[1]:.1f} K, T_c = {state[2]:.1f} K)")
+                                   f"(T_u = {state[9]:.1f} K, T_c = {state[10]:.1f} K)")
     n_h = int(state[6])
     n_iv = int(state[7])
     return hist[:n_h].copy(), iv[:n_iv].copy(), state
@@ -183,10 +193,10 @@ def evolve(config=None, *, progress=None, **kwargs):
     t0 = _time.perf_counter()
     interior = build_interior(spec)
     grid, core, iso, par, law, model = build_arrays(spec, interior)
-    y0 = initial_state(spec, grid, par)
-    hist, iv, state = run_kernel(grid, core, iso, par, law, y0, spec.run.max_steps, progress)
+    y0, tu0, tc0 = initial_state(spec, grid, core, par, law)
+    hist, iv, state = run_kernel(grid, core, iso, par, law, y0, (tu0, tc0), spec.run.max_steps, progress)
     wall = _time.perf_counter() - t0
     return Result.from_kernel(spec, interior, model, grid, core, iso, par, law, hist, iv, state, wall)
 
 
-__all__ = ["evolve", "build_arrays", "initial_state", "run_kernel", "GPA"]
+__all__ = ["evolve", "build_arrays", "initial_state", "initial_temperatures", "run_kernel"]

@@ -4,10 +4,14 @@ The only hot code of meltzone. Inputs are plain float64 arrays with named
 row/column indices (below); the friendly layer (:mod:`meltzone.evolution`)
 builds them from a PlanetSpec and an Interior and wraps the outputs.
 
-State ``y`` (SI): ``Y_TU`` upper-mantle potential temperature [K], ``Y_TC``
-temperature at the top of the core [K], ``Y_LID`` stagnant-lid thickness [m],
-``Y_OUT`` cumulative (surface heat loss - radiogenic heating) [J], integrated
-alongside for the energy-closure check.
+State ``y`` (SI): ``Y_EM`` stored heat of the mantle [J], ``Y_EC`` stored heat
+of the core [J], ``Y_LID`` stagnant-lid thickness [m], ``Y_OUT`` cumulative
+(surface heat loss - radiogenic heating) [J]. The temperatures (upper-mantle
+potential temperature T_u and core temperature T_c) are recovered from the
+energies by inverting the monotone stored-heat functions. Integrating the
+energies themselves (a conservative formulation) makes the budget close to
+round-off: any Runge-Kutta method preserves the linear invariant
+E_m + E_c + Y_OUT, whatever the kinks of the melt-fraction law.
 
 Physics (sources and validity in :mod:`meltzone.evolution.convection`,
 :mod:`~meltzone.evolution.heating` and :mod:`~meltzone.evolution.surface`,
@@ -16,19 +20,19 @@ which hold the NumPy twins used for documentation, plotting and tests):
 * boundary-layer scaling q = k dT / D (Ra / Ra_cr)^beta for the upper layer
   (Stevenson, Spohn & Schubert 1983, Icarus 54:466), the bottom layer from the
   local critical Rayleigh number, delta_c = (kappa eta_c Ra_cr / (alpha rho g_c dT_c))^(1/3);
-* Arrhenius viscosity eta = A exp[(E + P V)/(R T)] exp(-alpha_phi phi) below the
+* Arrhenius viscosity eta = A exp[H(P)/(R T)] exp(-alpha_phi phi), H = E + int V dP, below the
   rheological transition, Einstein-Roscoe suspension eta_liq (1 - phi_x/phi_m)^-2.5
   above it, blended in log eta over a melt-fraction width of 0.05;
 * stagnant lid: rheological temperature scale dT_rh = a_rh R T_u^2 / E
   (Solomatov & Moresi 2000, Phys. Fluids / JGR 105:21795; Grasset & Parmentier 1998),
-  lid growth rho c (T_u - T_l) dD/dt = -q_u + k (T_l - T_s) / D;
+  lid growth rho c (T_u - T_lm) dD/dt = -q_u + k (T_l - T_s) / D with T_lm the lid's mean
+  temperature (the usual form has T_l; T_lm keeps the lid's heat content in the budget);
 * surface: the surface temperature balances the flux through the top layer
   with eps sigma (T_s^4 - T_eq^4), eps = 2 / (tau + 2) for a grey atmosphere;
-* energy: the stored heat E(y) (sensible heat on the adiabat, latent heat of the
-  melt, the lid's conductive profile, core sensible heat and inner-core latent and
-  gravitational energy) is one function; the temperature equations are
-  dE/dt = -Q_surface + H (mantle and core together), so the budget closes to the
-  integrator's accuracy by construction and Y_OUT checks it.
+* energy: the stored heat (sensible heat on the adiabat, latent heat of the
+  melt, the lid's conductive profile, core sensible heat less the inner core's
+  latent and gravitational energy) is one function of (T_u, lid) for the mantle
+  and of T_c for the core: dE_m/dt = -Q_surface + Q_cmb + H, dE_c/dt = -Q_cmb.
 """
 
 from __future__ import annotations
@@ -41,15 +45,15 @@ from .._jit import njit
 from .._melt_kernel import melt_fraction
 
 # ------------------------------------------------------------ state vector
-Y_TU, Y_TC, Y_LID, Y_OUT = range(4)
+Y_EM, Y_EC, Y_LID, Y_OUT = range(4)
 N_Y = 4
 
 # ------------------------------------------------------------ scalar parameters
 (P_RADIUS, P_CORE_RADIUS, P_G_SURF, P_G_CMB, P_RHO_MANTLE, P_RHO_TOP, P_K, P_KAPPA, P_ALPHA, P_CM, P_LATENT,
  P_A_VISC, P_E_ACT, P_V_ACT, P_RA_CR, P_BETA, P_A_RH, P_MELT_WEAK, P_ETA_LIQ, P_PHI_C, P_CC, P_LC, P_EG,
  P_T_EQ, P_ATMOSPHERE, P_H2O_TOTAL, P_CO2_TOTAL, P_STAGNANT, P_P_CMB, P_START_AGE, P_LAW, P_DT_MAX, P_RTOL,
- P_T_END, P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS) = range(38)
-N_PAR = 38
+ P_T_END, P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS, P_V_DECAY) = range(39)
+N_PAR = 39
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 (G_R, G_P, G_F, G_W, G_TSOL, G_TLIQ, G_AUX1, G_AUX2) = range(8)
@@ -61,8 +65,8 @@ N_C = 5
 
 # ------------------------------------------------------------ diagnostics
 (D_QS, D_QU, D_QC, D_TS, D_DELTA_U, D_DELTA_C, D_TL, D_H, D_REGIME, D_PHI_TOP, D_RIC, D_ETA_U, D_ETA_C,
- D_TB, D_EPS, D_ATM_H2O, D_ATM_CO2, D_MELT_MASS, D_E_STORED) = range(19)
-N_D = 19
+ D_TB, D_EPS, D_ATM_H2O, D_ATM_CO2, D_MELT_MASS, D_E_STORED, D_DLID) = range(20)
+N_D = 20
 
 # ------------------------------------------------------------ history columns
 (H_T, H_TU, H_TC, H_LID, H_OUT, H_QS, H_QC, H_H, H_RIC, H_MELT, H_REGIME, H_TS, H_DELTA_U, H_DELTA_C, H_TL,
@@ -98,9 +102,23 @@ def smoothstep(x):
 
 
 @njit
+def activation_enthalpy(p, par):
+    """E + integral of V(P) dP with V(P) = V0 exp(-P / P_d) [J/mol]; E + P V0 when P_d = 0.
+
+    A decaying activation volume keeps the deep mantles of super-Earths from the astronomically
+    high viscosities of a constant V (Stamenkovic et al. 2012, ApJ 748:41; Tackley et al. 2013,
+    Icarus 225:50 discuss the pressure dependence; the exponential form and P_d here are this
+    model's choice, not fitted to those papers)."""
+    pd = par[P_V_DECAY]
+    if pd <= 0.0:
+        return par[P_E_ACT] + p * par[P_V_ACT]
+    return par[P_E_ACT] + par[P_V_ACT] * pd * (1.0 - math.exp(-p / pd))
+
+
+@njit
 def viscosity(t, p, phi, par):
     """Effective viscosity [Pa s] at temperature t [K], pressure p [Pa] and melt fraction phi."""
-    solid = math.log(par[P_A_VISC]) + (par[P_E_ACT] + p * par[P_V_ACT]) / (R_GAS * t) - par[P_MELT_WEAK] * phi
+    solid = math.log(par[P_A_VISC]) + activation_enthalpy(p, par) / (R_GAS * t) - par[P_MELT_WEAK] * phi
     w = smoothstep((phi - par[P_PHI_C]) / BLEND_WIDTH)
     if w <= 0.0:
         return math.exp(min(solid, 700.0))
@@ -216,11 +234,120 @@ def melt_mass_adiabat(tu, grid, law):
 
 
 @njit
-def diagnose(t, y, grid, core, iso, par, law, diag):
-    """Fluxes, boundary layers, surface temperature and regime at state y; fills ``diag`` (D_*)."""
-    tu = max(y[Y_TU], 1.0)
-    tc = max(y[Y_TC], 1.0)
-    d_lid = max(y[Y_LID], 0.0)
+def _invert(kind, e, d, grid, core, par, law, guess):
+    """Temperature [K] whose stored heat is ``e``: mantle (kind 0, lid d) or core (kind 1).
+
+    Newton's first step with a centred slope, then secant steps; bisection on [10, 2e5] K
+    if that fails. Both stored-heat functions rise monotonically with temperature."""
+    t0 = min(max(guess, 10.0), 2.0e5)
+    if kind == 0:
+        f0 = mantle_energy(t0, d, grid, par, law) - e
+        hh = 1e-3 * max(1.0, 1e-4 * t0)
+        s = (mantle_energy(t0 + hh, d, grid, par, law) - mantle_energy(t0 - hh, d, grid, par, law)) / (2 * hh)
+    else:
+        f0 = core_energy(t0, core, par) - e
+        hh = 1e-3 * max(1.0, 1e-4 * t0)
+        s = (core_energy(t0 + hh, core, par) - core_energy(t0 - hh, core, par)) / (2 * hh)
+    scale = abs(e) + 1.0
+    for _ in range(40):
+        if abs(f0) <= 1e-14 * scale:
+            return t0
+        if not s > 0.0:
+            break
+        t1 = t0 - f0 / s
+        if not (10.0 <= t1 <= 2.0e5):
+            break
+        f1 = (mantle_energy(t1, d, grid, par, law) if kind == 0 else core_energy(t1, core, par)) - e
+        if abs(t1 - t0) <= 1e-12 * t0:
+            return t1
+        if f1 != f0:
+            s = (f1 - f0) / (t1 - t0)
+        t0 = t1
+        f0 = f1
+    lo = 10.0
+    hi = 2.0e5
+    for _ in range(200):
+        mid = 0.5 * (lo + hi)
+        f = (mantle_energy(mid, d, grid, par, law) if kind == 0 else core_energy(mid, core, par)) - e
+        if f > 0.0:
+            hi = mid
+        else:
+            lo = mid
+        if hi - lo <= 1e-12 * mid:
+            break
+    return 0.5 * (lo + hi)
+
+
+@njit
+def temperatures(y, grid, core, par, law, work):
+    """(T_u, T_c) of the energy state y; ``work`` holds the last solution as the next guess."""
+    d = max(y[Y_LID], 0.0) if par[P_STAGNANT] > 0.5 else 0.0
+    tu = _invert(0, y[Y_EM], d, grid, core, par, law, work[0])
+    if core[C_W].sum() > 0.0:
+        tc = _invert(1, y[Y_EC], 0.0, grid, core, par, law, work[1])
+    else:
+        tc = work[1]
+    work[0] = tu
+    work[1] = tc
+    return tu, tc
+
+
+@njit
+def energy_state(tu, tc, d_lid, out, grid, core, par, law, y):
+    """Fill y from temperatures (the inverse of :func:`temperatures`); ``out`` is Y_OUT."""
+    y[Y_EM] = mantle_energy(tu, max(d_lid, 0.0) if par[P_STAGNANT] > 0.5 else 0.0, grid, par, law)
+    y[Y_EC] = core_energy(tc, core, par)
+    y[Y_LID] = d_lid
+    y[Y_OUT] = out
+
+
+@njit
+def _top_boundary(stagnant, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
+    """(T_s, q_surface, q_u, delta_u) at the top: the surface temperature balances the conductive flux through
+    the top layer (boundary layer, or lid over the boundary layer) with eps sigma (T_s^4 - T_eq^4).
+
+    delta_u = D_conv (Ra_cr / Ra)^beta with Ra = alpha rho g dT D_conv^3 / (kappa eta_u) and dT the
+    temperature contrast driving convection (top layer plus the CMB excess); bisection on T_s."""
+    t_eq = par[P_T_EQ]
+    t_top = tl if stagnant else tu
+    lo = t_eq
+    hi = max(t_top, t_eq)
+    delta_u = d_conv
+    ts = 0.5 * (lo + hi)
+    base = par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_SURF] * d_conv ** 3 / (par[P_KAPPA] * eta_u)
+    if stagnant:
+        ra = base * max(tu - tl + max(dtc, 0.0), 1e-6)
+        delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
+    for _ in range(80):
+        ts = 0.5 * (lo + hi)
+        if stagnant:
+            q_cond = par[P_K] * (tl - ts) / d_lid
+        else:
+            ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
+            delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
+            q_cond = par[P_K] * (tu - ts) / delta_u
+        q_rad = eps * SIGMA_SB * (ts ** 4 - t_eq ** 4)
+        if q_cond > q_rad:
+            lo = ts
+        else:
+            hi = ts
+        if hi - lo < 1e-10 * hi:
+            break
+    ts = 0.5 * (lo + hi)
+    if stagnant:
+        return ts, par[P_K] * (tl - ts) / d_lid, par[P_K] * (tu - tl) / delta_u, delta_u
+    ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
+    delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
+    q = par[P_K] * (tu - ts) / delta_u
+    return ts, q, q, delta_u
+
+
+@njit
+def diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag):
+    """Fluxes, boundary layers, surface temperature and regime at (T_u, T_c, lid); fills ``diag`` (D_*)."""
+    tu = max(tu, 1.0)
+    tc = max(tc, 1.0)
+    d_lid = max(d_lid, 0.0)
     n = grid.shape[1]
     top = n - 1
     depth = par[P_RADIUS] - par[P_CORE_RADIUS]
@@ -259,48 +386,35 @@ def diagnose(t, y, grid, core, iso, par, law, diag):
         tau += 3.0 * m_h2o / (2.0 * area) * math.sqrt(0.01 * par[P_G_SURF] / (3.0 * 101325.0))
         tau += 3.0 * m_co2 / (2.0 * area) * math.sqrt(0.001 * par[P_G_SURF] / (3.0 * 101325.0))
         eps = 2.0 / (tau + 2.0)
-    # top of the convecting region and the conductance of the layer above the surface
-    if stagnant:
-        tl = lid_base_temperature(tu, par)
-        d_lid = max(d_lid, par[P_LID_MIN])
-        d_conv = max(depth - d_lid, 0.05 * depth)
-    else:
-        tl = tu
-        d_conv = depth
-    dt_ra = max(tu - tl, 0.0) + max(dtc, 0.0)
-    # upper boundary layer: delta_u = D (Ra_cr / Ra)^beta with dT of the top layer
-    t_eq = par[P_T_EQ]
-    t_top = tl if stagnant else tu
-    lo = t_eq
-    hi = t_top
-    delta_u = d_conv
-    for _ in range(80):
-        ts = 0.5 * (lo + hi)
-        if stagnant:
-            dt_u = tu - tl
-            ra = par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_SURF] * max(dt_ra, 1e-6) * d_conv ** 3 / (
-                par[P_KAPPA] * eta_u)
-            delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
-            q_cond = par[P_K] * (tl - ts) / d_lid
+    # top boundary: mobile (magma ocean or mobile lid) and, in stagnant-lid mode, the lid; across the
+    # rheological transition (phi_c < phi_top < phi_c + BLEND_WIDTH) the two are blended with the same
+    # weight as the viscosity, so that the fluxes are continuous in T_u
+    ts_m, qs_m, qu_m, du_m = _top_boundary(False, tu, tu, 0.0, depth, dtc, eta_u, eps, par)
+    tl = tu
+    w_mo = 1.0
+    ddl_sl = 0.0
+    if par[P_STAGNANT] > 0.5:
+        w_mo = smoothstep((phi_top - par[P_PHI_C]) / BLEND_WIDTH)
+        if w_mo < 1.0:
+            tl = lid_base_temperature(tu, par)
+            d_eff = max(d_lid, par[P_LID_MIN])
+            d_conv = max(depth - d_eff, 0.05 * depth)
+            ts_s, qs_s, qu_s, du_s = _top_boundary(True, tu, tl, d_eff, d_conv, dtc, eta_u, eps, par)
+            # rho c (T_u - T_lid,mean) dD/dt = q_lid - q_u: new lid material is cooled from T_u to the mean of
+            # the linear lid profile, the same bookkeeping as mantle_energy (with it, the convecting mantle
+            # loses exactly q_u at the lid base)
+            t_lid_mean = 0.5 * (par[P_T_EQ] + tl)
+            ddl_sl = (qs_s - qu_s) / (par[P_RHO_TOP] * par[P_CM] * max(tu - t_lid_mean, 1.0))
         else:
-            ra = par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_SURF] * max(tu - ts + max(dtc, 0.0), 1e-6) \
-                * d_conv ** 3 / (par[P_KAPPA] * eta_u)
-            delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
-            q_cond = par[P_K] * (tu - ts) / delta_u
-        q_rad = eps * SIGMA_SB * (ts ** 4 - t_eq ** 4)
-        if q_cond > q_rad:
-            lo = ts
-        else:
-            hi = ts
-        if hi - lo < 1e-10 * t_top:
-            break
-    ts = 0.5 * (lo + hi)
-    if stagnant:
-        qu = par[P_K] * (tu - tl) / delta_u
-        qs = par[P_K] * (tl - ts) / d_lid
+            ts_s, qs_s, qu_s, du_s = ts_m, qs_m, qu_m, du_m
     else:
-        qu = par[P_K] * (tu - ts) / delta_u
-        qs = qu
+        ts_s, qs_s, qu_s, du_s = ts_m, qs_m, qu_m, du_m
+    qs = w_mo * qs_m + (1.0 - w_mo) * qs_s
+    qu = w_mo * qu_m + (1.0 - w_mo) * qu_s
+    ts = w_mo * ts_m + (1.0 - w_mo) * ts_s
+    delta_u = du_s if stagnant else du_m
+    # lid: grows by the stagnant-lid law, thins back to its minimum over ~1 kyr where the top is molten
+    diag[D_DLID] = (1.0 - w_mo) * ddl_sl + w_mo * (par[P_LID_MIN] - d_lid) / 3.15576e10
     r_ic, m_ic = inner_core(tc, core)
     diag[D_QS] = qs
     diag[D_QU] = qu
@@ -327,63 +441,53 @@ def diagnose(t, y, grid, core, iso, par, law, diag):
 
 
 @njit
-def rhs(t, y, grid, core, iso, par, law, diag, dy):
-    """dy/dt at (t, y); also fills ``diag``."""
-    diagnose(t, y, grid, core, iso, par, law, diag)
-    tu = y[Y_TU]
-    tc = y[Y_TC]
-    d_lid = y[Y_LID]
-    area_s = 4.0 * math.pi * par[P_RADIUS] ** 2
-    area_c = 4.0 * math.pi * par[P_CORE_RADIUS] ** 2
-    q_surf = diag[D_QS] * area_s
-    q_cmb = diag[D_QC] * area_c
-    heat = diag[D_H]
-    # lid growth (stagnant lid, solid surface); thins back over ~1 kyr when the surface remelts
-    if diag[D_REGIME] == REGIME_STAGNANT_LID:
-        d_eff = max(d_lid, par[P_LID_MIN])
-        ddl = (-diag[D_QU] + par[P_K] * (diag[D_TL] - diag[D_TS]) / d_eff) / (
-            par[P_RHO_TOP] * par[P_CM] * max(tu - diag[D_TL], 1.0))
-    elif par[P_STAGNANT] > 0.5:
-        ddl = (par[P_LID_MIN] - d_lid) / 3.15576e10
-    else:
-        ddl = 0.0
-    # energy: dE_m/dTu * dTu/dt + dE_m/dD * dD/dt = -Q_s + Q_c + H
+def temperature_rates(tu, tc, d_lid, dy, grid, core, par, law):
+    """(dT_u/dt, dT_c/dt) from the energy rates dy (for the step control, history and interpolation)."""
+    d = max(d_lid, 0.0) if par[P_STAGNANT] > 0.5 else 0.0
     h_t = 1e-3 * max(1.0, 1e-4 * tu)
-    dem_dtu = (mantle_energy(tu + h_t, d_lid, grid, par, law) - mantle_energy(tu - h_t, d_lid, grid, par, law)) / (
-        2.0 * h_t)
+    dem_dtu = (mantle_energy(tu + h_t, d, grid, par, law) - mantle_energy(tu - h_t, d, grid, par, law)) / (2 * h_t)
+    dem_dd = 0.0
     if par[P_STAGNANT] > 0.5 and d_lid > 0.0:
         dml = par[P_RHO_TOP] * 4.0 * math.pi * (par[P_RADIUS] - d_lid) ** 2
         dem_dd = dml * par[P_CM] * (0.5 * (par[P_T_EQ] + lid_base_temperature(tu, par)) - tu)
-    else:
-        dem_dd = 0.0
-    dy[Y_TU] = (-q_surf + q_cmb + heat - dem_dd * ddl) / dem_dtu
-    dy[Y_LID] = ddl
+    dtu = (dy[Y_EM] - dem_dd * dy[Y_LID]) / dem_dtu
     h_c = 1e-3 * max(1.0, 1e-4 * tc)
-    dec_dtc = (core_energy(tc + h_c, core, par) - core_energy(tc - h_c, core, par)) / (2.0 * h_c)
-    dy[Y_TC] = -q_cmb / dec_dtc
+    dec = (core_energy(tc + h_c, core, par) - core_energy(tc - h_c, core, par)) / (2 * h_c)
+    dtc = dy[Y_EC] / dec if dec > 0.0 else 0.0
+    return dtu, dtc
+
+
+@njit
+def rhs(t, y, grid, core, iso, par, law, work, diag, dy):
+    """dy/dt at (t, y); also fills ``diag`` and leaves (T_u, T_c) in ``work``."""
+    tu, tc = temperatures(y, grid, core, par, law, work)
+    d_lid = y[Y_LID]
+    diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag)
+    area_s = 4.0 * math.pi * par[P_RADIUS] ** 2
+    area_c = 4.0 * math.pi * par[P_CORE_RADIUS] ** 2
+    q_surf = diag[D_QS] * area_s
+    q_cmb = diag[D_QC] * area_c if core[C_W].sum() > 0.0 else 0.0
+    heat = diag[D_H]
+    ddl = diag[D_DLID] if par[P_STAGNANT] > 0.5 else 0.0
+    dy[Y_EM] = -q_surf + q_cmb + heat
+    dy[Y_EC] = -q_cmb
+    dy[Y_LID] = ddl
     dy[Y_OUT] = q_surf - heat
 
 
 @njit
-def stored_energy(y, grid, core, par, law):
-    return mantle_energy(y[Y_TU], max(y[Y_LID], 0.0), grid, par, law) + core_energy(y[Y_TC], core, par)
-
-
-@njit
-def profile(y, diag, grid, par, law, temp, phi):
-    """Temperature T(r) and melt fraction on the mantle nodes (CMB -> surface) at state y.
+def profile(tu, tc, d_lid, diag, grid, par, law, temp, phi):
+    """Temperature T(r) and melt fraction on the mantle nodes (CMB -> surface).
 
     Adiabat T_u f(r) between a top layer (linear from T_s to the adiabat over delta_u, below the
     conductive lid in stagnant-lid mode) and a bottom layer (linear from T_c over delta_c)."""
     n = grid.shape[1]
-    tu = y[Y_TU]
-    tc = y[Y_TC]
     ts = diag[D_TS]
     tl = diag[D_TL]
     du = max(diag[D_DELTA_U], 1e-6)
     dc = max(diag[D_DELTA_C], 1e-6)
     stagnant = diag[D_REGIME] == REGIME_STAGNANT_LID
-    d_lid = max(y[Y_LID], par[P_LID_MIN]) if stagnant else 0.0
+    d_lid = max(d_lid, par[P_LID_MIN]) if stagnant else 0.0
     r_top = par[P_RADIUS]
     r_c = par[P_CORE_RADIUS]
     for i in range(n):
@@ -402,7 +506,6 @@ def profile(y, diag, grid, par, law, temp, phi):
             t = tc + (t - tc) * h / dc
         temp[i] = t
         phi[i] = node_melt(t, grid, i, law)
-
 
 @njit
 def find_intervals(phi, grid, step, iv, n_iv, cap):
@@ -458,21 +561,24 @@ E1, E3, E4, E5, E6, E7 = (71.0 / 57600.0, -71.0 / 16695.0, 71.0 / 1920.0, -17253
 
 
 @njit
-def record(t, y, dy, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi):
-    profile(y, diag, grid, par, law, temp, phi)
+def record(t, y, tu, tc, dy, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi):
+    """Store one accepted step: history row, T(r), phi(r) and the melt intervals."""
+    profile(tu, tc, y[Y_LID], diag, grid, par, law, temp, phi)
     n_iv_new = find_intervals(phi, grid, n_h, iv, n_iv, iv.shape[0])
     if n_iv_new < 0:
         return -1
     melt = 0.0
     for i in range(grid.shape[1]):
         melt += grid[G_W, i] * phi[i]
+    dtu, dtc = temperature_rates(tu, tc, y[Y_LID], dy, grid, core, par, law)
+    stagnant = diag[D_REGIME] == REGIME_STAGNANT_LID
     hist[n_h, H_T] = t
-    hist[n_h, H_TU] = y[Y_TU]
-    hist[n_h, H_TC] = y[Y_TC]
-    hist[n_h, H_LID] = y[Y_LID] if diag[D_REGIME] == REGIME_STAGNANT_LID else 0.0
+    hist[n_h, H_TU] = tu
+    hist[n_h, H_TC] = tc
+    hist[n_h, H_LID] = y[Y_LID] if stagnant else 0.0
     hist[n_h, H_OUT] = y[Y_OUT]
     hist[n_h, H_QS] = diag[D_QS] * 4.0 * math.pi * par[P_RADIUS] ** 2
-    hist[n_h, H_QC] = diag[D_QC] * 4.0 * math.pi * par[P_CORE_RADIUS] ** 2
+    hist[n_h, H_QC] = -dy[Y_EC]
     hist[n_h, H_H] = diag[D_H]
     hist[n_h, H_RIC] = diag[D_RIC]
     hist[n_h, H_MELT] = melt
@@ -481,10 +587,10 @@ def record(t, y, dy, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi)
     hist[n_h, H_DELTA_U] = diag[D_DELTA_U]
     hist[n_h, H_DELTA_C] = diag[D_DELTA_C]
     hist[n_h, H_TL] = diag[D_TL]
-    hist[n_h, H_E_STORED] = stored_energy(y, grid, core, par, law)
-    hist[n_h, H_DTU] = dy[Y_TU]
-    hist[n_h, H_DTC] = dy[Y_TC]
-    hist[n_h, H_DLID] = dy[Y_LID]
+    hist[n_h, H_E_STORED] = y[Y_EM] + y[Y_EC]
+    hist[n_h, H_DTU] = dtu
+    hist[n_h, H_DTC] = dtc
+    hist[n_h, H_DLID] = dy[Y_LID] if stagnant else 0.0
     hist[n_h, H_PHI_TOP] = diag[D_PHI_TOP]
     hist[n_h, H_ATM_H2O] = diag[D_ATM_H2O]
     hist[n_h, H_ATM_CO2] = diag[D_ATM_CO2]
@@ -494,19 +600,20 @@ def record(t, y, dy, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi)
 
 @njit
 def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
-    """Advance from ``state`` = (t, y[0..3], h, n_hist, n_iv, n_rejected) until the end time, a full buffer
-    or max_steps; updates ``state`` in place (so a call can resume) and returns a STATUS_* code.
+    """Advance from ``state`` = (t, y[0..3], h, n_hist, n_iv, n_rejected, T_u, T_c) until the end time, a full
+    buffer or max_steps; updates ``state`` in place (so a call can resume) and returns a STATUS_* code.
 
-    Error control on T_u, T_c (absolute rtol * 1 K + relative rtol) and the lid (rtol * 1 km + relative);
-    every step also keeps |dT_u|, |dT_c| <= P_DT_MAX so that no melt layer appears and vanishes unseen.
+    Error control on the two energies (relative rtol plus rtol times the heat of 1 K) and on the lid
+    (relative plus rtol * 1 km); every step also keeps |dT_u|, |dT_c| <= P_DT_MAX so that no melt layer
+    appears and vanishes unseen between two recorded profiles.
     """
     n = grid.shape[1]
     temp = np.empty(n)
     phi = np.empty(n)
     diag = np.empty(N_D)
+    work = np.empty(2)
     y = np.empty(N_Y)
     ynew = np.empty(N_Y)
-    yerr = np.empty(N_Y)
     tmp = np.empty(N_Y)
     k1 = np.empty(N_Y)
     k2 = np.empty(N_Y)
@@ -522,12 +629,19 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
     n_h = int(state[6])
     n_iv = int(state[7])
     n_rej = int(state[8])
+    work[0] = state[9]
+    work[1] = state[10]
     t_end = par[P_T_END]
     rtol = par[P_RTOL]
     dt_max = par[P_DT_MAX]
-    rhs(t, y, grid, core, iso, par, law, diag, k1)
+    # absolute scales: heat of 1 K of mantle and of core, 1 km of lid
+    abs_e_m = rtol * par[P_MANTLE_MASS] * par[P_CM]
+    abs_e_c = rtol * max(core[C_W].sum() * par[P_CC], 1.0)
+    rhs(t, y, grid, core, iso, par, law, work, diag, k1)
+    tu = work[0]
+    tc = work[1]
     if n_h == 0:
-        res = record(t, y, k1, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi)
+        res = record(t, y, tu, tc, k1, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi)
         if res < 0:
             return STATUS_INTERVALS_FULL
         n_iv = res
@@ -535,53 +649,63 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
     steps = 0
     while t < t_end * (1.0 - 1e-14):
         if n_h >= hist.shape[0]:
-            _save(state, t, y, h, n_h, n_iv, n_rej)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
             return STATUS_HISTORY_FULL
         if steps >= max_steps:
-            _save(state, t, y, h, n_h, n_iv, n_rej)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
             return STATUS_MAX_STEPS
         # temperature-step limit from the current slopes
-        rate = max(abs(k1[Y_TU]), abs(k1[Y_TC]))
+        dtu, dtc = temperature_rates(tu, tc, y[Y_LID], k1, grid, core, par, law)
+        rate = max(abs(dtu), abs(dtc))
         if rate > 0.0:
             h = min(h, dt_max / rate)
         h = min(h, par[P_H_MAX], t_end - t)
         if h < 1e-6:
-            _save(state, t, y, h, n_h, n_iv, n_rej)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
             return STATUS_STEP_TOO_SMALL
         for j in range(N_Y):
             tmp[j] = y[j] + h * A21 * k1[j]
-        rhs(t + C2 * h, tmp, grid, core, iso, par, law, diag, k2)
+        rhs(t + C2 * h, tmp, grid, core, iso, par, law, work, diag, k2)
         for j in range(N_Y):
             tmp[j] = y[j] + h * (A31 * k1[j] + A32 * k2[j])
-        rhs(t + C3 * h, tmp, grid, core, iso, par, law, diag, k3)
+        rhs(t + C3 * h, tmp, grid, core, iso, par, law, work, diag, k3)
         for j in range(N_Y):
             tmp[j] = y[j] + h * (A41 * k1[j] + A42 * k2[j] + A43 * k3[j])
-        rhs(t + C4 * h, tmp, grid, core, iso, par, law, diag, k4)
+        rhs(t + C4 * h, tmp, grid, core, iso, par, law, work, diag, k4)
         for j in range(N_Y):
             tmp[j] = y[j] + h * (A51 * k1[j] + A52 * k2[j] + A53 * k3[j] + A54 * k4[j])
-        rhs(t + C5 * h, tmp, grid, core, iso, par, law, diag, k5)
+        rhs(t + C5 * h, tmp, grid, core, iso, par, law, work, diag, k5)
         for j in range(N_Y):
             tmp[j] = y[j] + h * (A61 * k1[j] + A62 * k2[j] + A63 * k3[j] + A64 * k4[j] + A65 * k5[j])
-        rhs(t + h, tmp, grid, core, iso, par, law, diag, k6)
+        rhs(t + h, tmp, grid, core, iso, par, law, work, diag, k6)
         for j in range(N_Y):
             ynew[j] = y[j] + h * (B1 * k1[j] + B3 * k3[j] + B4 * k4[j] + B5 * k5[j] + B6 * k6[j])
-        rhs(t + h, ynew, grid, core, iso, par, law, diag, k7)
+        rhs(t + h, ynew, grid, core, iso, par, law, work, diag, k7)
+        tu_new = work[0]
+        tc_new = work[1]
         err = 0.0
         for j in range(3):
-            yerr[j] = h * (E1 * k1[j] + E3 * k3[j] + E4 * k4[j] + E5 * k5[j] + E6 * k6[j] + E7 * k7[j])
-            scale = (rtol * (1.0 if j < 2 else 1.0e3)) + rtol * max(abs(y[j]), abs(ynew[j]))
-            e = abs(yerr[j]) / scale
+            yerr = h * (E1 * k1[j] + E3 * k3[j] + E4 * k4[j] + E5 * k5[j] + E6 * k6[j] + E7 * k7[j])
+            if j == Y_EM:
+                scale = abs_e_m + rtol * max(abs(y[j]), abs(ynew[j]))
+            elif j == Y_EC:
+                scale = abs_e_c + rtol * max(abs(y[j]), abs(ynew[j]))
+            else:
+                scale = rtol * 1.0e3 + rtol * max(abs(y[j]), abs(ynew[j]))
+            e = abs(yerr) / scale
             if e > err:
                 err = e
-        big_jump = abs(ynew[Y_TU] - y[Y_TU]) > 1.5 * dt_max or abs(ynew[Y_TC] - y[Y_TC]) > 1.5 * dt_max
+        big_jump = abs(tu_new - tu) > 1.5 * dt_max or abs(tc_new - tc) > 1.5 * dt_max
         if err <= 1.0 and not big_jump:
             t = t + h
             for j in range(N_Y):
                 y[j] = ynew[j]
                 k1[j] = k7[j]
-            res = record(t, y, k7, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi)
+            tu = tu_new
+            tc = tc_new
+            res = record(t, y, tu, tc, k7, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi)
             if res < 0:
-                _save(state, t - h, y, h, n_h, n_iv, n_rej)
+                _save(state, t - h, y, h, n_h, n_iv, n_rej, tu, tc)
                 return STATUS_INTERVALS_FULL
             n_iv = res
             n_h += 1
@@ -590,17 +714,18 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
             h = h * fac
         else:
             n_rej += 1
+            work[0] = tu
+            work[1] = tc
             if big_jump:
                 h = 0.5 * h
             else:
                 h = h * max(0.1, 0.9 * err ** (-0.25))
-            # the stage evaluations overwrote diag; k1 is still valid for the next try
-    _save(state, t, y, h, n_h, n_iv, n_rej)
+    _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
     return STATUS_DONE
 
 
 @njit
-def _save(state, t, y, h, n_h, n_iv, n_rej):
+def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc):
     state[0] = t
     for j in range(N_Y):
         state[1 + j] = y[j]
@@ -608,19 +733,22 @@ def _save(state, t, y, h, n_h, n_iv, n_rej):
     state[6] = n_h
     state[7] = n_iv
     state[8] = n_rej
+    state[9] = tu
+    state[10] = tc
 
 
 @njit
-def profile_at(t, y, grid, core, iso, par, law, temp, phi, diag):
-    """T(r), phi(r) and diagnostics at an arbitrary state (for snapshots and event refinement)."""
-    diagnose(t, y, grid, core, iso, par, law, diag)
-    profile(y, diag, grid, par, law, temp, phi)
+def profile_at(t, tu, tc, d_lid, grid, core, iso, par, law, temp, phi, diag):
+    """T(r), phi(r) and diagnostics at given temperatures (snapshots and event refinement)."""
+    diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag)
+    profile(tu, tc, d_lid, diag, grid, par, law, temp, phi)
 
 
 @njit
-def rhs_py(t, y, grid, core, iso, par, law):
-    """dy/dt as a new array (for scipy-driven checks)."""
+def rhs_py(t, y, grid, core, iso, par, law, guess):
+    """dy/dt as a new array (for checks); ``guess`` = (T_u, T_c) start of the inversion."""
     diag = np.empty(N_D)
     dy = np.empty(N_Y)
-    rhs(t, y, grid, core, iso, par, law, diag, dy)
+    work = guess.copy()
+    rhs(t, y, grid, core, iso, par, law, work, diag, dy)
     return dy
