@@ -1,0 +1,212 @@
+"""Thermal evolution against handbook values, published ranges, analytic solutions and a scipy reference."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from meltzone.config import PlanetSpec
+from meltzone.constants import GYR, YEAR
+from meltzone.evolution import evolve
+from meltzone.evolution.heating import BSE_MASS, radiogenic_power
+from meltzone.layers import summarize
+
+from reference_evolution import ReferenceModel
+
+
+# ------------------------------------------------------------------ radiogenic heating
+def test_bse_radiogenic_power_today():
+    """Bulk silicate Earth today: 19.9 +- 3.0 TW (McDonough, Sramek & Wipperfurth 2020), from the
+    Turcotte & Schubert (2002, Table 4.2) heat productions and McDonough & Sun 1995 abundances."""
+    assert radiogenic_power(BSE_MASS) == pytest.approx(19.9e12, abs=3.0e12)
+
+
+def test_radiogenic_decay_law():
+    """Each isotope halves over its half-life (Turcotte & Schubert Table 4.2): 4.5 Gyr ago the BSE produced
+    sum_i H_i 2^(4.5 Gyr / t_half,i), computed here independently of the package (~4.8x today, derived)."""
+    today = {"U-238": (9.46e-5, 4.47e9, 20.3e-9 * 0.9927), "U-235": (5.69e-4, 7.04e8, 20.3e-9 * 0.0072),
+             "Th-232": (2.64e-5, 1.40e10, 79.5e-9), "K-40": (2.92e-5, 1.25e9, 240e-6 * 1.19e-4)}
+    then = sum(h * c * 2 ** (4.5e9 / t) for h, t, c in today.values()) * BSE_MASS
+    assert radiogenic_power(BSE_MASS, 4.5 * GYR) == pytest.approx(then, rel=1e-10)
+    assert then / radiogenic_power(BSE_MASS) == pytest.approx(4.8, abs=0.3)
+
+
+# ------------------------------------------------------------------ Earth hindcast
+@pytest.fixture(scope="module")
+def earth():
+    """1 M_E, CMF 0.325, mobile lid, default abundances and parameters (Tosi et al. 2017, A&A 605:A71,
+    Table 1), run to 4.5 Gyr."""
+    return evolve(PlanetSpec(mass_earth=1.0, core_mass_fraction=0.325, regime="mobile-lid", end_time_gyr=4.5))
+
+
+def test_earth_potential_temperature(earth):
+    """Mantle potential temperature today 1350 C (Herzberg, Condie & Korenaga 2010, EPSL 292:79); MORB sources
+    1280-1400 C (Herzberg et al. 2007): the model lands inside 1280-1400 C."""
+    tp_c = earth.history["upper_temperature"][-1] - 273.15
+    assert 1280.0 <= tp_c <= 1400.0
+
+
+def test_earth_cmb_heat_flow(earth):
+    """CMB heat flow 5-15 TW (Lay, Hernlund & Buffett 2008, Nat. Geosci. 1:25)."""
+    assert 5e12 <= earth.history["cmb_heat_flow"][-1] <= 15e12
+
+
+@pytest.mark.xfail(strict=True, reason="boundary-layer scaling with beta = 1/3 equilibrates the mantle with "
+                   "its heating within ~1 Gyr, so today's heat flow is ~31 TW and the Urey ratio ~0.6: the "
+                   "Urey-ratio paradox of classical parameterized convection (Korenaga 2008, Rev. Geophys. "
+                   "46:RG2007); known limitation")
+def test_earth_surface_heat_flow(earth):
+    """Surface heat flow 46 +- 3 TW (Jaupart et al. 2007, Treatise on Geophysics)."""
+    assert 43e12 <= earth.history["surface_heat_flow"][-1] <= 49e12
+
+
+@pytest.mark.xfail(strict=True, reason="see test_earth_surface_heat_flow: classical scaling gives Ur ~0.6")
+def test_earth_urey_ratio(earth):
+    """Bulk Urey ratio ~0.35 (Korenaga 2008); accepted 0.2-0.5."""
+    h = earth.history
+    assert 0.2 <= h["radiogenic_power"][-1] / h["surface_heat_flow"][-1] <= 0.5
+
+
+def test_earth_cools_at_a_plausible_rate(earth):
+    """Potential temperature 1500-1600 C at 2.5-3 Ga (Herzberg et al. 2010): the model is hotter 2 Gyr before
+    the end than at the end, and by less than 300 K."""
+    h = earth.history
+    t = h["time"]
+    then = np.interp(t[-1] - 2.0 * GYR, t, h["upper_temperature"])
+    assert 0.0 < then - h["upper_temperature"][-1] < 300.0
+
+
+# ------------------------------------------------------------------ numerics
+def test_energy_closure(earth):
+    """Stored-heat change equals the integrated (surface loss - radiogenic) to 1e-4 (required); the energy
+    formulation makes it close to round-off."""
+    assert earth.energy_closure <= 1e-4
+    assert np.max(np.abs(earth.history["closure_error"])) <= 1e-9
+
+
+def test_against_scipy_reference():
+    """The numba Dormand-Prince path against a plain NumPy + scipy solve_ivp (LSODA) path in temperature form:
+    upper-mantle temperature within 1e-3 relative over the whole run, core temperature too."""
+    spec = PlanetSpec(mass_earth=1.0, end_time_gyr=4.5, mantle_nodes=128)
+    r = evolve(spec)
+    t_eval = np.geomspace(1e3, r.time[-1], 30)
+    sol = ReferenceModel(spec).run(t_eval)
+    tu = np.interp(t_eval, r.time, r.history["upper_temperature"])
+    tc = np.interp(t_eval, r.time, r.history["core_temperature"])
+    assert np.max(np.abs(tu / sol.y[0] - 1.0)) < 1e-3
+    assert np.max(np.abs(tc / sol.y[1] - 1.0)) < 1e-3
+
+
+def test_tolerance_halving_moves_magma_ocean_end_little():
+    """Halving run.rtol moves the magma-ocean end time by <= 1% (required)."""
+    a = summarize(evolve(mass_earth=1.0, end_time_gyr=0.01))["magma_ocean_end_yr"]
+    b = summarize(evolve(mass_earth=1.0, end_time_gyr=0.01, rtol=5e-8))["magma_ocean_end_yr"]
+    assert a is not None and b is not None
+    assert abs(a / b - 1.0) <= 0.01
+
+
+def test_temperature_step_is_bounded():
+    """No accepted step changes T_u or T_c by more than 1.5 x run.max_temperature_step_k."""
+    r = evolve(mass_earth=2.0, end_time_gyr=1.0, max_temperature_step_k=5.0)
+    for name in ("upper_temperature", "core_temperature"):
+        assert np.max(np.abs(np.diff(r.history[name]))) <= 7.5
+
+
+# ------------------------------------------------------------------ magma ocean
+def test_magma_ocean_bare_surface_lifetime():
+    """Bare radiating Earth-mass planet: the surface reaches the rheological transition after 1e3-1e6 yr, the
+    orders of magnitude of ~1 kyr (Lebrun et al. 2013, JGR Planets 118; from memory) to ~20 kyr for the deep
+    mantle to stiffen (Monteux et al. 2016, EPSL 448:140); this model's single potential temperature makes
+    the whole mantle cool through the final approach, so it sits at the long end."""
+    end = summarize(evolve(mass_earth=1.0, end_time_gyr=0.05))["magma_ocean_end_yr"]
+    assert 1e3 <= end <= 1e6
+
+
+def test_magma_ocean_steam_atmosphere_lasts_longer():
+    """A thick steam atmosphere (1.4e21 kg H2O, ~one ocean, plus CO2) delays the end of the magma ocean
+    (Lebrun et al. 2013: by ~1 Myr; Hamano, Abe & Genda 2013, Nature 497:607: within several Myr beyond the
+    critical distance); accepted 1e5-1e8 yr and longer than the bare planet."""
+    bare = summarize(evolve(mass_earth=1.0, end_time_gyr=0.05))["magma_ocean_end_yr"]
+    steam = summarize(evolve(mass_earth=1.0, end_time_gyr=0.05, atmosphere="grey", water_inventory_kg=1.4e21,
+                             co2_inventory_kg=1.0e20))["magma_ocean_end_yr"]
+    assert steam > bare
+    assert 1e5 <= steam <= 1e8
+
+
+# ------------------------------------------------------------------ conductive lid
+@pytest.fixture(scope="module")
+def lid_run():
+    """Stagnant lid growing on a mantle that neither convects (huge viscosity) nor is heated: pure conduction."""
+    spec = PlanetSpec(mass_earth=1.0, regime="stagnant-lid", upper_temperature_k=1600.0, core_temperature_k=2700.0,
+                      radiogenic_scale=0.0, viscosity_prefactor_pa_s=1e35, end_time_gyr=0.2)
+    return evolve(spec)
+
+
+def test_lid_growth_integral_solution(lid_run):
+    """With no flux from below, rho c (T_u - T_lm) dD/dt = k (T_l - T_s)/D integrates to
+    D^2 = D0^2 + 2 k (T_l - T_s) t / (rho c (T_u - T_lm)) (heat-balance integral, Goodman 1958); the model's
+    lid follows it within 3% (T_u drifts by a few K over the run)."""
+    r = lid_run
+    h = r.history
+    par = r.kernel_inputs[3]
+    from meltzone.evolution import kernel as k
+
+    rho_c = par[k.P_RHO_TOP] * par[k.P_CM]
+    t = h["time"]
+    sel = t > 1e6 * YEAR
+    dt_lid = h["lid_base_temperature"] - h["surface_temperature"]
+    dt_mean = h["upper_temperature"] - 0.5 * (par[k.P_T_EQ] + h["lid_base_temperature"])
+    rate = 2 * par[k.P_K] * dt_lid / (rho_c * dt_mean)
+    d2 = 1e3**2 + np.concatenate([[0.0], np.cumsum(0.5 * (rate[1:] + rate[:-1]) * np.diff(t))])
+    assert np.allclose(h["lid_thickness"][sel], np.sqrt(d2[sel]), rtol=0.03)
+
+
+def test_lid_heat_flow_half_space(lid_run):
+    """The lid's surface heat flow against half-space cooling, q = k (T_l - T_s) / sqrt(pi kappa t)
+    (Turcotte & Schubert, Geodynamics, eq. 4.127), kappa = k / (rho c): within 15% (the linear profile of the
+    integral method is ~3-12% off the error function, Goodman 1958)."""
+    r = lid_run
+    h = r.history
+    par = r.kernel_inputs[3]
+    from meltzone.evolution import kernel as k
+
+    kappa = par[k.P_K] / (par[k.P_RHO_TOP] * par[k.P_CM])
+    area = 4 * math.pi * par[k.P_RADIUS] ** 2
+    t = h["time"]
+    sel = t > 5e6 * YEAR
+    q_model = h["surface_heat_flow"][sel] / area
+    q_half = par[k.P_K] * (h["lid_base_temperature"][sel] - h["surface_temperature"][sel]) / np.sqrt(
+        math.pi * kappa * t[sel])
+    assert np.allclose(q_model, q_half, rtol=0.15)
+
+
+# ------------------------------------------------------------------ super-Earths and inputs
+@pytest.mark.parametrize("mass,regime", [(0.5, "mobile-lid"), (5.0, "stagnant-lid"), (15.0, "mobile-lid")])
+def test_runs_across_the_mass_range(mass, regime):
+    """0.5-15 M_E in both regimes: finishes, finite, closes its budget, cools overall."""
+    r = evolve(mass_earth=mass, regime=regime, end_time_gyr=10.0)
+    h = r.history
+    for name in ("upper_temperature", "core_temperature", "surface_heat_flow", "melt_mass"):
+        assert np.all(np.isfinite(h[name])), name
+    assert r.energy_closure <= 1e-4
+    assert h["upper_temperature"][-1] < h["upper_temperature"][0]
+    assert h["time"][-1] == pytest.approx(10.0 * GYR)
+
+
+def test_default_start_is_fully_molten():
+    """Default initial state: above the liquidus at every mantle node (melt fraction 1 everywhere)."""
+    r = evolve(mass_earth=3.0, end_time_gyr=1e-6)
+    _, phi = r.profile(0)
+    assert np.all(phi[1:-1] == 1.0)
+
+
+def test_evolve_accepts_dict_and_toml(tmp_path):
+    """The API takes a mapping shaped like the TOML file or a TOML path, with the same result."""
+    spec = PlanetSpec({"planet": {"mass_earth": 2.0}, "run": {"end_time_gyr": 0.01}})
+    path = tmp_path / "p.toml"
+    path.write_text(spec.to_toml())
+    a = evolve({"planet": {"mass_earth": 2.0}, "run": {"end_time_gyr": 0.01}})
+    b = evolve(str(path))
+    assert np.array_equal(a.history["upper_temperature"], b.history["upper_temperature"])
