@@ -9,8 +9,8 @@ history and the interior grid.
   several at the next step it *split* (the largest by melt mass keeps the id);
   when several overlap one they *merged* (the id of the largest survives).
   An interval with no predecessor *formed*; a layer with no successor *froze*.
-* Events: formed, froze, split, merged, reached-surface, reached-cmb (per
-  layer), and the regime events magma-ocean-ended (melt fraction at the top of
+* Events: formed, froze, split (its layer is the new piece), merged (its layer
+  is the one absorbed), reached-surface, reached-cmb (per layer), and the regime events magma-ocean-ended (melt fraction at the top of
   the mantle fell below the rheological transition), stagnant-lid-formed,
   inner-core-nucleated and last-melt.
 * Event times of formed, froze, last-melt, magma-ocean-ended and
@@ -153,7 +153,7 @@ def track(result):
                     if i != keep and ids[i] == prev[j][0]:
                         ids[i] = next_id
                         next_id += 1
-                        add_event(t[s], "split", prev[j][0], cur[i][1])
+                        add_event(t[s], "split", ids[i], cur[i][1])
         for i, c in enumerate(cur):
             if ids[i] < 0:
                 ids[i] = next_id

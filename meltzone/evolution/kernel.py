@@ -548,6 +548,42 @@ def find_intervals(phi, grid, step, iv, n_iv, cap):
     return n_iv
 
 
+@njit
+def adiabat_melt_count(tu, grid):
+    """Number of mantle nodes whose adiabatic temperature T_u f(r) is above the solidus."""
+    n = 0
+    for i in range(grid.shape[1]):
+        if tu * grid[G_F, i] > grid[G_TSOL, i]:
+            n += 1
+    return n
+
+
+@njit
+def hermite_extremum(y0, y1, d0, d1, h):
+    """Value of the cubic Hermite interpolant's interior extremum on a step, and whether there is one."""
+    a = 2.0 * (y0 - y1) + h * (d0 + d1)
+    b = 3.0 * (y1 - y0) - h * (2.0 * d0 + d1)
+    c = h * d0
+    best = y0
+    found = False
+    if abs(a) < 1e-300:
+        if abs(b) > 1e-300:
+            s = -c / (2.0 * b)
+            if 0.0 < s < 1.0:
+                best = ((a * s + b) * s + c) * s + y0
+                found = True
+        return best, found
+    disc = b * b - 3.0 * a * c
+    if disc < 0.0:
+        return best, found
+    sq = math.sqrt(disc)
+    for s in ((-b + sq) / (3.0 * a), (-b - sq) / (3.0 * a)):
+        if 0.0 < s < 1.0:
+            best = ((a * s + b) * s + c) * s + y0
+            found = True
+    return best, found
+
+
 # Dormand-Prince 5(4) coefficients (Dormand & Prince 1980, J. Comput. Appl. Math. 6:19)
 C2, C3, C4, C5 = 1.0 / 5.0, 3.0 / 10.0, 4.0 / 5.0, 8.0 / 9.0
 A21 = 1.0 / 5.0
@@ -604,8 +640,10 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
     buffer or max_steps; updates ``state`` in place (so a call can resume) and returns a STATUS_* code.
 
     Error control on the two energies (relative rtol plus rtol times the heat of 1 K) and on the lid
-    (relative plus rtol * 1 km); every step also keeps |dT_u|, |dT_c| <= P_DT_MAX so that no melt layer
-    appears and vanishes unseen between two recorded profiles.
+    (relative plus rtol * 1 km); every step also keeps |dT_u|, |dT_c| <= P_DT_MAX, and a step with a
+    temperature extremum inside it is shortened when the interpolated extremum would change which
+    nodes are above the solidus while neither end shows it, so that no melt layer appears and vanishes
+    unseen between two recorded profiles.
     """
     n = grid.shape[1]
     temp = np.empty(n)
@@ -696,7 +734,24 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
             if e > err:
                 err = e
         big_jump = abs(tu_new - tu) > 1.5 * dt_max or abs(tc_new - tc) > 1.5 * dt_max
-        if err <= 1.0 and not big_jump:
+        # a temperature maximum or minimum inside the step could open and close a melt layer that neither
+        # end of the step shows: compare the adiabat's melt count at the interpolated extremum with the ends
+        unseen = False
+        if err <= 1.0 and not big_jump and h > 1.0:
+            dtu1, dtc1 = temperature_rates(tu_new, tc_new, ynew[Y_LID], k7, grid, core, par, law)
+            if dtu * dtu1 < 0.0:
+                t_ext, found = hermite_extremum(tu, tu_new, dtu, dtu1, h)
+                if found:
+                    n_ext = adiabat_melt_count(t_ext, grid)
+                    if n_ext != adiabat_melt_count(tu, grid) and n_ext != adiabat_melt_count(tu_new, grid):
+                        unseen = True
+            if dtc * dtc1 < 0.0 and not unseen:
+                t_ext, found = hermite_extremum(tc, tc_new, dtc, dtc1, h)
+                if found:
+                    above = t_ext > grid[G_TSOL, 0]
+                    if above != (tc > grid[G_TSOL, 0]) and above != (tc_new > grid[G_TSOL, 0]):
+                        unseen = True
+        if err <= 1.0 and not big_jump and not unseen:
             t = t + h
             for j in range(N_Y):
                 y[j] = ynew[j]
@@ -718,6 +773,8 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
             work[1] = tc
             if big_jump:
                 h = 0.5 * h
+            elif unseen:
+                h = 0.3 * h
             else:
                 h = h * max(0.1, 0.9 * err ** (-0.25))
     _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
