@@ -280,6 +280,31 @@ def _super_earth_solidus(p_gpa):
     return _log_blend(p, _monteux2016(np.minimum(p, SUPER_EARTH_BLEND_GPA[1]), _MONTEUX_SOLIDUS), t_high)
 
 
+#: Pressure window [GPa] over which ``peridotite-mantle`` passes from the low-pressure peridotite curves to
+#: the whole-mantle fits (inside the 0-10 GPa calibration of the former; the two solidi meet within 3 K at
+#: 10 GPa: 2212 K Hirschmann 2000, 2214 K Monteux et al. 2016, derived).
+PERIDOTITE_BLEND_GPA = (5.0, 10.0)
+
+
+def _peridotite_blend(p_gpa, low, high):
+    """exp((1 - w) ln T_low + w ln T_high), w = smoothstep over PERIDOTITE_BLEND_GPA (C1 in value and slope)."""
+    p = np.asarray(p_gpa, dtype=float)
+    p1, p2 = PERIDOTITE_BLEND_GPA
+    w = _smoothstep((p - p1) / (p2 - p1))
+    low_k = low(np.minimum(p, p2))
+    return np.exp((1.0 - w) * np.log(low_k) + w * np.log(high(p)))
+
+
+def _peridotite_mantle_solidus(p_gpa):
+    """Hirschmann 2000 dry peridotite solidus, passing over 5-10 GPa into the whole-mantle solidus."""
+    return _peridotite_blend(p_gpa, _hirschmann2000_solidus, _whole_mantle_solidus)
+
+
+def _peridotite_mantle_liquidus(p_gpa):
+    """Katz et al. 2003 liquidus, passing over 5-10 GPa into the whole-mantle liquidus."""
+    return _peridotite_blend(p_gpa, _katz2003_liquidus, _whole_mantle_liquidus)
+
+
 # ============================================================================ the model object
 @dataclass(frozen=True)
 class MeltingModel:
@@ -357,6 +382,13 @@ _BUILTIN = {
         _MONTEUX_CITATION + "; above 140 GPa extrapolated with the P^0.48 form of Stixrude 2014, "
         "Phil. Trans. R. Soc. A 372:20130076 (tangent join)",
         0.0, HIGH_PRESSURE_MODEL_MAX_PA, WHOLE_MANTLE_VALIDATED_PA, _whole_mantle_solidus, _whole_mantle_liquidus),
+    "peridotite-mantle": MeltingModel(
+        "peridotite-mantle",
+        "solidus Hirschmann 2000, G3 1:2000GC000070 and liquidus Katz, Spiegelman & Langmuir 2003, G3 4:1073 "
+        "below 5 GPa, blended over 5-10 GPa into " + _MONTEUX_CITATION + "; above 140 GPa extrapolated with the "
+        "P^0.48 form of Stixrude 2014, Phil. Trans. R. Soc. A 372:20130076 (tangent join)",
+        0.0, HIGH_PRESSURE_MODEL_MAX_PA, WHOLE_MANTLE_VALIDATED_PA, _peridotite_mantle_solidus,
+        _peridotite_mantle_liquidus),
     "super-earth": MeltingModel(
         "super-earth",
         _MONTEUX_CITATION + "; blended over 140-400 GPa into MgSiO3 melting anchored to Fei et al. 2021, "

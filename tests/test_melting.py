@@ -509,3 +509,29 @@ def test_iron_melting_one_bar_and_depression():
         melting.iron_melting_temperature(-1.0)
     with pytest.raises(ModelError):
         melting.iron_melting_temperature(1e9, -5.0)
+
+
+def test_peridotite_mantle_composite_follows_its_sources():
+    """'peridotite-mantle': Hirschmann 2000 solidus (1393.8 K at 0 GPa, 1930.7 K at 5 GPa; checked) and Katz
+    2003 liquidus below 5 GPa, the Monteux 2016 curves above 10 GPa (4161 / 4764 K at 136 GPa; from memory),
+    continuous and rising in between with solidus < liquidus (no kink: slopes on either side of 5 and 10 GPa
+    within 20%)."""
+    from meltzone import melting
+
+    m = melting.get_model("peridotite-mantle")
+    w = melting.get_model("whole-mantle-sg")
+    k = melting.get_model("katz2003")
+    assert m.solidus(0.0) == pytest.approx(1393.8, abs=0.1)
+    assert m.solidus(5e9) == pytest.approx(1930.7, abs=0.1)
+    assert m.liquidus(3e9) == pytest.approx(k.liquidus(3e9), abs=1e-6)
+    for p in (10e9, 25e9, 136e9, 1e12):
+        assert m.solidus(p) == pytest.approx(w.solidus(p), rel=1e-12)
+        assert m.liquidus(p) == pytest.approx(w.liquidus(p), rel=1e-12)
+    p = np.linspace(0.0, 20e9, 4001)
+    sol, liq = m.solidus(p), m.liquidus(p)
+    assert np.all(np.diff(sol) > 0) and np.all(np.diff(liq) > 0) and np.all(sol < liq)
+    for edge in (5e9, 10e9):
+        for curve in (m.solidus, m.liquidus):
+            below = (curve(edge) - curve(edge - 1e8)) / 1e8
+            above = (curve(edge + 1e8) - curve(edge)) / 1e8
+            assert above == pytest.approx(below, rel=0.2)
