@@ -250,16 +250,13 @@ def _nodes_from_path(path, mass, core_mass, p_surface, t_ref, mantle_nodes, core
         else:
             # each mantle node takes the region whose radial span holds it (upper phase at a boundary)
             mant = ~in_core
-            regs = region[mant]
-            rs = r_all[mant]
-            for ph in np.unique(regs):
+            for ph in np.unique(region[mant]):
                 m_ph = mant & (region == ph)
                 lo_r, hi_r = r_all[m_ph].min(), r_all[m_ph].max()
                 sel = (rq >= lo_r) & (rq <= hi_r)
                 for j, col in enumerate((k.PATH_M, k.PATH_P, k.PATH_T, k.PATH_RHO)):
                     out[sel, j] = interp(rq[sel], m_ph, col)
                 reg[sel] = ph
-            _ = rs
         return out, reg
 
     if r_cmb > 0:

@@ -13,9 +13,8 @@ energies themselves (a conservative formulation) makes the budget close to
 round-off: any Runge-Kutta method preserves the linear invariant
 E_m + E_c + Y_OUT, whatever the kinks of the melt-fraction law.
 
-Physics (sources and validity in :mod:`meltzone.evolution.convection`,
-:mod:`~meltzone.evolution.heating` and :mod:`~meltzone.evolution.surface`,
-which hold the NumPy twins used for documentation, plotting and tests):
+Physics (each law with its source; radiogenic data in :mod:`meltzone.evolution.heating`;
+the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
 
 * boundary-layer scaling q = k dT / D (Ra / Ra_cr)^beta for the upper layer
   (Stevenson, Spohn & Schubert 1983, Icarus 54:466), the bottom layer from the
