@@ -13,25 +13,54 @@ energies themselves (a conservative formulation) makes the budget close to
 round-off: any Runge-Kutta method preserves the linear invariant
 E_m + E_c + Y_OUT, whatever the kinks of the melt-fraction law.
 
-Physics (each law with its source; radiogenic data in :mod:`meltzone.evolution.heating`;
+Physics (each law with its source and range; radiogenic data in :mod:`meltzone.evolution.heating`;
 the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
 
 * boundary-layer scaling q = k dT / D (Ra / Ra_cr)^beta for the upper layer
-  (Stevenson, Spohn & Schubert 1983, Icarus 54:466), the bottom layer from the
-  local critical Rayleigh number, delta_c = (kappa eta_c Ra_cr / (alpha rho g_c dT_c))^(1/3);
-* Arrhenius viscosity eta = A exp[H(P)/(R T)] exp(-alpha_phi phi), H = E + int V dP, below the
-  rheological transition, Einstein-Roscoe suspension eta_liq (1 - phi_x/phi_m)^-2.5
-  above it, blended in log eta over a melt-fraction width of 0.05;
+  (Stevenson, Spohn & Schubert 1983, Icarus 54:466; beta = 1/3 and Ra_cr ~ 500
+  as there, Ra_cr = 450 as in Tosi et al. 2017, A&A 605:A71), valid for
+  Ra >> Ra_cr; the bottom layer from the local critical Rayleigh number,
+  delta_c = (kappa eta_c Ra_cr / (alpha rho g_c dT_c))^(1/3) (same source),
+  capped at half the mantle depth;
+* Arrhenius viscosity eta = A exp[H(P)/(R T)] exp(-alpha_phi phi), H = E + int V dP
+  (form and A, E, V of Tosi et al. 2017, Table 1; melt weakening alpha_phi ~ 26,
+  Mei et al. 2002, EPSL 201:491, from memory), below the rheological transition
+  at phi_c ~ 0.4 (Abe 1997; Solomatov 2015, Treatise on Geophysics 9.04); above
+  it the Einstein-Roscoe suspension eta_liq (1 - phi_x / phi_m)^-2.5 with
+  phi_m = 1 - phi_c (Roscoe 1952, Br. J. Appl. Phys. 3:267; < 10x rise up to 40 vol%
+  crystals, Lejeune & Richet 1995, JGR 100:4215) and a liquid viscosity of
+  ~0.01-0.1 Pa s (Karki & Stixrude 2010, Science 328:740; from memory); the two
+  are blended in log eta over a melt-fraction width of 0.05 (this model's choice,
+  so that the heat flow is continuous across the transition);
+* magma ocean: the same boundary-layer law with the suspension viscosity
+  (soft turbulence, Nu ~ Ra^(1/3); the prefactor Ra_cr^(-1/3) = 0.13 against 0.089
+  in Solomatov's form, from memory);
 * stagnant lid: rheological temperature scale dT_rh = a_rh R T_u^2 / E
-  (Solomatov & Moresi 2000, Phys. Fluids / JGR 105:21795; Grasset & Parmentier 1998),
-  lid growth rho c (T_u - T_lm) dD/dt = -q_u + k (T_l - T_s) / D with T_lm the lid's mean
-  temperature (the usual form has T_l; T_lm keeps the lid's heat content in the budget);
+  (Solomatov & Moresi 2000, JGR 105:21795; a_rh ~ 2.2-2.5, Grasset & Parmentier
+  1998, JGR 103:18171; Thiriet et al. 2019, PEPI 286:138 show several (a_rh, beta)
+  pairs fit equally), lid growth rho c (T_u - T_lm) dD/dt = -q_u + k (T_l - T_s) / D
+  with T_lm the lid's mean temperature (the usual form, e.g. Schubert & Spohn 1990,
+  has T_l; T_lm keeps the lid's heat content in the budget); blended with the
+  magma-ocean top over the same melt-fraction width;
 * surface: the surface temperature balances the flux through the top layer
-  with eps sigma (T_s^4 - T_eq^4), eps = 2 / (tau + 2) for a grey atmosphere;
+  with eps sigma (T_s^4 - T_eq^4), eps = 2 / (tau + 2) (Abe & Matsui 1985;
+  Elkins-Tanton 2008, EPSL 271:181), tau_i = (3 M_i / (8 pi R^2)) sqrt(kappa_i g / (3 P0))
+  with kappa = 0.01 (H2O) and 0.001 (CO2) m^2/kg at P0 = 1 atm (from memory), the
+  atmospheric masses in solubility equilibrium with the melt, X_H2O = 6.8e-8 P^0.7
+  and X_CO2 = 4.4e-12 P (mass fractions, P in Pa; as used by Lebrun et al. 2013,
+  JGR Planets 118; from memory). No condensation: water stays in the atmosphere
+  after the magma ocean (an upper bound on the blanketing);
+* core: adiabatic core of temperature T_c f_core(r), an inner core where it falls
+  below the iron-alloy melting curve, releasing latent and gravitational energy
+  (Stevenson et al. 1983; Labrosse 2015, PEPI 247:36);
 * energy: the stored heat (sensible heat on the adiabat, latent heat of the
   melt, the lid's conductive profile, core sensible heat less the inner core's
   latent and gravitational energy) is one function of (T_u, lid) for the mantle
   and of T_c for the core: dE_m/dt = -Q_surface + Q_cmb + H, dE_c/dt = -Q_cmb.
+
+Known limitation: with beta = 1/3 the mantle equilibrates with its heating within
+~1 Gyr, so an Earth hindcast gives a present heat flow of ~31 TW (46 TW observed)
+and a Urey ratio ~0.6 (Korenaga 2008, Rev. Geophys. 46:RG2007 discuss this paradox).
 """
 
 from __future__ import annotations
