@@ -16,6 +16,9 @@ _LAZY = {
     "Interior": ("meltzone.interior", "Interior"),
     "MeltzoneError": ("meltzone.errors", "MeltzoneError"),
     "ConfigError": ("meltzone.errors", "ConfigError"),
+    "evolve": ("meltzone.evolution", "evolve"),
+    "Result": ("meltzone.results", "Result"),
+    "load": ("meltzone.results", "load"),
 }
 
 __all__ = sorted(_LAZY) + ["__version__"]

@@ -220,17 +220,291 @@ def demo_config_path():
     return files("meltzone") / "data" / "demo.toml"
 
 
+# ---------------------------------------------------------------- run, summary, layers, plot
+def _progress_callback(end_time_s: float, min_wall_s: float = 1.0):
+    """A progress callback for :func:`meltzone.evolution.evolve` that draws a one-line bar of the model time
+    reached (log scale) on stderr, only when stderr is a terminal and the run has lasted ``min_wall_s``.
+    Returns (callback or None, finish)."""
+    import math
+    import time
+
+    if not click.get_text_stream("stderr").isatty():
+        return None, lambda: None
+    from .constants import YEAR
+    from .plot import format_years
+
+    start = time.perf_counter()
+    shown = [False]
+    end_yr = end_time_s / YEAR
+
+    def callback(t_s: float) -> None:
+        if time.perf_counter() - start < min_wall_s:
+            return
+        frac = min(math.log10(1.0 + t_s / YEAR) / math.log10(1.0 + end_yr), 1.0) if end_yr > 0 else 1.0
+        bar = "#" * int(round(30 * frac))
+        click.echo(f"\r  model time {format_years(t_s / YEAR):>10} of {format_years(end_yr)} [{bar:<30}]",
+                   err=True, nl=False)
+        shown[0] = True
+
+    def finish() -> None:
+        if shown[0]:
+            click.echo("", err=True)
+
+    return callback, finish
+
+
+def _km(m) -> str:
+    return "-" if m is None or m != m else f"{m / 1e3:,.0f}"
+
+
+def _gpa(pa) -> str:
+    from .constants import GPA
+
+    return "-" if pa is None or pa != pa else f"{pa / GPA:,.1f}"
+
+
+def _layer_spans(result) -> list[dict]:
+    """One entry per layer id: first and last time [s] (formed / froze or merged event when there is one),
+    whether it is still molten at the end, shallowest and deepest depth [m], largest melt fraction."""
+    import numpy as np
+
+    table, events = result.tracked()
+    t_end = result.time[-1]
+    spans = []
+    for lid in dict.fromkeys(int(x) for x in table["layer"]):
+        rows = table["layer"] == lid
+        start = [e["time"] for e in events if e["layer"] == lid and e["kind"] == "formed"]
+        stop = [e["time"] for e in events if e["layer"] == lid and e["kind"] in ("froze", "merged")]
+        alive = bool(table["time"][rows][-1] == t_end) and not stop
+        first = start[0] if start else float(table["time"][rows][0])
+        last = stop[0] if stop else float(table["time"][rows][-1])
+        spans.append({"layer": lid, "first_s": first, "last_s": last, "alive": alive,
+                      "top_depth_m": float(np.min(table["top_depth"][rows])),
+                      "bottom_depth_m": float(np.max(table["bottom_depth"][rows])),
+                      "max_melt_fraction": float(np.max(table["max_melt_fraction"][rows]))})
+    return spans
+
+
+def _layer_lines(result) -> list[str]:
+    from .constants import YEAR
+    from .plot import format_years
+
+    spans = _layer_spans(result)
+    lines = [f"melt layers ({len(spans)})",
+             f"  {'id':>3}  {'first':>10}  {'last':>10}  {'lifetime':>10}  {'depth [km]':>17}  {'max melt':>8}"]
+    for s in spans:
+        last = "end of run" if s["alive"] else format_years(s["last_s"] / YEAR)
+        life = format_years((s["last_s"] - s["first_s"]) / YEAR) + ("+" if s["alive"] else "")
+        lines.append(f"  {s['layer']:>3}  {format_years(s['first_s'] / YEAR):>10}  {last:>10}  {life:>10}  "
+                     f"{_km(s['top_depth_m']):>7} - {_km(s['bottom_depth_m']):>7}  {s['max_melt_fraction']:>8.2f}")
+    if not spans:
+        lines.append("  (no melt at any step)")
+    return lines
+
+
+def _event_lines(events) -> list[str]:
+    from .constants import YEAR
+    from .plot import format_years
+
+    lines = [f"events ({len(events)})",
+             f"  {'time':>10}  {'kind':<21}{'layer':>5}  {'depth [km]':>10}  {'P [GPa]':>8}"]
+    for e in events:
+        layer = str(e["layer"]) if e["layer"] >= 0 else "-"
+        lines.append(f"  {format_years(e['time'] / YEAR):>10}  {e['kind']:<21}{layer:>5}  {_km(e['depth']):>10}  "
+                     f"{_gpa(e['pressure']):>8}")
+    return lines
+
+
+def _flag_lines(zones) -> list[str]:
+    lines = [f"flagged zones ({len(zones)}): depths resting on theory or extrapolated laws",
+             f"  {'kind':<21}{'confidence':<11}{'depth [km]':>17}  {'P [GPa]':>17}  what"]
+    for z in zones:
+        lines.append(f"  {z['kind']:<21}{z['confidence']:<11}{_km(z['top_depth_m']):>7} - {_km(z['bottom_depth_m']):>7}"
+                     f"  {_gpa(z['top_pressure_pa']):>7} - {_gpa(z['bottom_pressure_pa']):>7}  {z['what']}")
+    if not zones:
+        lines.append("  (none)")
+    return lines
+
+
+def _head_lines(result, s: dict) -> list[str]:
+    from .constants import EARTH_MASS, EARTH_RADIUS, YEAR
+    from .plot import format_years
+
+    it = result.interior
+    spec = result.spec
+    mo = s["magma_ocean_end_yr"]
+    if mo is None:
+        mo_text = "still present at the end of the run"
+    elif mo == 0.0:
+        mo_text = "none (the run starts below the rheological transition)"
+    else:
+        mo_text = f"ends after {format_years(mo)}"
+    last = s["last_melt_yr"]
+    last_text = "melt remains at the end of the run" if last is None else f"last melt froze at {format_years(last)}"
+    b = s["basal_layer"]
+    if b is None:
+        basal = "none"
+    else:
+        until = "outlives the run" if b["end_yr"] is None else f"until {format_years(b['end_yr'])}"
+        thick = (f"up to {b['max_thickness_m'] / 1e3:,.3g} km thick" if b["max_thickness_m"] > 0.0
+                 else "one grid node thick")
+        basal = f"layer {b['layer']} from {format_years(b['start_yr'])}, {until}, {thick}"
+    return [
+        f"planet            {spec.planet.name}: {it.mass / EARTH_MASS:.4g} M_E, core mass fraction "
+        f"{it.core_mass / it.mass:.3g}",
+        f"interior          radius {it.radius / 1e3:,.0f} km ({it.radius / EARTH_RADIUS:.3f} R_E), CMB pressure "
+        f"{_gpa(it.cmb_pressure)} GPa, core radius {it.core_radius / 1e3:,.0f} km",
+        f"evolution         {format_years(result.time[-1] / YEAR)} in {result.n_steps} steps "
+        f"({result.wall_time_s:.2g} s), {spec.convection.regime}, melting model {result.melting_model}",
+        f"magma ocean       {mo_text}",
+        f"partial melt      {last_text}; deepest melt {_km(s['max_melt_depth_m'])} km "
+        f"({_gpa(s['max_melt_pressure_pa'])} GPa)",
+        f"basal melt layer  {basal}",
+        f"at the end        T_u {s['final_upper_temperature_k']:,.0f} K, surface heat flow "
+        f"{s['final_surface_heat_flow_w'] / 1e12:,.3g} TW, CMB heat flow {s['final_cmb_heat_flow_w'] / 1e12:,.3g} TW, "
+        f"inner core {s['inner_core_radius_m'] / 1e3:,.0f} km",
+        f"energy closure    {s['energy_closure']:.2e} (relative error of the energy budget)",
+    ]
+
+
+def _note_lines(zones) -> list[str]:
+    from .results import MODEL_NOTE
+
+    parts = []
+    for kind in dict.fromkeys(z["kind"] for z in zones):
+        if kind == "predicted-transition":
+            continue
+        zs = [z for z in zones if z["kind"] == kind]
+        top = min(zs, key=lambda z: z["top_depth_m"])
+        parts.append(f"{kind} below {_km(top['top_depth_m'])} km (> {_gpa(top['top_pressure_pa'])} GPa)")
+    text = MODEL_NOTE
+    if parts:
+        text += " Extrapolated or predicted: " + "; ".join(parts) + "."
+    return [text]
+
+
+def _json_safe(obj):
+    """NaN and infinities -> None, so that the JSON output stays standard."""
+    import math
+
+    if isinstance(obj, float):
+        return obj if math.isfinite(obj) else None
+    if isinstance(obj, dict):
+        return {k: _json_safe(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [_json_safe(v) for v in obj]
+    return obj
+
+
 @main.command()
 @click.argument("config_file", required=False, type=click.Path(dir_okay=False))
-@click.option("--set", "overrides", multiple=True, metavar="SECTION.KEY=VALUE", help="Override one config key.")
+@click.option("--set", "overrides", multiple=True, metavar="SECTION.KEY=VALUE",
+              help="Override one config key (repeatable), e.g. --set run.end_time_gyr=2.")
+@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None,
+              help="Results file (HDF5). Default: <config stem>.h5, or meltzone-demo.h5 for the demo planet.")
+@click.option("--json", "as_json", is_flag=True, help="Print the run's summary as JSON (SI, times in years).")
 @_user_errors
-def run(config_file, overrides):
-    """Run the main job on CONFIG_FILE (default: the built-in demo planet)."""
+def run(config_file, overrides, output, as_json):
+    """Evolve a planet, find its melt layers and write the results file.
+
+    CONFIG_FILE is a TOML planet configuration (see `meltzone config --example`); without it the
+    built-in demo planet (an invented one) is run.
+    """
+    from pathlib import Path
+
     from .config import PlanetSpec
-    from .interior import build_interior
+    from .constants import GYR
+    from .evolution import evolve
+    from .results import write
 
     spec = PlanetSpec.from_toml(config_file or str(demo_config_path()), list(overrides))
-    click.echo(_interior_report(build_interior(spec), spec))
+    out = Path(output) if output else Path(f"{Path(config_file).stem}.h5" if config_file else "meltzone-demo.h5")
+    if not out.parent.resolve().is_dir():
+        raise click.BadParameter(f"folder {str(out.parent)!r} does not exist", param_hint="--output")
+    callback, finish = _progress_callback(spec.run.end_time_gyr * GYR)
+    try:
+        result = evolve(spec, progress=callback)
+    finally:
+        finish()
+    write(result, out)
+    summary = result.summary()
+    if as_json:
+        _echo_json(_json_safe({**summary, "file": str(out)}))
+        return
+    zones = result.flags()
+    lines = [*_head_lines(result, summary), "", *_layer_lines(result), "", *_event_lines(result.tracked()[1]), "",
+             *_flag_lines(zones), "", f"wrote {out}", *_note_lines(zones)]
+    click.echo("\n".join(lines))
+
+
+@main.command("summary")
+@click.argument("path", type=click.Path(dir_okay=False))
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object (SI, times in years).")
+@_user_errors
+def summary_command(path, as_json):
+    """Summarize a results file (a run, or a sweep)."""
+    from . import results
+
+    if results.file_kind(path) == "sweep":
+        _sweep_module("print_summary").print_summary(path, as_json)
+        return
+    result = results.load(path)
+    summary = result.summary()
+    if as_json:
+        _echo_json(_json_safe(summary))
+    else:
+        click.echo("\n".join([*_head_lines(result, summary), "", *_note_lines(result.flags())]))
+
+
+@main.command("layers")
+@click.argument("path", type=click.Path(dir_okay=False))
+@_user_errors
+def layers_command(path):
+    """Print the melt-layer table and the event table of a run file."""
+    from . import results
+
+    result = results.load(path)
+    click.echo("\n".join([*_layer_lines(result), "", *_event_lines(result.tracked()[1]), "",
+                          *_note_lines(result.flags())]))
+
+
+def _sweep_module(name: str):
+    import importlib
+
+    try:
+        sweep = importlib.import_module("meltzone.sweep")
+    except ImportError as exc:
+        raise click.UsageError(f"this file is a sweep, but meltzone.sweep cannot be imported ({exc})") from None
+    if not hasattr(sweep, name):
+        raise click.UsageError(f"this file is a sweep, but meltzone.sweep has no {name}()")
+    return sweep
+
+
+@main.command("plot")
+@click.argument("path", type=click.Path(dir_okay=False))
+@click.option("--figure", default="meltmap", show_default=True, metavar="NAME",
+              help="Run files: meltmap (melt fraction against time and depth), profiles (temperature profiles) or "
+                   "history (time series). Sweep files: see the sweep documentation.")
+@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None,
+              help="Figure file, .png, .pdf or .svg by its suffix. Default: <FILE stem>-<figure>.png.")
+@_user_errors
+def plot_command(path, figure, output):
+    """Draw a figure from a results file."""
+    from pathlib import Path
+
+    from . import results
+    from .plot import RUN_FIGURES, _figure_format, plot_run
+
+    out = Path(output) if output else Path(f"{Path(path).stem}-{figure}.png")
+    _figure_format(out)
+    if results.file_kind(path) == "sweep":
+        _sweep_module("plot_sweep").plot_sweep(path, figure, out)
+    else:
+        if figure not in RUN_FIGURES:
+            raise click.BadParameter(f"{figure!r} is not a run figure; choose one of {', '.join(RUN_FIGURES)}",
+                                     param_hint="--figure")
+        plot_run(results.load(path), figure, out)
+    click.echo(f"wrote {out}")
 
 
 @main.command()
@@ -245,6 +519,52 @@ def config(example):
     click.echo("# meltzone planet configuration: every key with its unit, allowed values and default.\n"
                "# Values are SI unless the key's name or comment says otherwise.\n")
     click.echo(PlanetSpec().to_toml(comments=True))
+
+
+@main.command("sweep")
+@click.argument("spec", required=False, type=click.Path(dir_okay=False))
+@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None, help="Sweep file to write (HDF5).")
+@click.option("--workers", type=click.IntRange(min=1), default=None,
+              help="Local process pool of N workers (default: one per core).")
+@click.option("--dask-local", "dask_local", type=click.IntRange(min=1), default=None, metavar="N",
+              help="Start a Dask LocalCluster of N worker processes (1 thread each) on 127.0.0.1.")
+@click.option("--scheduler", default=None, metavar="ADDRESS",
+              help="Connect to a running Dask scheduler, e.g. tcp://10.0.0.5:8786 (SLURM/PBS via dask-jobqueue).")
+@click.option("--resume", is_flag=True, help="Finish an interrupted sweep: run only the cases not checkpointed.")
+@click.option("--keep-detail", is_flag=True, help="Also keep each case's full run file in OUTPUT.detail/.")
+@click.option("--checkpoint-every", type=click.IntRange(min=1), default=64, show_default=True, metavar="N",
+              help="Write a checkpoint batch after N finished cases (and at least every 5 s).")
+@click.option("--example", is_flag=True, help="Print a commented sweep spec and exit.")
+@_user_errors
+def sweep_command(spec, output, workers, dask_local, scheduler, resume, keep_detail, checkpoint_every, example):
+    """Run a parameter study (grid, Latin hypercube, Sobol', Monte Carlo or observed planet) from SPEC."""
+    if example:
+        from .sweep import EXAMPLE_SPEC
+
+        click.echo(EXAMPLE_SPEC, nl=False)
+        return
+    if spec is None:
+        raise click.UsageError("give a sweep SPEC file (see `meltzone sweep --example`)")
+    if output is None:
+        raise click.UsageError("give the output file with -o OUT.h5")
+    chosen = [name for name, v in (("--workers", workers), ("--dask-local", dask_local),
+                                   ("--scheduler", scheduler)) if v is not None]
+    if len(chosen) > 1:
+        raise click.UsageError(f"choose one executor: {' and '.join(chosen)} exclude each other")
+    from .sweep import progress_path, run_sweep
+
+    executor, n = None, workers
+    if dask_local is not None:
+        executor, n = "dask-local", dask_local
+    try:
+        report = run_sweep(spec, output, executor=executor, workers=n, resume=resume, keep_detail=keep_detail,
+                           scheduler=scheduler, checkpoint_every=checkpoint_every)
+    except KeyboardInterrupt:
+        click.echo(f"\ninterrupted: finished cases are checkpointed in {progress_path(output)}; "
+                   "re-run with --resume to finish", err=True)
+        sys.exit(130)
+    click.echo(report.line())
+    click.echo(f"summary: meltzone summary {output}")
 
 
 if __name__ == "__main__":  # pragma: no cover

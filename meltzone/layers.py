@@ -278,13 +278,11 @@ def basal_layer(result, table, events):
 
     Returns None or {start_yr, end_yr, max_thickness_m} (end_yr None if it outlives the run)."""
     it = result.interior
-    top_node = len(it.r[it.mantle]) - 1
     cmb_depth = it.radius - it.core_radius
     if not len(table["layer"]):
         return None
     basal_rows = (np.isclose(table["bottom_depth"], cmb_depth, rtol=0, atol=1.0)
                   & (table["top_depth"] > 0.0))
-    _ = top_node
     if not np.any(basal_rows):
         return None
     first = int(np.argmax(basal_rows))

@@ -154,7 +154,7 @@ def run_kernel(grid, core, iso, par, law, y0, t_guess, max_steps, progress=None)
     state[1:1 + k.N_Y] = y0
     state[5] = 1.0  # first step [s]; the controller grows it
     state[9], state[10] = t_guess
-    chunk = 2000 if progress is not None else max_steps
+    chunk = 100 if progress is not None else max_steps
     done = 0
     while True:
         status = k.integrate(state, grid, core, iso, par, law, hist, iv, min(chunk, max_steps - done))
@@ -185,7 +185,7 @@ def evolve(config=None, *, progress=None, **kwargs):
 
     ``config``: a PlanetSpec, a mapping shaped like the TOML file, a TOML path, or None (defaults;
     flat keyword overrides such as ``mass_earth=4`` are accepted). ``progress``, if given, is called
-    with the model time reached [s] every 2000 steps.
+    with the model time reached [s] every 100 steps.
     """
     from ..results import Result
 

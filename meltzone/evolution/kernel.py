@@ -651,7 +651,10 @@ def record(t, y, tu, tc, dy, diag, grid, core, par, law, hist, n_h, iv, n_iv, te
     hist[n_h, H_DELTA_U] = diag[D_DELTA_U]
     hist[n_h, H_DELTA_C] = diag[D_DELTA_C]
     hist[n_h, H_TL] = diag[D_TL]
-    hist[n_h, H_E_STORED] = y[Y_EM] + y[Y_EC]
+    # recomputed from the temperatures (not copied from the state), so the closure check also tests the
+    # inversion of the stored-heat functions
+    hist[n_h, H_E_STORED] = mantle_energy(tu, max(y[Y_LID], 0.0) if par[P_STAGNANT] > 0.5 else 0.0, grid, par,
+                                          law) + core_energy(tc, core, par)
     hist[n_h, H_DTU] = dtu
     hist[n_h, H_DTC] = dtc
     hist[n_h, H_DLID] = dy[Y_LID] if stagnant else 0.0

@@ -1,0 +1,311 @@
+"""The HDF5 run file: read back by general-purpose libraries (xarray + h5netcdf, h5py, tomllib, datetime),
+lossless round trip, atomic writes that survive a SIGKILL, clear errors for foreign files.
+
+The oracles are outside meltzone: xarray's netCDF-4 reader decides whether the dimensions are named, h5py's
+dimension-scale API decides whether every axis has a scale, the standard library parses the stored TOML and
+time stamp, and the operating system kills the writer.
+"""
+
+import datetime
+import hashlib
+import os
+import signal
+import subprocess
+import sys
+import textwrap
+import tomllib
+
+import h5py
+import numpy as np
+import pytest
+import xarray as xr
+
+import meltzone
+from meltzone import layers, results
+from meltzone.errors import ResultsFileError
+
+GROUPS = {  # group -> dimensions it must have (named, as xarray reports them)
+    "structure": {"node", "material"},
+    "history": {"step"},
+    "intervals": {"interval"},
+    "layers": {"row"},
+    "events": {"event"},
+    "snapshots": {"snapshot", "mantle_node"},
+    "flags": {"flag"},
+    "kernel": {"grid_row", "mantle_node", "core_row", "core_node", "isotope", "isotope_column", "parameter"},
+}
+NETCDF_MARKER = b"This is a netCDF dimension but not a netCDF variable."
+
+
+@pytest.fixture(scope="module")
+def run():
+    """A small run: 1 Earth mass, 0.5 Gyr, coarse mantle grid."""
+    return meltzone.evolve(None, mass_earth=1.0, end_time_gyr=0.5, mantle_nodes=64, name="Test-1 b (invented)")
+
+
+@pytest.fixture(scope="module")
+def run_file(run, tmp_path_factory):
+    return results.write(run, tmp_path_factory.mktemp("run") / "run.h5")
+
+
+def _digest(path):
+    return hashlib.sha256(path.read_bytes()).hexdigest()
+
+
+# ---------------------------------------------------------------- read by other libraries
+@pytest.mark.parametrize("group", sorted(GROUPS))
+def test_xarray_opens_every_group_with_named_dimensions(run_file, group):
+    """xarray (h5netcdf engine) names every dimension after its scale: no phony_dim_* anywhere."""
+    with xr.open_dataset(run_file, engine="h5netcdf", group=group) as ds:
+        assert set(ds.sizes) == GROUPS[group]
+        for name, var in ds.variables.items():
+            assert not any(d.startswith("phony_dim") for d in var.dims), name
+            assert "units" in var.attrs and "long_name" in var.attrs, name
+
+
+def test_xarray_reads_times_as_seconds_and_auxiliary_coordinates(run, run_file):
+    """Times stay float64 seconds (units "s" is not decoded to timedeltas); time and radius are coordinates."""
+    with xr.open_dataset(run_file, engine="h5netcdf", group="history") as ds:
+        assert "time" in ds.coords and ds["time"].dtype == np.float64 and ds["time"].attrs["units"] == "s"
+        np.testing.assert_array_equal(ds["time"].values, run.time)
+        np.testing.assert_array_equal(ds["upper_temperature"].values, run.history["upper_temperature"])
+    with xr.open_dataset(run_file, engine="h5netcdf", group="structure") as ds:
+        assert "radius" in ds.coords
+        np.testing.assert_array_equal(ds["pressure"].values, run.interior.P)
+    with xr.open_dataset(run_file, engine="h5netcdf", group="snapshots") as ds:
+        assert {"snapshot_time", "mantle_radius"} <= set(ds.coords)
+        assert ds["temperature"].dims == ("snapshot", "mantle_node")
+        assert ds["snapshot_time"].dtype == np.float64
+
+
+def test_every_axis_has_a_scale_and_every_dataset_units(run_file):
+    """h5py walk: each dataset is a dimension scale or has a scale attached to each of its axes; all carry
+    `units` and `long_name` (netCDF marker dimensions, which hold no data, would be exempt)."""
+    seen = []
+
+    def visit(name, obj):
+        if not isinstance(obj, h5py.Dataset):
+            return
+        seen.append(name)
+        if obj.is_scale:
+            if obj.attrs.get("NAME", b"").startswith(NETCDF_MARKER):
+                return
+        else:
+            for axis in range(obj.ndim):
+                assert len(obj.dims[axis]) >= 1, f"{name}: axis {axis} has no dimension scale"
+        assert "units" in obj.attrs, f"{name} has no units"
+        assert "long_name" in obj.attrs, f"{name} has no long_name"
+
+    with h5py.File(run_file, "r") as f:
+        f.visititems(visit)
+        assert set(f) == set(GROUPS)
+    assert len(seen) > 100
+
+
+def test_root_attributes(run, run_file):
+    """The root holds kind, schema, version, a UTC ISO time, the config as TOML and the sources."""
+    with h5py.File(run_file, "r") as f:
+        a = f.attrs
+        assert a["meltzone_kind"] == "run" and a["schema_version"] == results.SCHEMA_VERSION
+        assert a["meltzone_version"] == meltzone.__version__
+        created = datetime.datetime.fromisoformat(a["created_utc"])
+        assert created.utcoffset() == datetime.timedelta(0)
+        assert abs((datetime.datetime.now(datetime.timezone.utc) - created).total_seconds()) < 3600
+        config = tomllib.loads(a["config_toml"])  # the standard library parses it
+        sources = [str(s) for s in a["sources"]]
+    assert meltzone.PlanetSpec(config) == run.spec
+    from meltzone.melting import get_model
+
+    assert any(get_model(run.melting_model).citation in s for s in sources)
+    for mat in run.interior.materials:
+        assert any(mat.source in s for s in sources)
+    assert any("Tosi et al. 2017" in s for s in sources)  # cited in the meltzone.evolution docstring
+
+
+def test_citations_in_docstrings():
+    """The docstring citation finder on written-out forms (journal with volume:page, a book)."""
+    text = ("boundary layers (Stevenson, Spohn & Schubert 1983, Icarus 54:466), defaults after Tosi et al. 2017 "
+            "(A&A 605:A71, Table 1), a lid (Solomatov & Moresi 2000) and Turcotte & Schubert, Geodynamics "
+            "(2nd ed. 2002, Cambridge).")
+    assert results._citations(text) == ["Stevenson, Spohn & Schubert 1983, Icarus 54:466",
+                                        "Tosi et al. 2017, A&A 605:A71", "Solomatov & Moresi 2000",
+                                        "Turcotte & Schubert, Geodynamics (2nd ed. 2002)"]
+
+
+# ---------------------------------------------------------------- round trip
+def test_round_trip_is_lossless(run, run_file):
+    loaded = meltzone.load(run_file)
+    assert isinstance(loaded, meltzone.Result)
+    for group, a, b in (("history", run.history, loaded.history), ("intervals", run.intervals, loaded.intervals)):
+        assert set(a) == set(b), group
+        for name in a:
+            assert b[name].dtype == a[name].dtype and np.array_equal(a[name], b[name]), f"{group}/{name}"
+    for attr in ("r", "m", "P", "rho", "g", "phase", "T_ref", "adiabat"):
+        x, y = getattr(run.interior, attr), getattr(loaded.interior, attr)
+        assert y.dtype == x.dtype and np.array_equal(x, y), attr
+    for attr, _, _ in results.STRUCTURE_SCALARS.values():
+        x, y = getattr(run.interior, attr), getattr(loaded.interior, attr)
+        assert type(y) is type(x) and y == x, attr
+    assert loaded.interior.materials == run.interior.materials
+    for x, y in zip(run.kernel_inputs, loaded.kernel_inputs):
+        assert np.array_equal(x, y)
+    assert loaded.spec == run.spec
+    assert (loaded.melting_model, loaded.energy_closure, loaded.n_steps, loaded.n_rejected) == \
+        (run.melting_model, run.energy_closure, run.n_steps, run.n_rejected)
+    for step in (0, len(run.time) // 2, len(run.time) - 1):  # a loaded Result rebuilds profiles
+        for x, y in zip(run.profile(step), loaded.profile(step)):
+            assert np.array_equal(x, y)
+
+
+def test_loaded_layers_events_flags_and_snapshots(run, run_file):
+    loaded = meltzone.load(run_file)
+    table, events = run.tracked()
+    lt, le = loaded.tracked()
+    assert set(lt) == set(table) and all(np.array_equal(lt[k], table[k], equal_nan=True) for k in table)
+    assert len(le) == len(events)
+    for key in ("time", "kind", "layer", "depth", "pressure"):
+        assert np.array_equal(np.array([e[key] for e in le]), np.array([e[key] for e in events]),
+                              equal_nan=key in ("depth", "pressure")), key
+    # the file is the record, and it agrees with tracking the loaded run afresh
+    fresh_table, fresh_events = layers.track(loaded)
+    assert all(np.array_equal(fresh_table[k], table[k], equal_nan=True) for k in table)
+    assert [e["kind"] for e in fresh_events] == [e["kind"] for e in events]
+    assert loaded.summary() == run.summary()
+    assert [z["kind"] for z in loaded.flags()] == [z["kind"] for z in run.flags()]
+    snaps = loaded.snapshots()
+    np.testing.assert_array_equal(snaps["temperature"], run.snapshots()["temperature"])
+
+
+def test_default_snapshots_are_log_spaced_plus_events(run):
+    snaps = run.snapshots()
+    t = snaps["time"]
+    assert np.all(np.diff(t) > 0) and t[0] == run.time[0] and t[-1] == run.time[-1]
+    assert np.sum(snaps["label"] == "log-spaced") >= results.DEFAULT_SNAPSHOTS - 4
+    for e in run.tracked()[1]:
+        assert e["time"] in t
+    # at a stored step the snapshot is the step's own profile
+    np.testing.assert_array_equal(snaps["temperature"][-1], run.profile(len(run.time) - 1)[0])
+    assert snaps["temperature"].shape == (len(t), run.kernel_inputs[0].shape[1])
+
+
+def test_custom_snapshot_times(run, tmp_path):
+    times = [run.time[-1] / 3, run.time[-1] / 2]
+    path = results.write(run, tmp_path / "custom.h5", snapshot_times=times)
+    with xr.open_dataset(path, engine="h5netcdf", group="snapshots") as ds:
+        np.testing.assert_array_equal(ds["snapshot_time"].values, times)
+
+
+# ---------------------------------------------------------------- kinds and foreign files
+def test_file_kind(run_file, tmp_path):
+    assert results.file_kind(run_file) == "run"
+    sweep = tmp_path / "sweep.h5"
+    with h5py.File(sweep, "w") as f:
+        f.attrs["meltzone_kind"] = "sweep"
+    assert results.file_kind(sweep) == "sweep"
+    with pytest.raises(ResultsFileError, match="sweep file, not a single run"):
+        results.load(sweep)
+
+
+def _foreign(tmp_path, run_file):
+    text = tmp_path / "notes.h5"
+    text.write_text("not HDF5 at all\n")
+    empty = tmp_path / "empty.h5"
+    empty.write_bytes(b"")
+    other = tmp_path / "other.h5"
+    with h5py.File(other, "w") as f:
+        f["x"] = np.arange(3)
+    newer = tmp_path / "newer.h5"
+    newer.write_bytes(run_file.read_bytes())
+    with h5py.File(newer, "a") as f:
+        f.attrs["schema_version"] = 99
+    damaged = tmp_path / "damaged.h5"
+    damaged.write_bytes(run_file.read_bytes())
+    with h5py.File(damaged, "a") as f:
+        del f["kernel"]
+    return {"not HDF5": (text, "not a readable HDF5"), "empty": (empty, "not a readable HDF5"),
+            "foreign": (other, "not a meltzone file"), "schema": (newer, "schema version 99"),
+            "damaged": (damaged, "damaged or incomplete"), "missing": (tmp_path / "nope.h5", "no such file"),
+            "folder": (tmp_path, "not a readable HDF5")}
+
+
+def test_foreign_and_unreadable_files_raise_one_line(tmp_path, run_file):
+    for label, (path, words) in _foreign(tmp_path, run_file).items():
+        with pytest.raises(ResultsFileError) as info:
+            results.load(path)
+        assert words in str(info.value), label
+        assert "\n" not in str(info.value), label
+    with pytest.raises(ResultsFileError, match="not a meltzone file"):
+        results.file_kind(tmp_path / "other.h5")
+
+
+# ---------------------------------------------------------------- atomic writes
+WRITER = textwrap.dedent("""
+    import sys, time
+    import numpy as np
+    from meltzone.results import atomic_h5, write_coordinate, write_variable
+    with atomic_h5(sys.argv[1]) as f:
+        f.attrs["meltzone_kind"] = "run"
+        write_coordinate(f, "i", np.arange(1_000_000), "1", "index")
+        for k in range(600):
+            write_variable(f, f"v{k}", np.random.default_rng(k).random(1_000_000), ("i",), "1", "noise")
+            f.flush()
+            if k == 1:
+                print("writing", flush=True)
+            time.sleep(0.05)
+""")
+
+
+def _kill_writer_midway(target):
+    proc = subprocess.Popen([sys.executable, "-c", WRITER, str(target)], stdout=subprocess.PIPE, text=True)
+    try:
+        assert proc.stdout.readline().strip() == "writing"
+        parts = [p for p in os.listdir(target.parent) if p.startswith("." + target.name) and p.endswith(".part")]
+        assert parts, "the writer should be writing to a temporary file"
+        os.kill(proc.pid, signal.SIGKILL)
+        proc.wait(timeout=30)
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+            proc.wait()
+    assert proc.returncode == -signal.SIGKILL
+    return parts
+
+
+def test_killed_writer_leaves_no_file_under_the_final_name(tmp_path):
+    target = tmp_path / "big.h5"
+    parts = _kill_writer_midway(target)
+    assert not target.exists()
+    assert target.name not in parts  # the half-written data sits only under the temporary name
+
+
+def test_killed_writer_keeps_the_previous_complete_file(run, run_file, tmp_path):
+    target = tmp_path / "run.h5"
+    target.write_bytes(run_file.read_bytes())
+    before = _digest(target)
+    _kill_writer_midway(target)
+    assert _digest(target) == before
+    loaded = meltzone.load(target)  # still a complete, readable run
+    assert np.array_equal(loaded.time, run.time)
+
+
+def test_failed_write_removes_its_temporary(run, tmp_path, monkeypatch):
+    """An exception inside the write leaves neither the final file nor the temporary behind."""
+    target = tmp_path / "fail.h5"
+    table, events = run.tracked()
+    monkeypatch.setitem(run._cache, "tracked", ({**table, "mystery": table["time"]}, events))
+    with pytest.raises(ValueError, match="mystery"):
+        results.write(run, target)
+    assert os.listdir(tmp_path) == []
+
+
+def test_written_file_is_world_readable_and_missing_folder_fails(run, run_file, tmp_path):
+    assert os.stat(run_file).st_mode & 0o044 == 0o044  # not the 0600 of mkstemp
+    with pytest.raises(ResultsFileError, match="cannot write"):
+        results.write(run, tmp_path / "no" / "such" / "folder.h5")
+
+
+def test_lazy_public_api():
+    assert meltzone.load is results.load and meltzone.Result is results.Result
+    from meltzone.evolution import evolve
+
+    assert meltzone.evolve is evolve
