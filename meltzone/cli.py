@@ -32,7 +32,13 @@ def _user_errors(func):
 
 
 def _show_warnings():
+    """Our own warnings (UserWarning: a mass outside the calibrated range, ...) as one line on stderr;
+    library deprecation notices keep Python's default handling (hidden outside development)."""
+    default = warnings.showwarning
+
     def show(message, category, filename, lineno, file=None, line=None):
+        if issubclass(category, DeprecationWarning):
+            return default(message, category, filename, lineno, file, line)
         click.echo(f"warning: {message}", err=True)
 
     warnings.showwarning = show
@@ -228,7 +234,7 @@ def _progress_callback(end_time_s: float, min_wall_s: float = 1.0):
     import math
     import time
 
-    if not click.get_text_stream("stderr").isatty():
+    if not sys.stderr.isatty():
         return None, lambda: None
     from .constants import YEAR
     from .plot import format_years

@@ -85,18 +85,17 @@ def test_run_reports_the_layers_in_the_file(ran):
         assert kind in res.output
 
 
-def test_run_default_output_name_and_set(tmp_path):
+def test_run_default_output_name_and_set(tmp_path, monkeypatch):
     config = tmp_path / "little.toml"
     config.write_text(TINY)
-    runner = CliRunner()
-    with runner.isolated_filesystem(temp_dir=tmp_path):
-        res = runner.invoke(main, ["run", str(config), "--set", "run.end_time_gyr=0.25", "--json"])
-        assert res.exit_code == 0, res.output
-        assert os.path.exists("little.h5")
-        data = _strict_json(res.output)
-        assert data["file"] == "little.h5"
-        assert data["end_time_yr"] == pytest.approx(0.25e9)
-        assert meltzone.load("little.h5").spec.run.end_time_gyr == 0.25
+    monkeypatch.chdir(tmp_path)
+    res = CliRunner().invoke(main, ["run", str(config), "--set", "run.end_time_gyr=0.25", "--json"])
+    assert res.exit_code == 0, res.output
+    assert os.path.exists("little.h5")
+    data = _strict_json(res.output)
+    assert data["file"] == "little.h5"
+    assert data["end_time_yr"] == pytest.approx(0.25e9)
+    assert meltzone.load("little.h5").spec.run.end_time_gyr == 0.25
 
 
 SUMMARY_TYPES = {
