@@ -530,7 +530,7 @@ def config(example):
 @main.command("sweep")
 @click.argument("spec", required=False, type=click.Path(dir_okay=False))
 @click.option("-o", "--output", type=click.Path(dir_okay=False), default=None, help="Sweep file to write (HDF5).")
-@click.option("--workers", type=click.IntRange(min=1), default=None,
+@click.option("--workers", type=click.IntRange(min=1), default=None, metavar="N",
               help="Local process pool of N workers (default: one per core).")
 @click.option("--dask-local", "dask_local", type=click.IntRange(min=1), default=None, metavar="N",
               help="Start a Dask LocalCluster of N worker processes (1 thread each) on 127.0.0.1.")
