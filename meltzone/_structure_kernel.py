@@ -279,6 +279,8 @@ def integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, cor
             y[j] = y_new[j]
         if kind == 0:
             rho = eos_density(y[1], y[2], mat, rho)
+            if not math.isfinite(rho):
+                rho = mat[1]
             return EMPTIED, n, -(FOUR_PI / 3.0) * r ** 3 * rho / mass
         if kind >= 1 and store:
             # the boundary radius is stored on both sides: first as the bottom of the shallower region
@@ -305,6 +307,9 @@ def integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, cor
             path[n, 5] = rho
             path[n, 6] = region
             n += 1
+    if not math.isfinite(rho):
+        # the centre lies beyond the rising branch of the curve: far too much mass left, radius too small
+        return BLEW_UP, n, y[0] / mass
     residual = (y[0] - (FOUR_PI / 3.0) * r ** 3 * rho) / mass
     return REACHED_CENTRE, n, residual
 

@@ -234,3 +234,15 @@ def test_mass_outside_calibration_warns():
     """Masses outside 0.5-15 M_E run but warn."""
     with pytest.warns(UserWarning, match="calibrated range"):
         meltzone.build_interior(mass_earth=0.3)
+
+
+@pytest.mark.parametrize("mass,cmf,steps", [(4.0549, 0.78, 1500), (3.0651, 0.438, 1500), (1.6558, 0.4341, 1500),
+                                            (2.0, 0.6, 400), (8.0, 0.7, 400), (0.2, 0.75, 400)])
+def test_trial_radii_beyond_the_eos_do_not_break_the_search(mass, cmf, steps):
+    """Regression: trial radii whose centre pressure lies beyond the rising branch of the iron curve used to
+    give a NaN residual and stop brentq; they now count as 'radius too small' and the solve converges."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", UserWarning)
+        it = meltzone.build_interior(mass_earth=mass, core_mass_fraction=cmf, integration_steps=steps)
+    assert it.m[-1] == pytest.approx(mass * EARTH_MASS, rel=1e-8)
+    assert np.all(np.isfinite(it.rho))
