@@ -4,6 +4,9 @@ Input: the per-step melt intervals the kernel found (contiguous runs of mantle
 nodes with melt fraction phi > 0; :mod:`meltzone.evolution.kernel`), the
 history and the interior grid.
 
+* Edges: a layer's top and bottom lie where T - T_sol crosses zero between its
+  last molten node and the solid neighbour (linear interpolation), so layers
+  thinner than a node spacing keep a thickness.
 * Identity: a layer at step s continues the layer(s) of step s-1 whose node
   ranges overlap it. One-to-one overlap keeps the id; when one layer overlaps
   several at the next step it *split* (the largest by melt mass keeps the id);
@@ -79,6 +82,21 @@ def _refine(fn, t0, t1):
     return brentq(fn, t0, t1, xtol=max(EVENT_TIME_TOLERANCE * (t1 - t0), 1e-3), rtol=1e-15)
 
 
+def _edge(excess, r_nodes, p_nodes, node, direction):
+    """Radius and pressure of a layer edge between its last molten node and the solid neighbour in
+    ``direction`` (+1 up, -1 down), where T - T_sol crosses zero (linear between the two nodes); the node
+    itself at the surface or the CMB."""
+    nb = node + direction
+    if nb < 0 or nb >= len(r_nodes):
+        return float(r_nodes[node]), float(p_nodes[node])
+    e0, e1 = excess[node], excess[nb]
+    if not (e0 > 0.0 >= e1):
+        return float(r_nodes[node]), float(p_nodes[node])
+    f = e0 / (e0 - e1)
+    return (float(r_nodes[node] + f * (r_nodes[nb] - r_nodes[node])),
+            float(p_nodes[node] + f * (p_nodes[nb] - p_nodes[node])))
+
+
 def track(result):
     """Layer table rows and the event list of a Result.
 
@@ -113,6 +131,7 @@ def track(result):
     events = []
     next_id = 0
     prev: list[tuple[int, int, int, float]] = []  # (layer id, bottom node, top node, mass)
+    step_profiles: dict[int, np.ndarray] = {}
     touched_surface: set[int] = set()
     touched_cmb: set[int] = set()
 
@@ -182,12 +201,18 @@ def track(result):
             rows["layer"].append(lid)
             rows["step"].append(s)
             rows["time"].append(t[s])
-            rows["top_radius"].append(r_nodes[c[1]])
-            rows["bottom_radius"].append(r_nodes[c[0]])
-            rows["top_depth"].append(depth_of(c[1]))
-            rows["bottom_depth"].append(depth_of(c[0]))
-            rows["top_pressure"].append(p_nodes[c[1]])
-            rows["bottom_pressure"].append(p_nodes[c[0]])
+            if s not in step_profiles:
+                step_profiles.clear()
+                step_profiles[s] = result.profile(s)[0] - tsol
+            excess_s = step_profiles[s]
+            r_top, p_top = _edge(excess_s, r_nodes, p_nodes, c[1], +1)
+            r_bot, p_bot = _edge(excess_s, r_nodes, p_nodes, c[0], -1)
+            rows["top_radius"].append(r_top)
+            rows["bottom_radius"].append(r_bot)
+            rows["top_depth"].append(float(radius - r_top))
+            rows["bottom_depth"].append(float(radius - r_bot))
+            rows["top_pressure"].append(p_top)
+            rows["bottom_pressure"].append(p_bot)
             rows["max_melt_fraction"].append(iv["max_melt_fraction"][idx])
             rows["mean_melt_fraction"].append(iv["mean_melt_fraction"][idx])
             rows["melt_mass"].append(c[2])
@@ -227,7 +252,9 @@ def _regime_events(result, interp, add_event, n_nodes):
             return core[k.C_TMELT, 0] - tc * core[k.C_F, 0]
 
         add_event(_refine(centre, t[s - 1], t[s]), "inner-core-nucleated", -1, None)
-    melt = h["melt_mass"]
+    # melt is present while the profile shows some, or while the top of the adiabat is still above the
+    # rheological transition (a magma ocean whose shallow melt the upper boundary layer hides)
+    melt = np.where(regime == 0, np.inf, h["melt_mass"])
     if melt[-1] <= 0.0 and np.any(melt > 0.0):
         s = int(len(melt) - np.argmax(melt[::-1] > 0.0))  # first step of the final melt-free stretch
         grid = result.kernel_inputs[0]
@@ -248,7 +275,8 @@ def summarize(result, table=None, events=None) -> dict:
     ends = [e["time"] for e in events if e["kind"] == "magma-ocean-ended"]
     mo_end = ends[0] / YEAR if ends else (0.0 if h["regime"][0] != 0 else None)
     last = [e["time"] for e in events if e["kind"] == "last-melt"]
-    last_melt = last[-1] / YEAR if last else (None if h["melt_mass"][-1] > 0 else 0.0)
+    still = h["melt_mass"][-1] > 0 or h["regime"][-1] == 0
+    last_melt = last[-1] / YEAR if last else (None if still else 0.0)
     basal = basal_layer(result, table, events)
     n_layers = int(len(np.unique(table["layer"]))) if len(table["layer"]) else 0
     return {
