@@ -19,6 +19,9 @@ _LAZY = {
     "evolve": ("meltzone.evolution", "evolve"),
     "Result": ("meltzone.results", "Result"),
     "load": ("meltzone.results", "load"),
+    "write": ("meltzone.results", "write"),
+    "sweep": ("meltzone.sweep", "run_sweep"),
+    "run_sweep": ("meltzone.sweep", "run_sweep"),
 }
 
 __all__ = sorted(_LAZY) + ["__version__"]
