@@ -270,7 +270,7 @@ def integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, cor
                     lo = mid
                 else:
                     hi = mid
-                if hi - lo < 1e-12 * radius:
+                if hi - lo < 1e-10 * radius:
                     break
             hh = hi
             _rk4(r, y, -hh, mat, rho, y_new, k1, k2, k3, k4, tmp)

@@ -69,7 +69,7 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
     "interior": {
         "mantle_nodes": Key(256, "1", "radial nodes in the mantle before refinement", lo=32, hi=8192),
         "core_nodes": Key(64, "1", "radial nodes in the core", lo=8, hi=2048),
-        "integration_steps": Key(1500, "1", "RK4 steps of the structure integration across the radius",
+        "integration_steps": Key(1000, "1", "RK4 steps of the structure integration across the radius",
                                  lo=200, hi=200000),
         "surface_pressure_pa": Key(1.0e5, "Pa", "pressure at the solid surface", lo=0.0, hi=1.0e10),
         "reference_potential_temperature_k": Key(1600.0, "K",

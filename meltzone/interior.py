@@ -142,7 +142,7 @@ def zeng2016_radius(mass_kg: float, core_mass_fraction: float) -> float:
 def solve_structure(mass_kg: float, core_mass_kg: float, *, surface_pressure: float = 1e5,
                     reference_temperature: float = 1600.0, core_material: Material = IRON,
                     mantle: list[Material] | None = None, boundaries: np.ndarray | None = None,
-                    integration_steps: int = 1500, mantle_nodes: int = 256, core_nodes: int = 64) -> Interior:
+                    integration_steps: int = 1000, mantle_nodes: int = 256, core_nodes: int = 64) -> Interior:
     """Solve the structure for explicit materials (the engine behind :func:`build_interior`).
 
     ``mantle`` lists one material per phase in the order of ``boundaries`` (a

@@ -330,12 +330,24 @@ def energy_state(tu, tc, d_lid, out, grid, core, par, law, y):
 
 
 @njit
+def _surface_balance(stagnant, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par):
+    """Conductive flux through the top layer minus radiated flux at surface temperature ts [W/m^2]."""
+    if stagnant:
+        q_cond = par[P_K] * (tl - ts) / d_lid
+    else:
+        ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
+        delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
+        q_cond = par[P_K] * (tu - ts) / delta_u
+    return q_cond - eps * SIGMA_SB * (ts ** 4 - par[P_T_EQ] ** 4)
+
+
+@njit
 def _top_boundary(stagnant, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
     """(T_s, q_surface, q_u, delta_u) at the top: the surface temperature balances the conductive flux through
     the top layer (boundary layer, or lid over the boundary layer) with eps sigma (T_s^4 - T_eq^4).
 
     delta_u = D_conv (Ra_cr / Ra)^beta with Ra = alpha rho g dT D_conv^3 / (kappa eta_u) and dT the
-    temperature contrast driving convection (top layer plus the CMB excess); bisection on T_s."""
+    temperature contrast driving convection (top layer plus the CMB excess); Illinois root finding on T_s."""
     t_eq = par[P_T_EQ]
     t_top = tl if stagnant else tu
     lo = t_eq
@@ -346,22 +358,37 @@ def _top_boundary(stagnant, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
     if stagnant:
         ra = base * max(tu - tl + max(dtc, 0.0), 1e-6)
         delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
-    for _ in range(80):
-        ts = 0.5 * (lo + hi)
-        if stagnant:
-            q_cond = par[P_K] * (tl - ts) / d_lid
-        else:
-            ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
-            delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
-            q_cond = par[P_K] * (tu - ts) / delta_u
-        q_rad = eps * SIGMA_SB * (ts ** 4 - t_eq ** 4)
-        if q_cond > q_rad:
-            lo = ts
-        else:
-            hi = ts
-        if hi - lo < 1e-10 * hi:
+    # Illinois (modified regula falsi) on g(T_s) = q_cond - q_rad, which falls monotonically from
+    # g(T_eq) >= 0 to g(T_top) <= 0
+    g_lo = _surface_balance(stagnant, lo, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+    g_hi = _surface_balance(stagnant, hi, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+    side = 0
+    ts = lo
+    prev = -1.0
+    for _ in range(100):
+        if g_lo <= 0.0:
+            ts = lo
             break
-    ts = 0.5 * (lo + hi)
+        if g_hi >= 0.0:
+            ts = hi
+            break
+        ts = (lo * g_hi - hi * g_lo) / (g_hi - g_lo)
+        if not (lo < ts < hi):
+            ts = 0.5 * (lo + hi)
+        g = _surface_balance(stagnant, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+        if g > 0.0:
+            lo, g_lo = ts, g
+            if side == -1:
+                g_hi *= 0.5
+            side = -1
+        else:
+            hi, g_hi = ts, g
+            if side == 1:
+                g_lo *= 0.5
+            side = 1
+        if hi - lo < 1e-11 * hi or g == 0.0 or abs(ts - prev) < 1e-12 * ts:
+            break
+        prev = ts
     if stagnant:
         return ts, par[P_K] * (tl - ts) / d_lid, par[P_K] * (tu - tl) / delta_u, delta_u
     ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
