@@ -82,21 +82,6 @@ def _refine(fn, t0, t1):
     return brentq(fn, t0, t1, xtol=max(EVENT_TIME_TOLERANCE * (t1 - t0), 1e-3), rtol=1e-15)
 
 
-def _edge(excess, r_nodes, p_nodes, node, direction):
-    """Radius and pressure of a layer edge between its last molten node and the solid neighbour in
-    ``direction`` (+1 up, -1 down), where T - T_sol crosses zero (linear between the two nodes); the node
-    itself at the surface or the CMB."""
-    nb = node + direction
-    if nb < 0 or nb >= len(r_nodes):
-        return float(r_nodes[node]), float(p_nodes[node])
-    e0, e1 = excess[node], excess[nb]
-    if not (e0 > 0.0 >= e1):
-        return float(r_nodes[node]), float(p_nodes[node])
-    f = e0 / (e0 - e1)
-    return (float(r_nodes[node] + f * (r_nodes[nb] - r_nodes[node])),
-            float(p_nodes[node] + f * (p_nodes[nb] - p_nodes[node])))
-
-
 def track(result):
     """Layer table rows and the event list of a Result.
 
@@ -120,18 +105,32 @@ def track(result):
     tsol = grid[k.G_TSOL]
 
     steps = iv["step"]
+    bottom_l = iv["bottom_node"].tolist()
+    top_l = iv["top_node"].tolist()
+    mass_l = iv["melt_mass"].tolist()
+    t_l = t.tolist()
     order = np.argsort(steps, kind="stable")
     by_step: dict[int, list[int]] = {}
     for idx in order:
         by_step.setdefault(int(steps[idx]), []).append(int(idx))
 
-    rows = {key: [] for key in ("layer", "step", "time", "top_radius", "bottom_radius", "top_depth",
-                                "bottom_depth", "top_pressure", "bottom_pressure", "max_melt_fraction",
-                                "mean_melt_fraction", "melt_mass", "full_top_depth", "full_bottom_depth")}
+    row_interval: list[int] = []
+    row_layer: list[int] = []
     events = []
     next_id = 0
     prev: list[tuple[int, int, int, float]] = []  # (layer id, bottom node, top node, mass)
-    step_profiles: dict[int, np.ndarray] = {}
+    edges = np.empty((len(iv["step"]), 4))
+    if len(iv["step"]):
+        hist = np.zeros((len(t), k.N_H))
+        hist[:, k.H_T] = t
+        hist[:, k.H_TU] = h["upper_temperature"]
+        hist[:, k.H_TC] = h["core_temperature"]
+        hist[:, k.H_LID] = h["lid_thickness"]
+        ivk = np.zeros((len(iv["step"]), k.N_I))
+        ivk[:, k.I_STEP] = iv["step"]
+        ivk[:, k.I_TOP] = iv["top_node"]
+        ivk[:, k.I_BOTTOM] = iv["bottom_node"]
+        k.interval_edges(hist, ivk, *result.kernel_inputs, edges)
     touched_surface: set[int] = set()
     touched_cmb: set[int] = set()
 
@@ -148,9 +147,7 @@ def track(result):
         return float(np.max(temp[lo:hi + 1] - tsol[lo:hi + 1]))
 
     for s in range(len(t)):
-        cur = []
-        for idx in by_step.get(s, []):
-            cur.append((int(iv["bottom_node"][idx]), int(iv["top_node"][idx]), float(iv["melt_mass"][idx]), idx))
+        cur = [(bottom_l[idx], top_l[idx], mass_l[idx], idx) for idx in by_step.get(s, [])]
         # overlaps (node ranges, with a one-node tolerance so that neighbours count as touching)
         links_cur = [[j for j, p in enumerate(prev) if p[1] <= c[1] + 1 and c[0] <= p[2] + 1] for c in cur]
         links_prev = [[i for i, lc in enumerate(links_cur) if j in lc] for j in range(len(prev))]
@@ -163,7 +160,7 @@ def track(result):
                 if len(lc) > 1:
                     for j in lc:
                         if j != best:
-                            add_event(t[s], "merged", prev[j][0], cur[i][1])
+                            add_event(t_l[s], "merged", prev[j][0], cur[i][1])
         # splits: a previous layer feeding several current intervals keeps its id on the largest
         for j, lp in enumerate(links_prev):
             if len(lp) > 1:
@@ -172,7 +169,7 @@ def track(result):
                     if i != keep and ids[i] == prev[j][0]:
                         ids[i] = next_id
                         next_id += 1
-                        add_event(t[s], "split", ids[i], cur[i][1])
+                        add_event(t_l[s], "split", ids[i], cur[i][1])
         for i, c in enumerate(cur):
             if ids[i] < 0:
                 ids[i] = next_id
@@ -192,38 +189,40 @@ def track(result):
             lid = ids[i]
             if c[1] == n_nodes - 1 and lid not in touched_surface:
                 touched_surface.add(lid)
-                add_event(t[s], "reached-surface", lid, c[1])
+                add_event(t_l[s], "reached-surface", lid, c[1])
             if c[0] == 0 and lid not in touched_cmb:
                 touched_cmb.add(lid)
-                add_event(t[s], "reached-cmb", lid, c[0])
-            idx = c[3]
-            ft, fb = int(iv["full_top_node"][idx]), int(iv["full_bottom_node"][idx])
-            rows["layer"].append(lid)
-            rows["step"].append(s)
-            rows["time"].append(t[s])
-            if s not in step_profiles:
-                step_profiles.clear()
-                step_profiles[s] = result.profile(s)[0] - tsol
-            excess_s = step_profiles[s]
-            r_top, p_top = _edge(excess_s, r_nodes, p_nodes, c[1], +1)
-            r_bot, p_bot = _edge(excess_s, r_nodes, p_nodes, c[0], -1)
-            rows["top_radius"].append(r_top)
-            rows["bottom_radius"].append(r_bot)
-            rows["top_depth"].append(float(radius - r_top))
-            rows["bottom_depth"].append(float(radius - r_bot))
-            rows["top_pressure"].append(p_top)
-            rows["bottom_pressure"].append(p_bot)
-            rows["max_melt_fraction"].append(iv["max_melt_fraction"][idx])
-            rows["mean_melt_fraction"].append(iv["mean_melt_fraction"][idx])
-            rows["melt_mass"].append(c[2])
-            rows["full_top_depth"].append(depth_of(ft) if ft >= 0 else math.nan)
-            rows["full_bottom_depth"].append(depth_of(fb) if fb >= 0 else math.nan)
+                add_event(t_l[s], "reached-cmb", lid, c[0])
+            row_interval.append(c[3])
+            row_layer.append(lid)
         prev = [(ids[i], c[0], c[1], c[2]) for i, c in enumerate(cur)]
 
     _regime_events(result, interp, add_event, n_nodes)
     events.sort(key=lambda e: (e["time"], EVENT_KINDS.index(e["kind"])))
-    table = {key: np.asarray(v, dtype=np.int64 if key in ("layer", "step") else np.float64)
-             for key, v in rows.items()}
+    sel = np.asarray(row_interval, dtype=np.int64)
+    steps_sel = iv["step"][sel].astype(np.int64)
+    e = edges[sel]
+
+    def node_depth(nodes):
+        nodes = np.asarray(nodes, dtype=np.int64)
+        return np.where(nodes >= 0, radius - r_nodes[np.maximum(nodes, 0)], np.nan)
+
+    table = {
+        "layer": np.asarray(row_layer, dtype=np.int64),
+        "step": steps_sel,
+        "time": t[steps_sel].astype(np.float64),
+        "top_radius": e[:, 0].copy(),
+        "bottom_radius": e[:, 2].copy(),
+        "top_depth": radius - e[:, 0],
+        "bottom_depth": radius - e[:, 2],
+        "top_pressure": e[:, 1].copy(),
+        "bottom_pressure": e[:, 3].copy(),
+        "max_melt_fraction": iv["max_melt_fraction"][sel].astype(np.float64),
+        "mean_melt_fraction": iv["mean_melt_fraction"][sel].astype(np.float64),
+        "melt_mass": iv["melt_mass"][sel].astype(np.float64),
+        "full_top_depth": node_depth(iv["full_top_node"][sel]),
+        "full_bottom_depth": node_depth(iv["full_bottom_node"][sel]),
+    }
     return table, events
 
 

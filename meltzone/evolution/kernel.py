@@ -867,3 +867,36 @@ def rhs_py(t, y, grid, core, iso, par, law, guess):
     work = guess.copy()
     rhs(t, y, grid, core, iso, par, law, work, diag, dy)
     return dy
+
+
+@njit
+def interval_edges(hist, iv, grid, core, iso, par, law, out):
+    """Sub-node edges of every melt interval: out[k] = (r_top, P_top, r_bottom, P_bottom) where T - T_sol
+    crosses zero between the interval's last molten node and its solid neighbour (linear interpolation),
+    the node itself at the surface or the CMB. Profiles are rebuilt from the history (T_u, T_c, lid)."""
+    n = grid.shape[1]
+    temp = np.empty(n)
+    phi = np.empty(n)
+    diag = np.empty(N_D)
+    last = -1
+    for k in range(iv.shape[0]):
+        s = int(iv[k, I_STEP])
+        if s != last:
+            lid = hist[s, H_LID] if par[P_STAGNANT] > 0.5 else 0.0
+            profile_at(hist[s, H_T], hist[s, H_TU], hist[s, H_TC], lid, grid, core, iso, par, law, temp, phi,
+                       diag)
+            last = s
+        for side in range(2):
+            node = int(iv[k, I_TOP]) if side == 0 else int(iv[k, I_BOTTOM])
+            nb = node + 1 if side == 0 else node - 1
+            r = grid[G_R, node]
+            p = grid[G_P, node]
+            if 0 <= nb < n:
+                e0 = temp[node] - grid[G_TSOL, node]
+                e1 = temp[nb] - grid[G_TSOL, nb]
+                if e0 > 0.0 >= e1:
+                    f = e0 / (e0 - e1)
+                    r = r + f * (grid[G_R, nb] - r)
+                    p = p + f * (grid[G_P, nb] - p)
+            out[k, 2 * side] = r
+            out[k, 2 * side + 1] = p
