@@ -300,6 +300,12 @@ def run_case(index: int, base: dict, assignments: dict, observed: dict | None = 
     return out
 
 
+def run_cases(cases: list, base: dict, detail_dir: str | None = None) -> list:
+    """Run a batch of cases ``[(index, assignments, observed), ...]`` in this process (one task, so that the
+    scheduler's per-task cost is shared); returns their rows in order, as :func:`run_case`."""
+    return [run_case(index, base, assignments, observed, detail_dir) for index, assignments, observed in cases]
+
+
 def _run(out, base, assignments, observed, detail_dir):
     from .config import PlanetSpec
 

@@ -1228,31 +1228,37 @@ def run_sweep(spec_or_path, out_path, executor=None, workers: int | None = None,
         while todo:
             futures = {}
             base_arg = backend.scatter_base(spec.base) if isinstance(backend, _DaskBackend) else spec.base
-            for i in todo:
-                idx, _, assign, obs = spec.case_payload(i)
+            # a few cases per task share the scheduler's and the pipe's per-task cost (1 per task for
+            # small sweeps, up to 8 for large ones); results are still recorded and checkpointed per case
+            size = max(1, min(8, len(todo) // 64))
+            for start in range(0, len(todo), size):
+                chunk = todo[start:start + size]
+                payload = [(idx, assign, obs) for idx, _, assign, obs in (spec.case_payload(i) for i in chunk)]
                 if isinstance(backend, _DaskBackend):
-                    fut = backend.submit(_exec.run_case, idx, base_arg, assign, obs, detail,
-                                         key=f"meltzone-case-{token}-{i}")
+                    fut = backend.submit(_exec.run_cases, payload, base_arg, detail,
+                                         key=f"meltzone-cases-{token}-{chunk[0]}")
                 else:
-                    fut = backend.submit(_exec.run_case, idx, base_arg, assign, obs, detail)
-                futures[fut] = i
+                    fut = backend.submit(_exec.run_cases, payload, base_arg, detail)
+                futures[fut] = chunk
             broken = None
             for fut in backend.completed(list(futures)):
                 kind, value = backend.outcome(fut)
-                i = futures[fut]
+                chunk = futures[fut]
                 if kind == "ok":
-                    record(i, value)
+                    for row in value:
+                        record(row["case"], row)
                 elif kind == "lost":
-                    lost[i] = value
+                    lost.update({i: value for i in chunk})
                 else:
                     broken = value
                     break
             if broken is not None:
-                for fut, i in futures.items():  # keep whatever finished before the pool broke
-                    if i not in done and fut.done():
+                for fut, chunk in futures.items():  # keep whatever finished before the pool broke
+                    if fut.done():
                         kind, value = backend.outcome(fut)
                         if kind == "ok":
-                            record(i, value)
+                            for row in value:
+                                record(row["case"], row)
                 ckpt.flush()
                 if not backend.restartable or restarts >= max_pool_restarts:
                     lost.update({i: broken for i in todo if i not in done})
