@@ -39,6 +39,7 @@ class Key:
     lo_open: bool = False
     hi_open: bool = False
     choices: tuple[str, ...] | None = None
+    source: str = ""
 
     @property
     def kind(self) -> type:
@@ -74,10 +75,13 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
         "surface_pressure_pa": Key(1.0e5, "Pa", "pressure at the solid surface", lo=0.0, hi=1.0e10),
         "reference_potential_temperature_k": Key(1600.0, "K",
                                                  "potential temperature of the reference adiabat on which "
-                                                 "mantle phases are chosen", lo=300.0, hi=5000.0),
+                                                 "mantle phases are chosen", lo=300.0, hi=5000.0,
+            source="common practice (Earth's upper mantle ~1600-1650 K)"),
         "core_density_deficit": Key(0.10, "1", "fractional density deficit of the core alloy relative to "
-                                    "pure iron (light elements)", lo=0.0, hi=0.3),
-        "mantle_fe_fraction": Key(0.10, "1", "molar Fe/(Mg+Fe) of the mantle silicates", lo=0.0, hi=0.5),
+                                    "pure iron (light elements)", lo=0.0, hi=0.3,
+            source="~10% for Earth's outer core (Birch 1952, JGR 57:227; from memory); reproduces PREM here"),
+        "mantle_fe_fraction": Key(0.10, "1", "molar Fe/(Mg+Fe) of the mantle silicates", lo=0.0, hi=0.5,
+            source="common practice (Earth's mantle Mg# ~0.89-0.90)"),
     },
     "melting": {
         "model": Key("whole-mantle-sg", "", "mantle solidus/liquidus model id (see `meltzone curves`)"),
@@ -86,47 +90,68 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                                  choices=("linear", "katz2003")),
         "water_wt_percent": Key(0.0, "wt%", "bulk mantle water content lowering the solidus (Katz et al. 2003)",
                                 lo=0.0, hi=5.0),
-        "core_melting_depression_k": Key(700.0, "K", "lowering of the iron melting curve by light elements "
-                                         "(~700 K for Earth's core, Alfe et al. 2002, EPSL 195:91; from memory)",
-                                         lo=0.0, hi=3000.0),
+        "core_melting_depression_k": Key(700.0, "K", "lowering of the iron melting curve by light elements",
+                                         lo=0.0, hi=3000.0,
+                                         source="~700 K for Earth's core, Alfe et al. 2002, EPSL 195:91 (from memory)"),
     },
     "convection": {
         "regime": Key("mobile-lid", "", "solid-state convection regime", choices=("mobile-lid", "stagnant-lid")),
         "viscosity_prefactor_pa_s": Key(6.127e10, "Pa s", "Arrhenius prefactor A in A exp[(E + P V)/(R T)]",
-                                        lo=0.0, lo_open=True),
-        "activation_energy_j_mol": Key(3.35e5, "J/mol", "activation energy E", lo=0.0, hi=1.0e6),
+                                        lo=0.0, lo_open=True,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
+        "activation_energy_j_mol": Key(3.35e5, "J/mol", "activation energy E", lo=0.0, hi=1.0e6,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
         "activation_volume_m3_mol": Key(4.0e-6, "m^3/mol", "activation volume V0 at zero pressure", lo=0.0,
-                                        hi=3.0e-5),
+                                        hi=3.0e-5,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
         "activation_volume_decay_pa": Key(2.0e11, "Pa", "pressure scale over which the activation volume "
-                                          "decays, V(P) = V0 exp(-P / P_d); 0 keeps V constant", lo=0.0),
-        "critical_rayleigh": Key(450.0, "1", "critical Rayleigh number", lo=1.0, hi=1.0e5),
-        "beta": Key(1.0 / 3.0, "1", "exponent of the Nusselt-Rayleigh scaling", lo=0.05, hi=0.5),
+                                          "decays, V(P) = V0 exp(-P / P_d); 0 keeps V constant", lo=0.0,
+            source="this model's choice (see evolution.kernel.activation_enthalpy)"),
+        "critical_rayleigh": Key(450.0, "1", "critical Rayleigh number", lo=1.0, hi=1.0e5,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
+        "beta": Key(1.0 / 3.0, "1", "exponent of the Nusselt-Rayleigh scaling", lo=0.05, hi=0.5,
+            source='Stevenson, Spohn & Schubert 1983, Icarus 54:466 (common practice)'),
         "rheology_a": Key(2.5, "1", "factor of the rheological temperature scale (stagnant lid)",
-                          lo=0.5, hi=10.0),
-        "melt_weakening": Key(26.0, "1", "melt weakening factor alpha in exp(-alpha phi)", lo=0.0, hi=100.0),
-        "liquid_viscosity_pa_s": Key(0.1, "Pa s", "viscosity of the silicate liquid", lo=1.0e-4, hi=1.0e3),
-        "critical_melt_fraction": Key(0.4, "1", "melt fraction of the rheological transition", lo=0.1, hi=0.8),
-        "thermal_conductivity": Key(4.0, "W/m/K", "mantle thermal conductivity", lo=0.1, hi=50.0),
-        "thermal_diffusivity": Key(1.0e-6, "m^2/s", "mantle thermal diffusivity", lo=1.0e-8, hi=1.0e-4),
-        "thermal_expansivity": Key(2.0e-5, "1/K", "mantle thermal expansivity", lo=1.0e-7, hi=1.0e-3),
-        "mantle_heat_capacity": Key(1100.0, "J/kg/K", "mantle specific heat", lo=100.0, hi=5000.0),
-        "latent_heat": Key(6.0e5, "J/kg", "latent heat of mantle melting", lo=0.0, hi=5.0e6),
+                          lo=0.5, hi=10.0,
+            source='Grasset & Parmentier 1998, JGR 103:18171; Solomatov & Moresi 2000 (2.2-2.5; from memory)'),
+        "melt_weakening": Key(26.0, "1", "melt weakening factor alpha in exp(-alpha phi)", lo=0.0, hi=100.0,
+            source='Mei et al. 2002, EPSL 201:491 (from memory)'),
+        "liquid_viscosity_pa_s": Key(0.1, "Pa s", "viscosity of the silicate liquid", lo=1.0e-4, hi=1.0e3,
+            source='Karki & Stixrude 2010, Science 328:740 (~0.01-0.1 Pa s; from memory)'),
+        "critical_melt_fraction": Key(0.4, "1", "melt fraction of the rheological transition", lo=0.1, hi=0.8,
+            source='Abe 1997, PEPI 100:27; Solomatov 2015, Treatise on Geophysics 9.04'),
+        "thermal_conductivity": Key(4.0, "W/m/K", "mantle thermal conductivity", lo=0.1, hi=50.0,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
+        "thermal_diffusivity": Key(1.0e-6, "m^2/s", "mantle thermal diffusivity", lo=1.0e-8, hi=1.0e-4,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
+        "thermal_expansivity": Key(2.0e-5, "1/K", "mantle thermal expansivity", lo=1.0e-7, hi=1.0e-3,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
+        "mantle_heat_capacity": Key(1100.0, "J/kg/K", "mantle specific heat", lo=100.0, hi=5000.0,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
+        "latent_heat": Key(6.0e5, "J/kg", "latent heat of mantle melting", lo=0.0, hi=5.0e6,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
     },
     "core": {
-        "core_heat_capacity": Key(800.0, "J/kg/K", "core specific heat", lo=100.0, hi=5000.0),
-        "core_latent_heat": Key(7.5e5, "J/kg", "latent heat of inner-core crystallisation", lo=0.0, hi=5.0e6),
+        "core_heat_capacity": Key(800.0, "J/kg/K", "core specific heat", lo=100.0, hi=5000.0,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
+        "core_latent_heat": Key(7.5e5, "J/kg", "latent heat of inner-core crystallisation", lo=0.0, hi=5.0e6,
+            source='order of published values, 6e5-1e6 J/kg (e.g. Labrosse 2015, PEPI 247:36; from memory)'),
         "gravitational_energy": Key(3.0e5, "J/kg", "gravitational energy released per kg of inner core",
-                                    lo=0.0, hi=5.0e6),
+                                    lo=0.0, hi=5.0e6,
+            source='order of published values (Labrosse 2015; from memory)'),
     },
     "heating": {
         "radiogenic_scale": Key(1.0, "1", "scale of bulk-silicate-Earth heat-producing element abundances",
-                                lo=0.0, hi=100.0),
+                                lo=0.0, hi=100.0,
+            source='McDonough & Sun 1995 abundances, Turcotte & Schubert Table 4.2 heat production'),
         "start_age_gyr": Key(4.5, "Gyr", "age of the radiogenic inventory at the start (decayed back this far)",
-                             lo=0.0, hi=13.0),
+                             lo=0.0, hi=13.0,
+            source='common practice (age of the Solar System 4.57 Gyr)'),
     },
     "surface": {
         "equilibrium_temperature_k": Key(255.0, "K", "radiative equilibrium temperature set by the star",
-                                         lo=0.0, hi=3000.0),
+                                         lo=0.0, hi=3000.0,
+            source="Earth's radiative equilibrium temperature (common practice)"),
         "atmosphere": Key("none", "", "surface boundary", choices=("none", "grey")),
         "water_inventory_kg": Key(0.0, "kg", "total H2O of mantle + atmosphere (grey atmosphere)", lo=0.0),
         "co2_inventory_kg": Key(0.0, "kg", "total CO2 of mantle + atmosphere (grey atmosphere)", lo=0.0),
@@ -137,11 +162,14 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
         "core_temperature_k": Key(0.0, "K", "initial temperature at the top of the core; 0 = the mantle adiabat "
                                   "at the CMB plus initial_cmb_jump_k", lo=0.0, hi=30000.0),
         "initial_cmb_jump_k": Key(200.0, "K", "initial excess of the core over the mantle adiabat at the CMB "
-                                  "(used when core_temperature_k = 0)", lo=0.0, hi=10000.0),
+                                  "(used when core_temperature_k = 0)", lo=0.0, hi=10000.0,
+            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
     },
     "run": {
         "end_time_gyr": Key(10.0, "Gyr", "model time at which the run stops", lo=0.0, lo_open=True, hi=100.0),
         "rtol": Key(1.0e-7, "1", "relative tolerance of the time integrator", lo=1.0e-12, hi=1.0e-2),
+        "atol_k": Key(1.0e-7, "K", "absolute tolerance of the time integrator, as the heat of this temperature "
+                      "change of the whole mantle or core (the lid's: atol_k x 1 km/K)", lo=1.0e-12, hi=10.0),
         "max_temperature_step_k": Key(10.0, "K", "largest change of either temperature in one step",
                                       lo=0.01, hi=500.0),
         "max_steps": Key(200000, "1", "upper bound on accepted steps", lo=100, hi=10000000),
@@ -299,6 +327,8 @@ class PlanetSpec:
                 if comments:
                     unit = f" [{key.unit}]" if key.unit and key.unit != "1" else ""
                     lines.append(f"# {key.doc}{unit}; {key.allowed()}; default {_toml_value(key.default)}")
+                    if key.source:
+                        lines.append(f"#   default from: {key.source}")
                 lines.append(f"{name} = {_toml_value(self._values[sec][name])}")
             lines.append("")
         return "\n".join(lines)

@@ -110,6 +110,7 @@ def build_arrays(spec: PlanetSpec, interior: Interior):
     par[k.P_LAW] = law
     par[k.P_DT_MAX] = spec.run.max_temperature_step_k
     par[k.P_RTOL] = spec.run.rtol
+    par[k.P_ATOL] = spec.run.atol_k
     par[k.P_T_END] = spec.run.end_time_gyr * GYR
     par[k.P_H_MAX] = spec.run.max_step_myr * MYR
     par[k.P_LID_MIN] = LID_MIN

@@ -80,8 +80,8 @@ N_Y = 4
 (P_RADIUS, P_CORE_RADIUS, P_G_SURF, P_G_CMB, P_RHO_MANTLE, P_RHO_TOP, P_K, P_KAPPA, P_ALPHA, P_CM, P_LATENT,
  P_A_VISC, P_E_ACT, P_V_ACT, P_RA_CR, P_BETA, P_A_RH, P_MELT_WEAK, P_ETA_LIQ, P_PHI_C, P_CC, P_LC, P_EG,
  P_T_EQ, P_ATMOSPHERE, P_H2O_TOTAL, P_CO2_TOTAL, P_STAGNANT, P_P_CMB, P_START_AGE, P_LAW, P_DT_MAX, P_RTOL,
- P_T_END, P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS, P_V_DECAY) = range(39)
-N_PAR = 39
+ P_T_END, P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS, P_V_DECAY, P_ATOL) = range(40)
+N_PAR = 40
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 (G_R, G_P, G_F, G_W, G_TSOL, G_TLIQ, G_AUX1, G_AUX2) = range(8)
@@ -697,8 +697,8 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
     """Advance from ``state`` = (t, y[0..3], h, n_hist, n_iv, n_rejected, T_u, T_c) until the end time, a full
     buffer or max_steps; updates ``state`` in place (so a call can resume) and returns a STATUS_* code.
 
-    Error control on the two energies (relative rtol plus rtol times the heat of 1 K) and on the lid
-    (relative plus rtol * 1 km); every step also keeps |dT_u|, |dT_c| <= P_DT_MAX, and a step with a
+    Error control on the two energies (relative rtol plus the heat of atol_k) and on the lid (relative plus
+    atol_k x 1 km/K); every step also keeps |dT_u|, |dT_c| <= P_DT_MAX, and a step with a
     temperature extremum inside it is shortened when the interpolated extremum would change which
     nodes are above the solidus while neither end shows it, so that no melt layer appears and vanishes
     unseen between two recorded profiles.
@@ -731,8 +731,9 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
     rtol = par[P_RTOL]
     dt_max = par[P_DT_MAX]
     # absolute scales: heat of 1 K of mantle and of core, 1 km of lid
-    abs_e_m = rtol * par[P_MANTLE_MASS] * par[P_CM]
-    abs_e_c = rtol * max(core[C_W].sum() * par[P_CC], 1.0)
+    abs_e_m = par[P_ATOL] * par[P_MANTLE_MASS] * par[P_CM]
+    abs_e_c = par[P_ATOL] * max(core[C_W].sum() * par[P_CC], 1.0)
+    abs_lid = par[P_ATOL] * 1.0e3
     rhs(t, y, grid, core, iso, par, law, work, diag, k1)
     tu = work[0]
     tc = work[1]
@@ -787,7 +788,7 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
             elif j == Y_EC:
                 scale = abs_e_c + rtol * max(abs(y[j]), abs(ynew[j]))
             else:
-                scale = rtol * 1.0e3 + rtol * max(abs(y[j]), abs(ynew[j]))
+                scale = abs_lid + rtol * max(abs(y[j]), abs(ynew[j]))
             e = abs(yerr) / scale
             if e > err:
                 err = e
