@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import functools
 import json
+import os
 import sys
 import warnings
 
@@ -427,6 +428,8 @@ def run(config_file, overrides, output, as_json):
     out = Path(output) if output else Path(f"{Path(config_file).stem}.h5" if config_file else "meltzone-demo.h5")
     if not out.parent.resolve().is_dir():
         raise click.BadParameter(f"folder {str(out.parent)!r} does not exist", param_hint="--output")
+    if not os.access(out.parent.resolve(), os.W_OK):
+        raise click.BadParameter(f"folder {str(out.parent)!r} is not writable", param_hint="--output")
     callback, finish = _progress_callback(spec.run.end_time_gyr * GYR)
     try:
         result = evolve(spec, progress=callback)

@@ -25,6 +25,8 @@ from .errors import ConfigError
 
 #: Mass range [Earth masses] inside which the models are calibrated; outside it a run warns.
 CALIBRATED_MASS_RANGE = (0.5, 15.0)
+#: Largest core mass fraction the interior solver and evolution are tested for; above it a run warns.
+TESTED_CORE_FRACTION_MAX = 0.8
 
 
 @dataclass(frozen=True)
@@ -279,6 +281,10 @@ class PlanetSpec:
         self._values = values
         for sec in SCHEMA:
             object.__setattr__(self, sec, Section(sec, values[sec]))
+        cmf = values["planet"]["core_mass_fraction"]
+        if cmf > TESTED_CORE_FRACTION_MAX:
+            warnings.warn(f"planet.core_mass_fraction = {cmf:g} is above {TESTED_CORE_FRACTION_MAX:g}, the largest "
+                          "tested value; results are extrapolated", UserWarning, stacklevel=2)
         mass = values["planet"]["mass_earth"]
         lo, hi = CALIBRATED_MASS_RANGE
         if not lo <= mass <= hi:
@@ -371,6 +377,8 @@ def parse_override(item: str) -> tuple[str, str, Any]:
             value = rhs
         else:
             raise ConfigError(f"--set {item!r}: {rhs!r} is not {SCHEMA[sec][name].allowed()}") from None
+    if SCHEMA[sec][name].kind is str and not isinstance(value, str):
+        value = rhs  # a string key takes the text as written (e.g. planet.name=123)
     return sec, name, value
 
 

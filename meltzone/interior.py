@@ -187,12 +187,16 @@ def solve_structure(mass_kg: float, core_mass_kg: float, *, surface_pressure: fl
             hi *= 1.25
             f_hi = resid(hi)
     else:
-        raise ConvergenceError(f"no radius bracket found for M = {mass_kg / EARTH_MASS:g} M_E")
+        raise ConvergenceError(f"no radius bracket found for M = {mass_kg / EARTH_MASS:g} M_E; the solver is tested "
+                               "for 0.1-20 Earth masses and core mass fractions 0-0.8")
     radius = brentq(resid, lo, hi, xtol=1e-11 * guess, rtol=1e-13, maxiter=200)
     path = np.empty((4 * int(integration_steps) + 256, k.PATH_COLS))
     status, n, residual = k.integrate_inward(radius, *args, path, True)
     if status != k.REACHED_CENTRE and status != k.EMPTIED or abs(residual) > 1e2 * MASS_TOLERANCE:
-        raise ConvergenceError(f"structure did not converge (status {status}, mass residual {residual:.2e})")
+        raise ConvergenceError(f"the structure of a {mass_kg / EARTH_MASS:g} M_E planet with core mass fraction "
+                               f"{core_mass_kg / mass_kg:g} did not converge (mass residual {residual:.2e}); the "
+                               "solver is tested for 0.1-20 Earth masses and core mass fractions 0-0.8; try "
+                               "interior.integration_steps = 4000")
     path = path[:n][::-1]  # centre -> surface
     # close the path at r = 0: below r_stop (1e-3 R) pressure, temperature and density are uniform
     # to O((r_stop / R)^2); the moment of inertia of that sphere is added

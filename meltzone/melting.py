@@ -442,7 +442,7 @@ def load_table(path: str | Path) -> MeltingModel:
     path = Path(path)
     where = f"melting table {str(path)!r}"
     try:
-        text = path.read_text(encoding="utf-8")
+        text = path.read_text(encoding="utf-8-sig")  # tolerate a byte-order mark
     except (OSError, UnicodeDecodeError) as exc:
         raise ModelError(f"cannot read {where}: {getattr(exc, 'strerror', None) or exc}") from None
     rows = [(n, line) for n, line in enumerate(text.splitlines(), start=1)

@@ -361,8 +361,18 @@ def atomic_h5(path):
         try:
             with h5py.File(tmp, "w", track_order=True) as f:
                 yield f
-            os.chmod(tmp, 0o644)
+            with open(tmp, "rb+") as fh:  # the bytes reach the disk before the name points at them
+                os.fsync(fh.fileno())
+            umask = os.umask(0)
+            os.umask(umask)
+            os.chmod(tmp, 0o666 & ~umask)  # mkstemp made it 0600; give it the mode a plain open() would
             os.replace(tmp, target)
+            with contextlib.suppress(OSError):  # and the rename itself survives a crash
+                dir_fd = os.open(folder, os.O_RDONLY)
+                try:
+                    os.fsync(dir_fd)
+                finally:
+                    os.close(dir_fd)
         except BaseException:
             with contextlib.suppress(OSError):
                 os.unlink(tmp)

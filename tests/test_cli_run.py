@@ -240,3 +240,19 @@ def test_readme_demo_command(tmp_path):
     result = meltzone.load(tmp_path / "meltzone-demo.h5")
     assert "invented" in result.spec.planet.name
     assert result.spec == meltzone.PlanetSpec.from_toml(cli.demo_config_path())
+
+
+def test_run_coreless_planet_and_string_override(tmp_path, monkeypatch):
+    """A coreless planet runs from the CLI (no traceback), and a string key takes --set text as written."""
+    monkeypatch.chdir(tmp_path)
+    res = CliRunner().invoke(main, ["run", "--set", "planet.core_mass_fraction=0", "--set", "planet.name=123",
+                                    "--set", "run.end_time_gyr=0.05", "-o", "coreless.h5"])
+    assert res.exit_code == 0, res.output
+    assert "123" in res.output and os.path.exists("coreless.h5")
+
+
+def test_run_refuses_an_unwritable_output_folder_before_running(tmp_path, monkeypatch):
+    """The output folder is checked before the evolution starts (exit 2, one line)."""
+    monkeypatch.setattr(os, "access", lambda p, m: False if m == os.W_OK else True)
+    res = CliRunner().invoke(main, ["run", "-o", str(tmp_path / "out.h5")])
+    assert res.exit_code == 2 and "not writable" in res.output and "Traceback" not in res.output

@@ -535,3 +535,13 @@ def test_peridotite_mantle_composite_follows_its_sources():
             below = (curve(edge) - curve(edge - 1e8)) / 1e8
             above = (curve(edge + 1e8) - curve(edge)) / 1e8
             assert above == pytest.approx(below, rel=0.2)
+
+
+def test_table_with_byte_order_mark(tmp_path):
+    """A CSV saved with a UTF-8 byte-order mark (common from spreadsheets) loads like one without."""
+    from meltzone import melting
+
+    path = tmp_path / "bom.csv"
+    path.write_bytes("pressure_gpa,solidus_k,liquidus_k\n0,1400,2000\n100,4000,4600\n".encode("utf-8-sig"))
+    model = melting.load_table(path)
+    assert model.solidus(50e9) == pytest.approx(2700.0)

@@ -145,12 +145,14 @@ def initial_state(spec: PlanetSpec, grid, core, par, law) -> np.ndarray:
     return y0, tu, tc
 
 
-def run_kernel(grid, core, iso, par, law, y0, t_guess, max_steps, progress=None):
-    """Run the integrator to the end time, growing the buffers when they fill. Returns (hist, iv, state)."""
+def run_kernel(grid, core, iso, par, law, y0, t_guess, max_steps, progress=None, history_rows=4096,
+               interval_rows=8192):
+    """Run the integrator to the end time, growing the buffers (initial sizes ``history_rows``,
+    ``interval_rows``) when they fill. Returns (hist, iv, state)."""
     from . import kernel as k
 
-    hist = np.zeros((4096, k.N_H))
-    iv = np.zeros((8192, k.N_I))
+    hist = np.zeros((history_rows, k.N_H))
+    iv = np.zeros((interval_rows, k.N_I))
     state = np.zeros(11)
     state[1:1 + k.N_Y] = y0
     state[5] = 1.0  # first step [s]; the controller grows it

@@ -417,7 +417,7 @@ def diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag):
     t_mean_c = 0.5 * (tc + tb)
     phi_c = node_melt(t_mean_c, grid, 0, law_i)
     eta_c = viscosity(t_mean_c, par[P_P_CMB], phi_c, par)
-    if abs(dtc) > 1e-9:
+    if abs(dtc) > 1e-9 and par[P_G_CMB] > 0.0:
         delta_c = (par[P_KAPPA] * eta_c * par[P_RA_CR] / (par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_CMB]
                                                             * abs(dtc))) ** (1.0 / 3.0)
         delta_c = min(delta_c, 0.5 * depth)
@@ -811,16 +811,18 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
                     if above != (tc > grid[G_TSOL, 0]) and above != (tc_new > grid[G_TSOL, 0]):
                         unseen = True
         if err <= 1.0 and not big_jump and not unseen:
+            # record first: if the interval buffer is full, the step is redone from the unchanged state
+            res = record(t + h, ynew, tu_new, tc_new, k7, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp,
+                         phi)
+            if res < 0:
+                _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
+                return STATUS_INTERVALS_FULL
             t = t + h
             for j in range(N_Y):
                 y[j] = ynew[j]
                 k1[j] = k7[j]
             tu = tu_new
             tc = tc_new
-            res = record(t, y, tu, tc, k7, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi)
-            if res < 0:
-                _save(state, t - h, y, h, n_h, n_iv, n_rej, tu, tc)
-                return STATUS_INTERVALS_FULL
             n_iv = res
             n_h += 1
             steps += 1
