@@ -153,7 +153,7 @@ def run_kernel(grid, core, iso, par, law, y0, t_guess, max_steps, progress=None,
 
     hist = np.zeros((history_rows, k.N_H))
     iv = np.zeros((interval_rows, k.N_I))
-    state = np.zeros(11)
+    state = np.zeros(17)
     state[1:1 + k.N_Y] = y0
     state[5] = 1.0  # first step [s]; the controller grows it
     state[9], state[10] = t_guess

@@ -262,34 +262,38 @@ def melt_mass_adiabat(tu, grid, law):
 
 
 @njit
-def _invert(kind, e, d, grid, core, par, law, guess):
-    """Temperature [K] whose stored heat is ``e``: mantle (kind 0, lid d) or core (kind 1).
+def _invert(kind, e, d, grid, core, par, law, guess, slope):
+    """Temperature [K] whose stored heat is ``e``, and the last slope dE/dT: mantle (kind 0, lid d) or
+    core (kind 1).
 
-    Newton's first step with a centred slope, then secant steps; bisection on [10, 2e5] K
-    if that fails. Both stored-heat functions rise monotonically with temperature."""
+    Newton's first step with the caller's slope (the previous call's, > 0) or a centred difference, then
+    secant steps; bisection on [10, 2e5] K if that fails. Both stored-heat functions rise monotonically
+    with temperature."""
     t0 = min(max(guess, 10.0), 2.0e5)
-    if kind == 0:
-        f0 = mantle_energy(t0, d, grid, par, law) - e
+    f0 = (mantle_energy(t0, d, grid, par, law) if kind == 0 else core_energy(t0, core, par)) - e
+    s = slope
+    if not s > 0.0:
         hh = 1e-3 * max(1.0, 1e-4 * t0)
-        s = (mantle_energy(t0 + hh, d, grid, par, law) - mantle_energy(t0 - hh, d, grid, par, law)) / (2 * hh)
-    else:
-        f0 = core_energy(t0, core, par) - e
-        hh = 1e-3 * max(1.0, 1e-4 * t0)
-        s = (core_energy(t0 + hh, core, par) - core_energy(t0 - hh, core, par)) / (2 * hh)
+        if kind == 0:
+            s = (mantle_energy(t0 + hh, d, grid, par, law) - mantle_energy(t0 - hh, d, grid, par, law)) / (2 * hh)
+        else:
+            s = (core_energy(t0 + hh, core, par) - core_energy(t0 - hh, core, par)) / (2 * hh)
     scale = abs(e) + 1.0
     for _ in range(40):
         if abs(f0) <= 1e-14 * scale:
-            return t0
+            return t0, s
         if not s > 0.0:
             break
         t1 = t0 - f0 / s
         if not (10.0 <= t1 <= 2.0e5):
             break
         f1 = (mantle_energy(t1, d, grid, par, law) if kind == 0 else core_energy(t1, core, par)) - e
+        if f1 != f0 and t1 != t0:
+            s_new = (f1 - f0) / (t1 - t0)
+            if s_new > 0.0:
+                s = s_new
         if abs(t1 - t0) <= 1e-12 * t0:
-            return t1
-        if f1 != f0:
-            s = (f1 - f0) / (t1 - t0)
+            return t1, s
         t0 = t1
         f0 = f1
     lo = 10.0
@@ -303,16 +307,17 @@ def _invert(kind, e, d, grid, core, par, law, guess):
             lo = mid
         if hi - lo <= 1e-12 * mid:
             break
-    return 0.5 * (lo + hi)
+    return 0.5 * (lo + hi), 0.0
 
 
 @njit
 def temperatures(y, grid, core, par, law, work):
-    """(T_u, T_c) of the energy state y; ``work`` holds the last solution as the next guess."""
+    """(T_u, T_c) of the energy state y; ``work`` = (T_u, T_c, dE_m/dT_u, dE_c/dT_c) of the last solution,
+    the starting point of the next (a slope <= 0 asks for a fresh centred difference)."""
     d = max(y[Y_LID], 0.0) if par[P_STAGNANT] > 0.5 else 0.0
-    tu = _invert(0, y[Y_EM], d, grid, core, par, law, work[0])
+    tu, work[2] = _invert(0, y[Y_EM], d, grid, core, par, law, work[0], work[2])
     if core[C_W].sum() > 0.0:
-        tc = _invert(1, y[Y_EC], 0.0, grid, core, par, law, work[1])
+        tc, work[3] = _invert(1, y[Y_EC], 0.0, grid, core, par, law, work[1], work[3])
     else:
         tc = work[1]
     work[0] = tu
@@ -694,7 +699,8 @@ def record(t, y, tu, tc, dy, diag, grid, core, par, law, hist, n_h, iv, n_iv, te
 
 @njit
 def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
-    """Advance from ``state`` = (t, y[0..3], h, n_hist, n_iv, n_rejected, T_u, T_c) until the end time, a full
+    """Advance from ``state`` = (t, y[0..3], h, n_hist, n_iv, n_rejected, T_u, T_c, dE_m/dT_u, dE_c/dT_c,
+    dy/dt[0..3]) until the end time, a full
     buffer or max_steps; updates ``state`` in place (so a call can resume) and returns a STATUS_* code.
 
     Error control on the two energies (relative rtol plus the heat of atol_k) and on the lid (relative plus
@@ -707,7 +713,8 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
     temp = np.empty(n)
     phi = np.empty(n)
     diag = np.empty(N_D)
-    work = np.empty(2)
+    work = np.zeros(4)
+    work0 = np.zeros(4)
     y = np.empty(N_Y)
     ynew = np.empty(N_Y)
     tmp = np.empty(N_Y)
@@ -727,6 +734,8 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
     n_rej = int(state[8])
     work[0] = state[9]
     work[1] = state[10]
+    work[2] = state[11]
+    work[3] = state[12]
     t_end = par[P_T_END]
     rtol = par[P_RTOL]
     dt_max = par[P_DT_MAX]
@@ -734,7 +743,11 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
     abs_e_m = par[P_ATOL] * par[P_MANTLE_MASS] * par[P_CM]
     abs_e_c = par[P_ATOL] * max(core[C_W].sum() * par[P_CC], 1.0)
     abs_lid = par[P_ATOL] * 1.0e3
-    rhs(t, y, grid, core, iso, par, law, work, diag, k1)
+    if n_h == 0:
+        rhs(t, y, grid, core, iso, par, law, work, diag, k1)
+    else:  # resuming: the last accepted stage's slopes (first-same-as-last), exactly as left
+        for j in range(N_Y):
+            k1[j] = state[13 + j]
     tu = work[0]
     tc = work[1]
     if n_h == 0:
@@ -746,10 +759,10 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
     steps = 0
     while t < t_end * (1.0 - 1e-14):
         if n_h >= hist.shape[0]:
-            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1)
             return STATUS_HISTORY_FULL
         if steps >= max_steps:
-            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1)
             return STATUS_MAX_STEPS
         # temperature-step limit from the current slopes
         dtu, dtc = temperature_rates(tu, tc, y[Y_LID], k1, grid, core, par, law)
@@ -758,8 +771,10 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
             h = min(h, dt_max / rate)
         h = min(h, par[P_H_MAX], t_end - t)
         if h < 1e-6:
-            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1)
             return STATUS_STEP_TOO_SMALL
+        for j in range(4):
+            work0[j] = work[j]
         for j in range(N_Y):
             tmp[j] = y[j] + h * A21 * k1[j]
         rhs(t + C2 * h, tmp, grid, core, iso, par, law, work, diag, k2)
@@ -815,7 +830,7 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
             res = record(t + h, ynew, tu_new, tc_new, k7, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp,
                          phi)
             if res < 0:
-                _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
+                _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work0, k1)
                 return STATUS_INTERVALS_FULL
             t = t + h
             for j in range(N_Y):
@@ -838,12 +853,12 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
                 h = 0.3 * h
             else:
                 h = h * max(0.1, 0.9 * err ** (-0.25))
-    _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc)
+    _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1)
     return STATUS_DONE
 
 
 @njit
-def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc):
+def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1):
     state[0] = t
     for j in range(N_Y):
         state[1 + j] = y[j]
@@ -853,6 +868,10 @@ def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc):
     state[8] = n_rej
     state[9] = tu
     state[10] = tc
+    state[11] = work[2]
+    state[12] = work[3]
+    for j in range(N_Y):
+        state[13 + j] = k1[j]
 
 
 @njit
@@ -867,7 +886,9 @@ def rhs_py(t, y, grid, core, iso, par, law, guess):
     """dy/dt as a new array (for checks); ``guess`` = (T_u, T_c) start of the inversion."""
     diag = np.empty(N_D)
     dy = np.empty(N_Y)
-    work = guess.copy()
+    work = np.zeros(4)
+    work[0] = guess[0]
+    work[1] = guess[1]
     rhs(t, y, grid, core, iso, par, law, work, diag, dy)
     return dy
 
