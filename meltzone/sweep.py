@@ -1229,8 +1229,8 @@ def run_sweep(spec_or_path, out_path, executor=None, workers: int | None = None,
             futures = {}
             base_arg = backend.scatter_base(spec.base) if isinstance(backend, _DaskBackend) else spec.base
             # a few cases per task share the scheduler's and the pipe's per-task cost (1 per task for
-            # small sweeps, up to 8 for large ones); results are still recorded and checkpointed per case
-            size = max(1, min(8, len(todo) // 64))
+            # small sweeps, up to 16 for large ones); results are still recorded and checkpointed per case
+            size = max(1, min(16, len(todo) // 64))
             for start in range(0, len(todo), size):
                 chunk = todo[start:start + size]
                 payload = [(idx, assign, obs) for idx, _, assign, obs in (spec.case_payload(i) for i in chunk)]
