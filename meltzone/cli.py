@@ -537,6 +537,8 @@ def config(example):
               help="Local process pool of N workers (default: one per core).")
 @click.option("--dask-local", "dask_local", type=click.IntRange(min=1), default=None, metavar="N",
               help="Start a Dask LocalCluster of N worker processes (1 thread each) on 127.0.0.1.")
+@click.option("--dashboard", default=None, metavar="HOST:PORT",
+              help="With --dask-local: serve the Dask dashboard here, e.g. 127.0.0.1:8787 (default: none).")
 @click.option("--scheduler", default=None, metavar="ADDRESS",
               help="Connect to a running Dask scheduler, e.g. tcp://10.0.0.5:8786 (SLURM/PBS via dask-jobqueue).")
 @click.option("--resume", is_flag=True, help="Finish an interrupted sweep: run only the cases not checkpointed.")
@@ -545,7 +547,8 @@ def config(example):
               help="Write a checkpoint batch after N finished cases (and at least every 5 s).")
 @click.option("--example", is_flag=True, help="Print a commented sweep spec and exit.")
 @_user_errors
-def sweep_command(spec, output, workers, dask_local, scheduler, resume, keep_detail, checkpoint_every, example):
+def sweep_command(spec, output, workers, dask_local, dashboard, scheduler, resume, keep_detail, checkpoint_every,
+                  example):
     """Run a parameter study (grid, Latin hypercube, Sobol', Monte Carlo or observed planet) from SPEC."""
     if example:
         from .sweep import EXAMPLE_SPEC
@@ -560,6 +563,8 @@ def sweep_command(spec, output, workers, dask_local, scheduler, resume, keep_det
                                    ("--scheduler", scheduler)) if v is not None]
     if len(chosen) > 1:
         raise click.UsageError(f"choose one executor: {' and '.join(chosen)} exclude each other")
+    if dashboard is not None and dask_local is None:
+        raise click.BadParameter("only with --dask-local", param_hint="--dashboard")
     from .sweep import progress_path, run_sweep
 
     executor, n = None, workers
@@ -567,7 +572,7 @@ def sweep_command(spec, output, workers, dask_local, scheduler, resume, keep_det
         executor, n = "dask-local", dask_local
     try:
         report = run_sweep(spec, output, executor=executor, workers=n, resume=resume, keep_detail=keep_detail,
-                           scheduler=scheduler, checkpoint_every=checkpoint_every)
+                           scheduler=scheduler, checkpoint_every=checkpoint_every, dashboard=dashboard)
     except KeyboardInterrupt:
         click.echo(f"\ninterrupted: finished cases are checkpointed in {progress_path(output)}; "
                    "re-run with --resume to finish", err=True)

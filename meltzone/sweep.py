@@ -956,8 +956,10 @@ class _DaskBackend:
 
     restartable = False
 
-    def __init__(self, client=None, *, local_workers: int | None = None, scheduler: str | None = None):
+    def __init__(self, client=None, *, local_workers: int | None = None, scheduler: str | None = None,
+                 dashboard: str | None = None):
         self.cluster = None
+        self.dashboard = dashboard
         self.tmp = None
         self.own = client is None
         if client is None:
@@ -991,10 +993,12 @@ class _DaskBackend:
         try:
             # the workers' statistical profiler samples every task's stack (~5% of a tiny case); not needed
             with dask.config.set({"temporary-directory": self.tmp, "distributed.worker.profile.enabled": False}):
-                # no dashboard; the scheduler's remaining HTTP routes (health) on a free loopback port
+                # no dashboard unless asked (then on loopback only); the scheduler's remaining HTTP routes
+                # (health) on a free loopback port
+                dash = self.dashboard
                 self.cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True, host="127.0.0.1",
-                                            dashboard_address=None, worker_dashboard_address=None,
-                                            scheduler_kwargs={"dashboard_address": "127.0.0.1:0"},
+                                            dashboard_address=dash, worker_dashboard_address=None,
+                                            scheduler_kwargs={"dashboard_address": dash or "127.0.0.1:0"},
                                             local_directory=self.tmp, silence_logs=logging.ERROR)
             self.name = f"dask LocalCluster ({n} workers)"
             return Client(self.cluster)
@@ -1048,7 +1052,7 @@ def _is_dask_client(obj) -> bool:
     return type(obj).__module__.split(".")[0] == "distributed" and hasattr(obj, "submit") and hasattr(obj, "gather")
 
 
-def _backend(executor, workers, scheduler):
+def _backend(executor, workers, scheduler, dashboard=None):
     if workers is not None and (isinstance(workers, bool) or not isinstance(workers, int) or workers < 1):
         raise ConfigError(f"workers = {workers!r}: must be an integer >= 1")
     if scheduler is not None:
@@ -1062,7 +1066,9 @@ def _backend(executor, workers, scheduler):
     if executor == "serial":
         return _SerialBackend()
     if executor == "dask-local":
-        return _DaskBackend(local_workers=workers)
+        return _DaskBackend(local_workers=workers, dashboard=dashboard)
+    if dashboard is not None:
+        raise ConfigError("dashboard: only for a Dask LocalCluster started here (executor 'dask-local')")
     if executor == "dask":
         raise ConfigError("executor 'dask' needs scheduler=ADDRESS (or pass a distributed.Client)")
     if isinstance(executor, str):
@@ -1104,8 +1110,8 @@ class SweepReport:
 
 def run_sweep(spec_or_path, out_path, executor=None, workers: int | None = None, resume: bool = False,
               progress=None, keep_detail: bool = False, *, scheduler: str | None = None,
-              checkpoint_every: int = 64, checkpoint_seconds: float = 5.0, max_pool_restarts: int = 3
-              ) -> SweepReport:
+              checkpoint_every: int = 64, checkpoint_seconds: float = 5.0, max_pool_restarts: int = 3,
+              dashboard: str | None = None) -> SweepReport:
     """Run every case of a sweep and write one HDF5 table.
 
     Parameters
@@ -1136,6 +1142,9 @@ def run_sweep(spec_or_path, out_path, executor=None, workers: int | None = None,
         comes first (and on Ctrl-C).
     max_pool_restarts : int
         How often a local process pool whose worker died is restarted before giving up.
+    dashboard : str, optional
+        ``"HOST:PORT"`` at which a Dask LocalCluster started here (``executor="dask-local"``) serves its
+        dashboard, e.g. ``"127.0.0.1:8787"``; none by default.
 
     Returns
     -------
@@ -1222,7 +1231,7 @@ def run_sweep(spec_or_path, out_path, executor=None, workers: int | None = None,
     try:
         report()
         if todo:
-            backend = _backend(executor, workers, scheduler)
+            backend = _backend(executor, workers, scheduler, dashboard)
         restarts = 0
         token = identity[:12] + "-" + os.urandom(4).hex()
         while todo:

@@ -484,3 +484,17 @@ def test_cli_runs_and_summary_reads_the_file(tmp_path):
     res = CliRunner().invoke(main, ["summary", str(out), "--json"])
     assert res.exit_code == 0, res.output
     assert json.loads(res.output)["n_cases"] == 2
+
+
+def test_dashboard_only_when_asked_and_only_for_a_local_cluster(tmp_path):
+    """The dashboard option belongs to --dask-local; elsewhere it is a one-line error (exit 2)."""
+    from click.testing import CliRunner
+
+    from meltzone.cli import main as cli_main
+
+    spec = tmp_path / "s.toml"
+    spec.write_text('[sweep]\nmode = "grid"\n[base.run]\nend_time_gyr = 0.01\n'
+                    '[parameters."planet.mass_earth"]\nvalues = [1.0]\n')
+    res = CliRunner().invoke(cli_main, ["sweep", str(spec), "-o", str(tmp_path / "o.h5"),
+                                        "--dashboard", "127.0.0.1:8787"])
+    assert res.exit_code == 2 and "--dask-local" in res.output and "Traceback" not in res.output
