@@ -111,8 +111,12 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
             source="this model's choice (see evolution.kernel.activation_enthalpy)"),
         "critical_rayleigh": Key(450.0, "1", "critical Rayleigh number", lo=1.0, hi=1.0e5,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
-        "beta": Key(1.0 / 3.0, "1", "exponent of the Nusselt-Rayleigh scaling", lo=0.05, hi=0.5,
+        "beta": Key(1.0 / 3.0, "1", "exponent of the Nusselt-Rayleigh scaling Nu = a (Ra / Ra_cr)^beta",
+                    lo=0.0, hi=0.5,
             source='Stevenson, Spohn & Schubert 1983, Icarus 54:466 (common practice)'),
+        "nusselt_prefactor": Key(1.0, "1", "prefactor a of the Nusselt-Rayleigh scaling Nu = a (Ra / Ra_cr)^beta "
+                                 "of the upper boundary layer", lo=0.0, hi=1.0e4, lo_open=True,
+            source='1 in Stevenson, Spohn & Schubert 1983, Icarus 54:466'),
         "rheology_a": Key(2.5, "1", "factor of the rheological temperature scale (stagnant lid)",
                           lo=0.5, hi=10.0,
             source='Grasset & Parmentier 1998, JGR 103:18171; Solomatov & Moresi 2000 (2.2-2.5; from memory)'),

@@ -96,14 +96,25 @@ class ReferenceModel:
             qc = 0.0
         t_eq = par[k.P_T_EQ]
 
-        def q_conv(ts):
+        def q_conv(ts, a, beta):
             ra = (par[k.P_ALPHA] * par[k.P_RHO_MANTLE] * par[k.P_G_SURF] * max(tu - ts + max(dtc, 0), 1e-6)
                   * depth**3 / (par[k.P_KAPPA] * eta_u))
-            delta = min(depth * (par[k.P_RA_CR] / ra) ** par[k.P_BETA], depth)
+            delta = min(depth * (par[k.P_RA_CR] / ra) ** beta / a, depth)
             return par[k.P_K] * (tu - ts) / delta
 
-        ts = brentq(lambda s: q_conv(s) - SIGMA * (s**4 - t_eq**4), t_eq, tu, xtol=1e-9, rtol=1e-13)
-        qs = q_conv(ts)
+        def surface_flux(a, beta):
+            ts = brentq(lambda s: q_conv(s, a, beta) - SIGMA * (s**4 - t_eq**4), t_eq, tu, xtol=1e-9, rtol=1e-13)
+            return q_conv(ts, a, beta)
+
+        # magma-ocean top: Nu = (Ra / Ra_cr)^(1/3); solid mantle: Nu = a (Ra / Ra_cr)^beta; smoothstep blend
+        # over phi_c < phi_top < phi_c + 0.05
+        x = (phi_top - par[k.P_PHI_C]) / 0.05
+        w = 0.0 if x <= 0 else (1.0 if x >= 1 else x * x * (3 - 2 * x))
+        qs = 0.0
+        if w > 0.0:
+            qs += w * surface_flux(1.0, 1.0 / 3.0)
+        if w < 1.0:
+            qs += (1.0 - w) * surface_flux(par[k.P_NU_A], par[k.P_BETA])
         h = float(np.sum(self.iso[:, 0] * np.exp(self.iso[:, 1] * (par[k.P_START_AGE] - t)))) * par[k.P_MANTLE_MASS]
         return qs * 4 * math.pi * par[k.P_RADIUS] ** 2, qc * 4 * math.pi * par[k.P_CORE_RADIUS] ** 2, h
 

@@ -78,6 +78,51 @@ def test_earth_cools_at_a_plausible_rate(earth):
     assert 0.0 < then - h["upper_temperature"][-1] < 300.0
 
 
+# ------------------------------------------------------------------ Earth hindcast with a weak scaling
+#: beta = 0 stands for plate tectonics whose heat flow barely depends on mantle viscosity (Korenaga 2008,
+#: Rev. Geophys. 46:RG2007; Christensen 1985, JGR 90:2995; from memory); a = 46 is this project's
+#: calibration, chosen in a scan of a = 40-55 so that the present heat flow lands in its range. Two checks
+#: then test the model and not the calibration: the potential temperature (which with one free parameter
+#: need not land as well) and the CMB heat flow.
+WEAK = {"beta": 0.0, "nusselt_prefactor": 46.0}
+
+
+@pytest.fixture(scope="module")
+def earth_weak():
+    return evolve(PlanetSpec(mass_earth=1.0, core_mass_fraction=0.325, regime="mobile-lid", end_time_gyr=4.5,
+                             **WEAK))
+
+
+def test_weak_scaling_earth_today(earth_weak):
+    """Present Earth (Jaupart et al. 2007 surface heat flow 46 +- 3 TW; Herzberg et al. 2010 potential
+    temperature 1280-1400 C; Lay et al. 2008 CMB 5-15 TW; Korenaga 2008 bulk Urey ratio accepted 0.2-0.5)."""
+    h = earth_weak.history
+    assert 43e12 <= h["surface_heat_flow"][-1] <= 49e12
+    assert 1280.0 <= h["upper_temperature"][-1] - 273.15 <= 1400.0
+    assert 5e12 <= h["cmb_heat_flow"][-1] <= 15e12
+    assert 0.2 <= h["radiogenic_power"][-1] / h["surface_heat_flow"][-1] <= 0.5
+
+
+def test_weak_scaling_archean_mantle(earth_weak):
+    """Potential temperature 1500-1600 C at 2.5-3.0 Ga (Herzberg, Condie & Korenaga 2010, EPSL 292:79). At 3 Ga
+    the model sits at the magma-ocean threshold of the default curves (~1517 C), see the xfail below."""
+    h = earth_weak.history
+    t = h["time"]
+    for age in (2.5, 3.0):
+        tp = np.interp(t[-1] - age * GYR, t, h["upper_temperature"]) - 273.15
+        assert 1500.0 <= tp <= 1600.0
+
+
+@pytest.mark.xfail(strict=True, reason="with a weak scaling the early mantle makes heat faster than it loses it "
+                   "and warms until its adiabat reaches phi_c at the surface, where the magma-ocean regime holds "
+                   "it for ~2 Gyr; without melt extraction the model has no other way to vent that heat (known "
+                   "limitation)")
+def test_weak_scaling_magma_ocean_ends_early(earth_weak):
+    """Earth's magma ocean ended within ~100 Myr of accretion (Elkins-Tanton 2008, EPSL 271:181; Lebrun et al.
+    2013: ~1 Myr; from memory)."""
+    assert summarize(earth_weak)["magma_ocean_end_yr"] < 1e8
+
+
 # ------------------------------------------------------------------ numerics
 def test_energy_closure(earth):
     """Stored-heat change equals the integrated (surface loss - radiogenic) to 1e-4 (required); the energy
@@ -86,10 +131,13 @@ def test_energy_closure(earth):
     assert np.max(np.abs(earth.history["closure_error"])) <= 1e-9
 
 
-def test_against_scipy_reference():
+@pytest.mark.parametrize("scaling", [{}, {"beta": 0.1, "nusselt_prefactor": 10.0}],
+                         ids=["beta-1/3", "weak-beta"])
+def test_against_scipy_reference(scaling):
     """The numba Dormand-Prince path against a plain NumPy + scipy solve_ivp (LSODA) path in temperature form:
-    upper-mantle temperature within 1e-3 relative over the whole run, core temperature too."""
-    spec = PlanetSpec(mass_earth=1.0, end_time_gyr=4.5, mantle_nodes=128)
+    upper-mantle temperature within 1e-3 relative over the whole run, core temperature too; for the default
+    scaling and for a weak one (whose solid-state law differs from the magma ocean's)."""
+    spec = PlanetSpec(mass_earth=1.0, end_time_gyr=4.5, mantle_nodes=128, **scaling)
     r = evolve(spec)
     t_eval = np.geomspace(1e3, r.time[-1], 30)
     sol = ReferenceModel(spec).run(t_eval)

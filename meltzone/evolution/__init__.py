@@ -93,6 +93,7 @@ def build_arrays(spec: PlanetSpec, interior: Interior):
     par[k.P_V_DECAY] = cv.activation_volume_decay_pa
     par[k.P_RA_CR] = cv.critical_rayleigh
     par[k.P_BETA] = cv.beta
+    par[k.P_NU_A] = cv.nusselt_prefactor
     par[k.P_A_RH] = cv.rheology_a
     par[k.P_MELT_WEAK] = cv.melt_weakening
     par[k.P_ETA_LIQ] = cv.liquid_viscosity_pa_s

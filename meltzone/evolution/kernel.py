@@ -16,10 +16,14 @@ E_m + E_c + Y_OUT, whatever the kinks of the melt-fraction law.
 Physics (each law with its source and range; radiogenic data in :mod:`meltzone.evolution.heating`;
 the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
 
-* boundary-layer scaling q = k dT / D (Ra / Ra_cr)^beta for the upper layer
-  (Stevenson, Spohn & Schubert 1983, Icarus 54:466; beta = 1/3 and Ra_cr ~ 500
-  as there, Ra_cr = 450 as in Tosi et al. 2017, A&A 605:A71), valid for
-  Ra >> Ra_cr; the bottom layer from the local critical Rayleigh number,
+* boundary-layer scaling q = a k dT / D (Ra / Ra_cr)^beta for the upper layer
+  of the solid mantle (Stevenson, Spohn & Schubert 1983, Icarus 54:466: a = 1,
+  beta = 1/3 and Ra_cr ~ 500; Ra_cr = 450 as in Tosi et al. 2017, A&A 605:A71),
+  valid for Ra >> Ra_cr. beta and a are configurable: weaker exponents
+  (beta ~ 0-0.15) stand for plate-bending or dehydration-limited plate
+  tectonics (Christensen 1985, JGR 90:2995; Korenaga 2008, Rev. Geophys.
+  46:RG2007; from memory) and need a > 1 for Earth-like heat flow. The magma
+  ocean always keeps a = 1, beta = 1/3 (below). The bottom layer from the local critical Rayleigh number,
   delta_c = (kappa eta_c Ra_cr / (alpha rho g_c dT_c))^(1/3) (same source),
   capped at half the mantle depth;
 * Arrhenius viscosity eta = A exp[H(P)/(R T)] exp(-alpha_phi phi), H = E + int V dP
@@ -58,9 +62,13 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   latent and gravitational energy) is one function of (T_u, lid) for the mantle
   and of T_c for the core: dE_m/dt = -Q_surface + Q_cmb + H, dE_c/dt = -Q_cmb.
 
-Known limitation: with beta = 1/3 the mantle equilibrates with its heating within
+Known limitations: with beta = 1/3 the mantle equilibrates with its heating within
 ~1 Gyr, so an Earth hindcast gives a present heat flow of ~31 TW (46 TW observed)
 and a Urey ratio ~0.6 (Korenaga 2008, Rev. Geophys. 46:RG2007 discuss this paradox).
+A weak scaling (beta = 0, a ~ 45) lands on the present heat flow, but its early
+mantle, which then loses heat more slowly than it makes it, warms until the adiabat
+reaches phi_c at the surface and is held there, in the magma-ocean regime, until
+~1.9 Gyr: without melt extraction the model has no other way to vent that heat.
 """
 
 from __future__ import annotations
@@ -80,8 +88,8 @@ N_Y = 4
 (P_RADIUS, P_CORE_RADIUS, P_G_SURF, P_G_CMB, P_RHO_MANTLE, P_RHO_TOP, P_K, P_KAPPA, P_ALPHA, P_CM, P_LATENT,
  P_A_VISC, P_E_ACT, P_V_ACT, P_RA_CR, P_BETA, P_A_RH, P_MELT_WEAK, P_ETA_LIQ, P_PHI_C, P_CC, P_LC, P_EG,
  P_T_EQ, P_ATMOSPHERE, P_H2O_TOTAL, P_CO2_TOTAL, P_STAGNANT, P_P_CMB, P_START_AGE, P_LAW, P_DT_MAX, P_RTOL,
- P_T_END, P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS, P_V_DECAY, P_ATOL) = range(40)
-N_PAR = 40
+ P_T_END, P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS, P_V_DECAY, P_ATOL, P_NU_A) = range(41)
+N_PAR = 41
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 (G_R, G_P, G_F, G_W, G_TSOL, G_TLIQ, G_AUX1, G_AUX2) = range(8)
@@ -335,19 +343,29 @@ def energy_state(tu, tc, d_lid, out, grid, core, par, law, y):
 
 
 @njit
-def _surface_balance(stagnant, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par):
+def top_layer_thickness(d_conv, ra, solid, par):
+    """Upper thermal boundary layer [m]: delta = D (Ra_cr / Ra)^beta / a, i.e. Nu = a (Ra / Ra_cr)^beta,
+    capped at the convecting depth D. Solid-state convection (``solid``) uses the configured (a, beta);
+    the magma ocean keeps the soft-turbulence form a = 1, beta = 1/3 (Stevenson et al. 1983 form)."""
+    if solid:
+        return min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA] / par[P_NU_A], d_conv)
+    return min(d_conv * (par[P_RA_CR] / ra) ** (1.0 / 3.0), d_conv)
+
+
+@njit
+def _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par):
     """Conductive flux through the top layer minus radiated flux at surface temperature ts [W/m^2]."""
     if stagnant:
         q_cond = par[P_K] * (tl - ts) / d_lid
     else:
         ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
-        delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
+        delta_u = top_layer_thickness(d_conv, ra, solid, par)
         q_cond = par[P_K] * (tu - ts) / delta_u
     return q_cond - eps * SIGMA_SB * (ts ** 4 - par[P_T_EQ] ** 4)
 
 
 @njit
-def _top_boundary(stagnant, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
+def _top_boundary(stagnant, solid, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
     """(T_s, q_surface, q_u, delta_u) at the top: the surface temperature balances the conductive flux through
     the top layer (boundary layer, or lid over the boundary layer) with eps sigma (T_s^4 - T_eq^4).
 
@@ -362,11 +380,11 @@ def _top_boundary(stagnant, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
     base = par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_SURF] * d_conv ** 3 / (par[P_KAPPA] * eta_u)
     if stagnant:
         ra = base * max(tu - tl + max(dtc, 0.0), 1e-6)
-        delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
+        delta_u = top_layer_thickness(d_conv, ra, True, par)
     # Illinois (modified regula falsi) on g(T_s) = q_cond - q_rad, which falls monotonically from
     # g(T_eq) >= 0 to g(T_top) <= 0
-    g_lo = _surface_balance(stagnant, lo, tu, tl, d_lid, d_conv, dtc, base, eps, par)
-    g_hi = _surface_balance(stagnant, hi, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+    g_lo = _surface_balance(stagnant, solid, lo, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+    g_hi = _surface_balance(stagnant, solid, hi, tu, tl, d_lid, d_conv, dtc, base, eps, par)
     side = 0
     ts = lo
     prev = -1.0
@@ -380,7 +398,7 @@ def _top_boundary(stagnant, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
         ts = (lo * g_hi - hi * g_lo) / (g_hi - g_lo)
         if not (lo < ts < hi):
             ts = 0.5 * (lo + hi)
-        g = _surface_balance(stagnant, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+        g = _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par)
         if g > 0.0:
             lo, g_lo = ts, g
             if side == -1:
@@ -397,7 +415,7 @@ def _top_boundary(stagnant, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
     if stagnant:
         return ts, par[P_K] * (tl - ts) / d_lid, par[P_K] * (tu - tl) / delta_u, delta_u
     ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
-    delta_u = min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA], d_conv)
+    delta_u = top_layer_thickness(d_conv, ra, solid, par)
     q = par[P_K] * (tu - ts) / delta_u
     return ts, q, q, delta_u
 
@@ -417,8 +435,8 @@ def diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag):
     stagnant = par[P_STAGNANT] > 0.5 and not magma
     eta_u = viscosity(tu, par[P_P_TOP], phi_top, par)
     tb = tu * grid[G_F, 0]
-    # bottom boundary layer (local critical Rayleigh number)
     dtc = tc - tb
+    # bottom boundary layer (local critical Rayleigh number)
     t_mean_c = 0.5 * (tc + tb)
     phi_c = node_melt(t_mean_c, grid, 0, law_i)
     eta_c = viscosity(t_mean_c, par[P_P_CMB], phi_c, par)
@@ -446,33 +464,36 @@ def diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag):
         tau += 3.0 * m_h2o / (2.0 * area) * math.sqrt(0.01 * par[P_G_SURF] / (3.0 * 101325.0))
         tau += 3.0 * m_co2 / (2.0 * area) * math.sqrt(0.001 * par[P_G_SURF] / (3.0 * 101325.0))
         eps = 2.0 / (tau + 2.0)
-    # top boundary: mobile (magma ocean or mobile lid) and, in stagnant-lid mode, the lid; across the
-    # rheological transition (phi_c < phi_top < phi_c + BLEND_WIDTH) the two are blended with the same
-    # weight as the viscosity, so that the fluxes are continuous in T_u
-    ts_m, qs_m, qu_m, du_m = _top_boundary(False, tu, tu, 0.0, depth, dtc, eta_u, eps, par)
+    # top boundary: the magma ocean (soft-turbulence law) and the solid mantle (the configured law: mobile
+    # lid, or the lid over its sublayer in stagnant-lid mode); across the rheological transition
+    # (phi_c < phi_top < phi_c + BLEND_WIDTH) the two are blended with the same weight as the viscosity,
+    # so that the fluxes are continuous in T_u
+    w_mo = smoothstep((phi_top - par[P_PHI_C]) / BLEND_WIDTH)
+    ts_m, qs_m, qu_m, du_m = 0.0, 0.0, 0.0, 0.0
+    if w_mo > 0.0:
+        ts_m, qs_m, qu_m, du_m = _top_boundary(False, False, tu, tu, 0.0, depth, dtc, eta_u, eps, par)
     tl = tu
-    w_mo = 1.0
     ddl_sl = 0.0
-    if par[P_STAGNANT] > 0.5:
-        w_mo = smoothstep((phi_top - par[P_PHI_C]) / BLEND_WIDTH)
-        if w_mo < 1.0:
+    ts_s, qs_s, qu_s, du_s = ts_m, qs_m, qu_m, du_m
+    if w_mo < 1.0:
+        if par[P_STAGNANT] > 0.5:
             tl = lid_base_temperature(tu, par)
             d_eff = max(d_lid, par[P_LID_MIN])
             d_conv = max(depth - d_eff, 0.05 * depth)
-            ts_s, qs_s, qu_s, du_s = _top_boundary(True, tu, tl, d_eff, d_conv, dtc, eta_u, eps, par)
+            ts_s, qs_s, qu_s, du_s = _top_boundary(True, True, tu, tl, d_eff, d_conv, dtc, eta_u, eps, par)
             # rho c (T_u - T_lid,mean) dD/dt = q_lid - q_u: new lid material is cooled from T_u to the mean of
             # the linear lid profile, the same bookkeeping as mantle_energy (with it, the convecting mantle
             # loses exactly q_u at the lid base)
             t_lid_mean = 0.5 * (par[P_T_EQ] + tl)
             ddl_sl = (qs_s - qu_s) / (par[P_RHO_TOP] * par[P_CM] * max(tu - t_lid_mean, 1.0))
         else:
-            ts_s, qs_s, qu_s, du_s = ts_m, qs_m, qu_m, du_m
-    else:
-        ts_s, qs_s, qu_s, du_s = ts_m, qs_m, qu_m, du_m
+            ts_s, qs_s, qu_s, du_s = _top_boundary(False, True, tu, tu, 0.0, depth, dtc, eta_u, eps, par)
+    if w_mo <= 0.0:
+        ts_m, qs_m, qu_m, du_m = ts_s, qs_s, qu_s, du_s
     qs = w_mo * qs_m + (1.0 - w_mo) * qs_s
     qu = w_mo * qu_m + (1.0 - w_mo) * qu_s
     ts = w_mo * ts_m + (1.0 - w_mo) * ts_s
-    delta_u = du_s if stagnant else du_m
+    delta_u = du_m if magma else du_s
     # lid: grows by the stagnant-lid law, thins back to its minimum over ~1 kyr where the top is molten
     diag[D_DLID] = (1.0 - w_mo) * ddl_sl + w_mo * (par[P_LID_MIN] - d_lid) / 3.15576e10
     r_ic, m_ic = inner_core(tc, core)
