@@ -35,7 +35,8 @@ HISTORY_FIELDS = {
     "inner_core_radius": ("H_RIC", "m", "inner-core radius"),
     "melt_mass": ("H_MELT", "kg", "mass of melt in the mantle"),
     "regime": ("H_REGIME", "1", "0 magma ocean, 1 mobile lid, 2 stagnant lid"),
-    "top_melt_fraction": ("H_PHI_TOP", "1", "melt fraction at the top of the convecting mantle"),
+    "top_melt_fraction": ("H_PHI_TOP", "1", "melt fraction at the top of the convecting mantle that sets the "
+                           "regime: batch on the adiabat until it first falls to phi_c, isentropic after"),
     "upper_boundary_layer": ("H_DELTA_U", "m", "thickness of the upper thermal boundary layer"),
     "lower_boundary_layer": ("H_DELTA_C", "m", "thickness of the lower thermal boundary layer"),
     "lid_base_temperature": ("H_TL", "K", "temperature at the base of the lid (= T_u without a lid)"),

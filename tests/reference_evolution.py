@@ -10,6 +10,7 @@ not from its code paths: used only by the tests and the benchmark.
 from __future__ import annotations
 
 import math
+from types import SimpleNamespace
 
 import numpy as np
 from scipy.integrate import solve_ivp
@@ -38,10 +39,18 @@ class ReferenceModel:
         self.tsol = grid[k.G_TSOL]
         self.tliq = grid[k.G_TLIQ]
         self.p = par
+        # time [s] from which the top is judged by the isentropic melt fraction (see run)
+        self.t_solid = math.inf
 
     # ---- materials
     def phi(self, t, sl=slice(None)):
         return np.clip((t - self.tsol[sl]) / (self.tliq[sl] - self.tsol[sl]), 0.0, 1.0)
+
+    def phi_isentropic(self, t):
+        """Top node: phi = (T - T_sol) / (T_liq - T_sol + L / c_p), the linear law solved in closed form
+        for phi = phi_eq(T - L phi / c_p)."""
+        lc = self.p[k.P_LATENT] / self.p[k.P_CM]
+        return float(np.clip((t - self.tsol[-1]) / (self.tliq[-1] - self.tsol[-1] + lc), 0.0, 1.0))
 
     def viscosity(self, t, p, phi):
         par = self.p
@@ -79,11 +88,22 @@ class ReferenceModel:
             self.p[k.P_LC] + self.p[k.P_EG]) * self.inner_core_mass(tc)
 
     # ---- fluxes
+    def phi_surface(self, tu):
+        return float(self.phi(tu * self.f[-1:], slice(-1, None))[0])
+
     def fluxes(self, t, tu, tc):
         par = self.p
         depth = par[k.P_RADIUS] - par[k.P_CORE_RADIUS]
-        phi_top = float(self.phi(tu * self.f[-1:], slice(-1, None))[0])
-        eta_u = self.viscosity(tu, par[k.P_P_TOP], phi_top)
+        phi_surf = self.phi_surface(tu)
+        eta_u = self.viscosity(tu, par[k.P_P_TOP], phi_surf)
+        # after the top first reached phi_c: the regime follows the isentropic melt fraction, and the
+        # solid branch has melt weakening up to phi_c but no suspension
+        if t >= self.t_solid:
+            phi_top = self.phi_isentropic(tu * self.f[-1])
+            eta_s = self.viscosity(tu, par[k.P_P_TOP], min(phi_surf, par[k.P_PHI_C]))
+        else:
+            phi_top = phi_surf
+            eta_s = eta_u
         tb = tu * self.f[0]
         dtc = tc - tb
         tm = 0.5 * (tc + tb)
@@ -96,15 +116,16 @@ class ReferenceModel:
             qc = 0.0
         t_eq = par[k.P_T_EQ]
 
-        def q_conv(ts, a, beta):
+        def q_conv(ts, a, beta, eta):
             ra = (par[k.P_ALPHA] * par[k.P_RHO_MANTLE] * par[k.P_G_SURF] * max(tu - ts + max(dtc, 0), 1e-6)
-                  * depth**3 / (par[k.P_KAPPA] * eta_u))
+                  * depth**3 / (par[k.P_KAPPA] * eta))
             delta = min(depth * (par[k.P_RA_CR] / ra) ** beta / a, depth)
             return par[k.P_K] * (tu - ts) / delta
 
-        def surface_flux(a, beta):
-            ts = brentq(lambda s: q_conv(s, a, beta) - SIGMA * (s**4 - t_eq**4), t_eq, tu, xtol=1e-9, rtol=1e-13)
-            return q_conv(ts, a, beta)
+        def surface_flux(a, beta, eta):
+            ts = brentq(lambda s: q_conv(s, a, beta, eta) - SIGMA * (s**4 - t_eq**4), t_eq, tu, xtol=1e-9,
+                        rtol=1e-13)
+            return q_conv(ts, a, beta, eta)
 
         # magma-ocean top: Nu = (Ra / Ra_cr)^(1/3); solid mantle: Nu = a (Ra / Ra_cr)^beta; smoothstep blend
         # over phi_c < phi_top < phi_c + 0.05
@@ -112,9 +133,9 @@ class ReferenceModel:
         w = 0.0 if x <= 0 else (1.0 if x >= 1 else x * x * (3 - 2 * x))
         qs = 0.0
         if w > 0.0:
-            qs += w * surface_flux(1.0, 1.0 / 3.0)
+            qs += w * surface_flux(1.0, 1.0 / 3.0, eta_u)
         if w < 1.0:
-            qs += (1.0 - w) * surface_flux(par[k.P_NU_A], par[k.P_BETA])
+            qs += (1.0 - w) * surface_flux(par[k.P_NU_A], par[k.P_BETA], eta_s)
         h = float(np.sum(self.iso[:, 0] * np.exp(self.iso[:, 1] * (par[k.P_START_AGE] - t)))) * par[k.P_MANTLE_MASS]
         return qs * 4 * math.pi * par[k.P_RADIUS] ** 2, qc * 4 * math.pi * par[k.P_CORE_RADIUS] ** 2, h
 
@@ -128,9 +149,35 @@ class ReferenceModel:
         return [(-qs + qc + h) / c_m, -qc / c_c]
 
     def run(self, t_eval, rtol=1e-9, method="LSODA"):
+        """Solve to t_eval[-1]; returns (t, y) at t_eval. A terminal event finds when the top first reaches
+        phi_c, and a second solve continues from there with the isentropic criterion. Returns an object with
+        t, y (2 x len(t_eval): T_u, T_c) and nfev (right-hand-side calls)."""
         tu0, tc0 = initial_temperatures(self.spec, self.grid)
-        sol = solve_ivp(self.rhs, (0.0, float(t_eval[-1])), [tu0, tc0], method=method, t_eval=t_eval, rtol=rtol,
-                        atol=[1e-6, 1e-6], first_step=1.0)
-        if not sol.success:
-            raise RuntimeError(sol.message)
-        return sol
+        t_end = float(t_eval[-1])
+        phi_c = self.p[k.P_PHI_C]
+        opts = dict(method=method, rtol=rtol, atol=[1e-6, 1e-6])
+        if self.phi_surface(tu0) <= phi_c:
+            self.t_solid = 0.0
+            first = None
+        else:
+            event = lambda t, y: self.phi_surface(y[0]) - phi_c  # noqa: E731
+            event.terminal, event.direction = True, -1
+            first = solve_ivp(self.rhs, (0.0, t_end), [tu0, tc0], events=event, dense_output=True, first_step=1.0,
+                              **opts)
+            if not first.success:
+                raise RuntimeError(first.message)
+            if first.status != 1:  # never reached phi_c
+                return SimpleNamespace(t=t_eval, y=first.sol(t_eval), nfev=first.nfev)
+            self.t_solid = float(first.t_events[0][0])
+            tu0, tc0 = first.y_events[0][0]
+        # the solver picks its own first step here (a 1 s start late in the run sends LSODA into tiny steps)
+        second = solve_ivp(self.rhs, (self.t_solid, t_end), [tu0, tc0], dense_output=True,
+                           first_step=1.0 if self.t_solid == 0.0 else None, **opts)
+        if not second.success:
+            raise RuntimeError(second.message)
+        y = np.empty((2, len(t_eval)))
+        late = t_eval >= self.t_solid
+        y[:, late] = second.sol(t_eval[late])
+        if first is not None and np.any(~late):
+            y[:, ~late] = first.sol(t_eval[~late])
+        return SimpleNamespace(t=t_eval, y=y, nfev=second.nfev + (first.nfev if first is not None else 0))

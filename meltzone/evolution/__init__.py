@@ -94,6 +94,7 @@ def build_arrays(spec: PlanetSpec, interior: Interior):
     par[k.P_RA_CR] = cv.critical_rayleigh
     par[k.P_BETA] = cv.beta
     par[k.P_NU_A] = cv.nusselt_prefactor
+    par[k.P_T_SOLID] = k.NOT_YET
     par[k.P_A_RH] = cv.rheology_a
     par[k.P_MELT_WEAK] = cv.melt_weakening
     par[k.P_ETA_LIQ] = cv.liquid_viscosity_pa_s
@@ -154,6 +155,7 @@ def run_kernel(grid, core, iso, par, law, y0, t_guess, max_steps, progress=None,
 
     hist = np.zeros((history_rows, k.N_H))
     iv = np.zeros((interval_rows, k.N_I))
+    par[k.P_T_SOLID] = k.NOT_YET  # a fresh run: the integrator sets it when the top first reaches phi_c
     state = np.zeros(17)
     state[1:1 + k.N_Y] = y0
     state[5] = 1.0  # first step [s]; the controller grows it

@@ -62,13 +62,21 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   latent and gravitational energy) is one function of (T_u, lid) for the mantle
   and of T_c for the core: dE_m/dt = -Q_surface + Q_cmb + H, dE_c/dt = -Q_cmb.
 
+* regime: a magma ocean while the melt fraction at the top of the convecting mantle
+  exceeds phi_c. Until the top first reaches phi_c this is the batch melt of the
+  adiabat at the surface; from then on it is the isentropic value of a solid mantle
+  that melts as it rises and pays the latent heat (batch limit of McKenzie & Bickle
+  1988, J. Petrol. 29:625; from memory), so a solidified mantle that warms again does
+  not turn back into a magma ocean until about L / c_p (~500 K) hotter. The solid branch
+  of a solidified mantle has melt weakening up to phi_c but no suspension viscosity.
+
 Known limitations: with beta = 1/3 the mantle equilibrates with its heating within
 ~1 Gyr, so an Earth hindcast gives a present heat flow of ~31 TW (46 TW observed)
 and a Urey ratio ~0.6 (Korenaga 2008, Rev. Geophys. 46:RG2007 discuss this paradox).
-A weak scaling (beta = 0, a ~ 45) lands on the present heat flow, but its early
-mantle, which then loses heat more slowly than it makes it, warms until the adiabat
-reaches phi_c at the surface and is held there, in the magma-ocean regime, until
-~1.9 Gyr: without melt extraction the model has no other way to vent that heat.
+A weak scaling (beta ~ 0.015, a ~ 40) lands on the present Earth when it starts after
+the magma ocean; from a molten start it cannot end the magma ocean while the young
+Earth's radiogenic heating exceeds its solid-state heat flow at phi_c (~1.4 Gyr):
+without melt extraction or a separate early regime the model has no other outlet.
 """
 
 from __future__ import annotations
@@ -88,8 +96,10 @@ N_Y = 4
 (P_RADIUS, P_CORE_RADIUS, P_G_SURF, P_G_CMB, P_RHO_MANTLE, P_RHO_TOP, P_K, P_KAPPA, P_ALPHA, P_CM, P_LATENT,
  P_A_VISC, P_E_ACT, P_V_ACT, P_RA_CR, P_BETA, P_A_RH, P_MELT_WEAK, P_ETA_LIQ, P_PHI_C, P_CC, P_LC, P_EG,
  P_T_EQ, P_ATMOSPHERE, P_H2O_TOTAL, P_CO2_TOTAL, P_STAGNANT, P_P_CMB, P_START_AGE, P_LAW, P_DT_MAX, P_RTOL,
- P_T_END, P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS, P_V_DECAY, P_ATOL, P_NU_A) = range(41)
-N_PAR = 41
+ P_T_END, P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS, P_V_DECAY, P_ATOL, P_NU_A, P_T_SOLID) = range(42)
+N_PAR = 42
+#: P_T_SOLID until the top of the mantle first reaches the rheological transition (set by the integrator)
+NOT_YET = 1.0e300
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 (G_R, G_P, G_F, G_W, G_TSOL, G_TLIQ, G_AUX1, G_AUX2) = range(8)
@@ -101,8 +111,8 @@ N_C = 5
 
 # ------------------------------------------------------------ diagnostics
 (D_QS, D_QU, D_QC, D_TS, D_DELTA_U, D_DELTA_C, D_TL, D_H, D_REGIME, D_PHI_TOP, D_RIC, D_ETA_U, D_ETA_C,
- D_TB, D_EPS, D_ATM_H2O, D_ATM_CO2, D_MELT_MASS, D_E_STORED, D_DLID) = range(20)
-N_D = 20
+ D_TB, D_EPS, D_ATM_H2O, D_ATM_CO2, D_MELT_MASS, D_E_STORED, D_DLID, D_PHI_SURF) = range(21)
+N_D = 21
 
 # ------------------------------------------------------------ history columns
 (H_T, H_TU, H_TC, H_LID, H_OUT, H_QS, H_QC, H_H, H_RIC, H_MELT, H_REGIME, H_TS, H_DELTA_U, H_DELTA_C, H_TL,
@@ -167,6 +177,28 @@ def viscosity(t, p, phi, par):
 @njit
 def node_melt(t, grid, i, law):
     return melt_fraction(t, grid[G_TSOL, i], grid[G_TLIQ, i], grid[G_AUX1, i], grid[G_AUX2, i], law)
+
+
+@njit
+def isentropic_melt(t, grid, i, law, par):
+    """Melt fraction phi = phi_eq(t - (L / c_p) phi) at node i: the batch melt of a parcel that rose
+    adiabatically from below its solidus and paid the latent heat of its melt (the batch limit of
+    isentropic decompression melting, McKenzie & Bickle 1988, J. Petrol. 29:625; from memory). It ignores
+    the steeper adiabat of a melting parcel. Bisection: phi_eq(t - L phi / c) - phi falls with phi."""
+    lc = par[P_LATENT] / par[P_CM]
+    hi = node_melt(t, grid, i, law)
+    lo = 0.0
+    if hi <= 0.0 or lc <= 0.0:
+        return hi
+    for _ in range(60):
+        mid = 0.5 * (lo + hi)
+        if node_melt(t - lc * mid, grid, i, law) > mid:
+            lo = mid
+        else:
+            hi = mid
+        if hi - lo < 1e-13:
+            break
+    return 0.5 * (lo + hi)
 
 
 @njit
@@ -430,10 +462,18 @@ def diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag):
     top = n - 1
     depth = par[P_RADIUS] - par[P_CORE_RADIUS]
     law_i = law
-    phi_top = node_melt(tu * grid[G_F, top], grid, top, law_i)
+    # the regime follows the melt fraction at the top of the convecting mantle: on the adiabat (batch) while
+    # the surface magma ocean is above the rheological transition; once the top has first reached it
+    # (t >= P_T_SOLID), the isentropic value of a solid mantle that melts as it rises, so that a solid
+    # mantle does not turn back into a magma ocean as soon as its adiabat crosses phi_c at the surface
+    phi_surf = node_melt(tu * grid[G_F, top], grid, top, law_i)
+    solidified = t >= par[P_T_SOLID]
+    phi_top = isentropic_melt(tu * grid[G_F, top], grid, top, law_i, par) if solidified else phi_surf
     magma = phi_top > par[P_PHI_C]
     stagnant = par[P_STAGNANT] > 0.5 and not magma
-    eta_u = viscosity(tu, par[P_P_TOP], phi_top, par)
+    eta_u = viscosity(tu, par[P_P_TOP], phi_surf, par)
+    # the solid-mantle branch of a solidified mantle: melt weakening, but no suspension, up to phi_c
+    eta_s = viscosity(tu, par[P_P_TOP], min(phi_surf, par[P_PHI_C]), par) if solidified else eta_u
     tb = tu * grid[G_F, 0]
     dtc = tc - tb
     # bottom boundary layer (local critical Rayleigh number)
@@ -480,14 +520,14 @@ def diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag):
             tl = lid_base_temperature(tu, par)
             d_eff = max(d_lid, par[P_LID_MIN])
             d_conv = max(depth - d_eff, 0.05 * depth)
-            ts_s, qs_s, qu_s, du_s = _top_boundary(True, True, tu, tl, d_eff, d_conv, dtc, eta_u, eps, par)
+            ts_s, qs_s, qu_s, du_s = _top_boundary(True, True, tu, tl, d_eff, d_conv, dtc, eta_s, eps, par)
             # rho c (T_u - T_lid,mean) dD/dt = q_lid - q_u: new lid material is cooled from T_u to the mean of
             # the linear lid profile, the same bookkeeping as mantle_energy (with it, the convecting mantle
             # loses exactly q_u at the lid base)
             t_lid_mean = 0.5 * (par[P_T_EQ] + tl)
             ddl_sl = (qs_s - qu_s) / (par[P_RHO_TOP] * par[P_CM] * max(tu - t_lid_mean, 1.0))
         else:
-            ts_s, qs_s, qu_s, du_s = _top_boundary(False, True, tu, tu, 0.0, depth, dtc, eta_u, eps, par)
+            ts_s, qs_s, qu_s, du_s = _top_boundary(False, True, tu, tu, 0.0, depth, dtc, eta_s, eps, par)
     if w_mo <= 0.0:
         ts_m, qs_m, qu_m, du_m = ts_s, qs_s, qu_s, du_s
     qs = w_mo * qs_m + (1.0 - w_mo) * qs_s
@@ -512,6 +552,7 @@ def diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag):
     else:
         diag[D_REGIME] = REGIME_MOBILE_LID
     diag[D_PHI_TOP] = phi_top
+    diag[D_PHI_SURF] = phi_surf
     diag[D_RIC] = r_ic
     diag[D_ETA_U] = eta_u
     diag[D_ETA_C] = eta_c
@@ -772,6 +813,8 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
     tu = work[0]
     tc = work[1]
     if n_h == 0:
+        if par[P_T_SOLID] >= NOT_YET and diag[D_PHI_SURF] <= par[P_PHI_C]:
+            par[P_T_SOLID] = t  # starts below the rheological transition
         res = record(t, y, tu, tc, k1, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi)
         if res < 0:
             return STATUS_INTERVALS_FULL
@@ -861,6 +904,10 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
             tc = tc_new
             n_iv = res
             n_h += 1
+            # the top has reached the rheological transition: from here on the regime follows the isentropic
+            # melt fraction (the fluxes agree at this point, where both give the solid-mantle law)
+            if par[P_T_SOLID] >= NOT_YET and diag[D_PHI_SURF] <= par[P_PHI_C]:
+                par[P_T_SOLID] = t
             steps += 1
             fac = 5.0 if err == 0.0 else min(5.0, max(0.2, 0.9 * err ** (-0.2)))
             h = h * fac
