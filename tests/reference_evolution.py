@@ -127,15 +127,17 @@ class ReferenceModel:
                         rtol=1e-13)
             return q_conv(ts, a, beta, eta)
 
-        # magma-ocean top: Nu = (Ra / Ra_cr)^(1/3); solid mantle: Nu = a (Ra / Ra_cr)^beta; smoothstep blend
-        # over phi_c < phi_top < phi_c + 0.05
+        # magma-ocean top: Nu = (Ra / Ra_cr)^(1/3); solid mantle: Nu = a (Ra / Ra_cr)^beta once the top has
+        # reached phi_c (before, a = 1 and beta = 1/3 too); smoothstep blend over phi_c < phi_top < phi_c + 0.05
         x = (phi_top - par[k.P_PHI_C]) / 0.05
         w = 0.0 if x <= 0 else (1.0 if x >= 1 else x * x * (3 - 2 * x))
         qs = 0.0
         if w > 0.0:
             qs += w * surface_flux(1.0, 1.0 / 3.0, eta_u)
         if w < 1.0:
-            qs += (1.0 - w) * surface_flux(par[k.P_NU_A], par[k.P_BETA], eta_s)
+            # the configured solid-mantle scaling from t_solid on, the classical one before
+            a, beta = (par[k.P_NU_A], par[k.P_BETA]) if t >= self.t_solid else (1.0, 1.0 / 3.0)
+            qs += (1.0 - w) * surface_flux(a, beta, eta_s)
         h = float(np.sum(self.iso[:, 0] * np.exp(self.iso[:, 1] * (par[k.P_START_AGE] - t)))) * par[k.P_MANTLE_MASS]
         return qs * 4 * math.pi * par[k.P_RADIUS] ** 2, qc * 4 * math.pi * par[k.P_CORE_RADIUS] ** 2, h
 
