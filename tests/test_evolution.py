@@ -64,7 +64,8 @@ def test_earth_surface_heat_flow(earth):
 
 @pytest.mark.xfail(strict=True, reason="see test_earth_surface_heat_flow: classical scaling gives Ur ~0.6")
 def test_earth_urey_ratio(earth):
-    """Bulk Urey ratio ~0.35 (Korenaga 2008); accepted 0.2-0.5."""
+    """Bulk Earth Urey ratio "probably ~0.35" (Korenaga 2008, Rev. Geophys. 46:RG2007, abstract; checked);
+    accepted 0.2-0.5 (this project's tolerance)."""
     h = earth.history
     assert 0.2 <= h["radiogenic_power"][-1] / h["surface_heat_flow"][-1] <= 0.5
 
@@ -97,7 +98,8 @@ def earth_weak():
 def test_weak_scaling_earth_today(earth_weak):
     """Present Earth: surface heat flow 46 +- 3 TW (Jaupart et al. 2007, Treatise on Geophysics); potential
     temperature 1280-1400 C (Herzberg et al. 2007, 2010); CMB heat flow 5-15 TW (Lay, Hernlund & Buffett
-    2008); bulk Urey ratio ~0.35, accepted 0.2-0.5 (Korenaga 2008). Measured: 44.3 TW, 1334 C, 5.8 TW, 0.45."""
+    2008); bulk Urey ratio ~0.35 (Korenaga 2008, checked), accepted 0.2-0.5 (this project's tolerance).
+    Measured: 44.3 TW, 1334 C, 5.8 TW, 0.45 (high in the accepted band)."""
     h = earth_weak.history
     assert 43e12 <= h["surface_heat_flow"][-1] <= 49e12
     assert 1280.0 <= h["upper_temperature"][-1] - 273.15 <= 1400.0
@@ -120,8 +122,50 @@ def test_weak_scaling_stage_never_turns_back_into_a_magma_ocean(earth_weak):
 
 
 def test_weak_scaling_archean_mantle(earth_weak):
-    """Potential temperature 1500-1600 C at 2.5-3.0 Ga (Herzberg, Condie & Korenaga 2010, EPSL 292:79), whose
-    individual estimates carry ~50 K (from memory): asserted within 1450-1650 C. Measured: 1605 C at 2.5 Ga and
+    """Potential temperature rising from 1350 C today to a maximum of ~1500-1600 C at 2.5-3.0 Ga (Herzberg, Condie &
+    Korenaga 2010, EPSL 292:79, abstract; checked); their individual estimates carry ~50 K (from memory):
+    asserted within 1450-1650 C. Measured: 1605 C at 2.5 Ga and
+    1641 C at 3.0 Ga, so the model cools ~300 K since 3 Ga against their ~200 K."""
+    h = earth_weak.history
+    t = h["time"]
+    for age in (2.5, 3.0):
+        tp = np.interp(t[-1] - age * GYR, t, h["upper_temperature"]) - 273.15
+        assert 1450.0 <= tp <= 1650.0
+
+
+def test_weak_scaling_mantle_warms_then_cools(earth_weak):
+    """"The mantle was warming in deep Archean-Hadean time because internal heating exceeded surface heat loss,
+    and it has been cooling from 2.5 to 3.0 Ga to the present" (Herzberg, Condie & Korenaga 2010, abstract;
+    checked). After the magma ocean, the model's peak lies inside the run, more than 100 K above the start of
+    the plate-tectonic stage, and at least 2.5 Gyr before the end (measured: 1652 C at 3.4 Ga)."""
+    h = earth_weak.history
+    after = int(np.argmax(h["regime"] != 0))
+    tu = h["upper_temperature"][after:]
+    peak = int(np.argmax(tu))
+    assert 0 < peak < len(tu) - 1
+    assert tu[peak] - tu[0] > 100.0
+    assert h["time"][-1] - h["time"][after + peak] >= 2.5 * GYR
+
+
+def test_weak_scaling_stage_never_turns_back_into_a_magma_ocean(earth_weak):
+    """The warming mantle of the plate-tectonic stage peaks above the potential temperature at which its adiabat
+    is 40% molten at the surface (batch), but stays solid-state convection: the regime follows the isentropic
+    melt fraction once the top has been below phi_c (McKenzie & Bickle 1988 batch isentropic melting)."""
+    from meltzone.evolution import kernel as k
+
+    h = earth_weak.history
+    grid, _, _, par, law = earth_weak.kernel_inputs[:5]
+    top = grid.shape[1] - 1
+    after = int(np.argmax(h["regime"] != 0))  # first row after the magma ocean
+    peak = float(np.max(h["upper_temperature"][after:]))
+    assert k.node_melt(peak * grid[k.G_F, top], grid, top, law) > par[k.P_PHI_C]
+    assert not np.any(h["regime"][after:] == 0)
+
+
+def test_weak_scaling_archean_mantle(earth_weak):
+    """Potential temperature rising from 1350 C today to a maximum of ~1500-1600 C at 2.5-3.0 Ga (Herzberg, Condie &
+    Korenaga 2010, EPSL 292:79, abstract; checked); their individual estimates carry ~50 K (from memory):
+    asserted within 1450-1650 C. Measured: 1605 C at 2.5 Ga and
     1641 C at 3.0 Ga, so the model cools ~300 K since 3 Ga against their ~200 K."""
     h = earth_weak.history
     t = h["time"]
