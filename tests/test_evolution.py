@@ -95,6 +95,11 @@ def earth_weak():
                              **WEAK))
 
 
+def _after_magma_ocean(h):
+    """Index of the first history row after the magma ocean."""
+    return int(np.argmax(h["regime"] != 0))
+
+
 def test_weak_scaling_earth_today(earth_weak):
     """Present Earth: surface heat flow 46 +- 3 TW (Jaupart et al. 2007, Treatise on Geophysics); potential
     temperature 1280-1400 C (Herzberg et al. 2007, 2010); CMB heat flow 5-15 TW (Lay, Hernlund & Buffett
@@ -106,6 +111,7 @@ def test_weak_scaling_earth_today(earth_weak):
     assert 5e12 <= h["cmb_heat_flow"][-1] <= 15e12
     assert 0.2 <= h["radiogenic_power"][-1] / h["surface_heat_flow"][-1] <= 0.5
 
+
 def test_weak_scaling_stage_never_turns_back_into_a_magma_ocean(earth_weak):
     """The warming mantle of the plate-tectonic stage peaks above the potential temperature at which its adiabat
     is 40% molten at the surface (batch), but stays solid-state convection: the regime follows the isentropic
@@ -115,17 +121,17 @@ def test_weak_scaling_stage_never_turns_back_into_a_magma_ocean(earth_weak):
     h = earth_weak.history
     grid, _, _, par, law = earth_weak.kernel_inputs[:5]
     top = grid.shape[1] - 1
-    after = int(np.argmax(h["regime"] != 0))  # first row after the magma ocean
+    after = _after_magma_ocean(h)
     peak = float(np.max(h["upper_temperature"][after:]))
     assert k.node_melt(peak * grid[k.G_F, top], grid, top, law) > par[k.P_PHI_C]
     assert not np.any(h["regime"][after:] == 0)
 
 
 def test_weak_scaling_archean_mantle(earth_weak):
-    """Potential temperature rising from 1350 C today to a maximum of ~1500-1600 C at 2.5-3.0 Ga (Herzberg, Condie &
-    Korenaga 2010, EPSL 292:79, abstract; checked); their individual estimates carry ~50 K (from memory):
-    asserted within 1450-1650 C. Measured: 1605 C at 2.5 Ga and
-    1641 C at 3.0 Ga, so the model cools ~300 K since 3 Ga against their ~200 K."""
+    """Potential temperature rising from 1350 C today to a maximum of ~1500-1600 C at 2.5-3.0 Ga (Herzberg,
+    Condie & Korenaga 2010, EPSL 292:79, abstract; checked); their individual estimates carry ~50 K (from
+    memory): asserted within 1450-1650 C. Measured: 1605 C at 2.5 Ga and 1641 C at 3.0 Ga, so the model cools
+    ~300 K since 3 Ga against their ~200 K."""
     h = earth_weak.history
     t = h["time"]
     for age in (2.5, 3.0):
@@ -139,50 +145,12 @@ def test_weak_scaling_mantle_warms_then_cools(earth_weak):
     checked). After the magma ocean, the model's peak lies inside the run, more than 100 K above the start of
     the plate-tectonic stage, and at least 2.5 Gyr before the end (measured: 1652 C at 3.4 Ga)."""
     h = earth_weak.history
-    after = int(np.argmax(h["regime"] != 0))
+    after = _after_magma_ocean(h)
     tu = h["upper_temperature"][after:]
     peak = int(np.argmax(tu))
     assert 0 < peak < len(tu) - 1
     assert tu[peak] - tu[0] > 100.0
     assert h["time"][-1] - h["time"][after + peak] >= 2.5 * GYR
-
-
-def test_weak_scaling_stage_never_turns_back_into_a_magma_ocean(earth_weak):
-    """The warming mantle of the plate-tectonic stage peaks above the potential temperature at which its adiabat
-    is 40% molten at the surface (batch), but stays solid-state convection: the regime follows the isentropic
-    melt fraction once the top has been below phi_c (McKenzie & Bickle 1988 batch isentropic melting)."""
-    from meltzone.evolution import kernel as k
-
-    h = earth_weak.history
-    grid, _, _, par, law = earth_weak.kernel_inputs[:5]
-    top = grid.shape[1] - 1
-    after = int(np.argmax(h["regime"] != 0))  # first row after the magma ocean
-    peak = float(np.max(h["upper_temperature"][after:]))
-    assert k.node_melt(peak * grid[k.G_F, top], grid, top, law) > par[k.P_PHI_C]
-    assert not np.any(h["regime"][after:] == 0)
-
-
-def test_weak_scaling_archean_mantle(earth_weak):
-    """Potential temperature rising from 1350 C today to a maximum of ~1500-1600 C at 2.5-3.0 Ga (Herzberg, Condie &
-    Korenaga 2010, EPSL 292:79, abstract; checked); their individual estimates carry ~50 K (from memory):
-    asserted within 1450-1650 C. Measured: 1605 C at 2.5 Ga and
-    1641 C at 3.0 Ga, so the model cools ~300 K since 3 Ga against their ~200 K."""
-    h = earth_weak.history
-    t = h["time"]
-    for age in (2.5, 3.0):
-        tp = np.interp(t[-1] - age * GYR, t, h["upper_temperature"]) - 273.15
-        assert 1450.0 <= tp <= 1650.0
-
-
-def test_weak_scaling_mantle_warms_then_cools(earth_weak):
-    """With heat flow nearly independent of temperature the early mantle makes more heat than it loses and
-    warms before it cools (the shape of the histories in Korenaga 2008, Fig. 8; from memory): after the magma
-    ocean, the peak lies inside the run, more than 100 K above the start of the plate-tectonic stage."""
-    h = earth_weak.history
-    tu = h["upper_temperature"][int(np.argmax(h["regime"] != 0)):]
-    peak = int(np.argmax(tu))
-    assert 0 < peak < len(tu) - 1
-    assert tu[peak] - tu[0] > 100.0
 
 
 def test_weak_scaling_magma_ocean_ends_early(earth_weak):
