@@ -57,7 +57,7 @@ class ReferenceModel:
         v0, pd = par[k.P_V_ACT], par[k.P_V_DECAY]
         enthalpy = par[k.P_E_ACT] + (v0 * pd * (1 - math.exp(-p / pd)) if pd > 0 else p * v0)
         log_solid = math.log(par[k.P_A_VISC]) + enthalpy / (R_GAS * t) - par[k.P_MELT_WEAK] * phi
-        x = (phi - par[k.P_PHI_C]) / 0.05
+        x = (phi - par[k.P_PHI_C]) / par[k.P_BLEND]
         w = 0.0 if x <= 0 else (1.0 if x >= 1 else x * x * (3 - 2 * x))
         if w == 0.0:
             return math.exp(min(log_solid, 700.0))
@@ -128,8 +128,9 @@ class ReferenceModel:
             return q_conv(ts, a, beta, eta)
 
         # magma-ocean top: Nu = (Ra / Ra_cr)^(1/3); solid mantle: Nu = a (Ra / Ra_cr)^beta once the top has
-        # reached phi_c (before, a = 1 and beta = 1/3 too); smoothstep blend over phi_c < phi_top < phi_c + 0.05
-        x = (phi_top - par[k.P_PHI_C]) / 0.05
+        # reached phi_c (before, a = 1 and beta = 1/3 too); smoothstep blend over phi_c < phi_top < phi_c +
+        # the blend width
+        x = (phi_top - par[k.P_PHI_C]) / par[k.P_BLEND]
         w = 0.0 if x <= 0 else (1.0 if x >= 1 else x * x * (3 - 2 * x))
         qs = 0.0
         if w > 0.0:

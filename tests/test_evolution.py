@@ -211,6 +211,16 @@ def test_magma_ocean_bare_surface_lifetime():
     assert 1e3 <= end <= 1e6
 
 
+def test_magma_ocean_lifetime_follows_the_blend_width():
+    """Model sensitivity, not an outside value: the bare Earth's surface takes longer to reach phi_c when the
+    solid-to-magma-ocean transition is wider (measured: 0.89e5, 2.0e5 and 3.8e5 yr at widths 0.02, 0.05 and
+    0.1), and every width keeps inside the published orders of magnitude of the test above."""
+    ends = [summarize(evolve(mass_earth=1.0, end_time_gyr=0.05, rheology_blend_width=w))["magma_ocean_end_yr"]
+            for w in (0.02, 0.05, 0.1)]
+    assert ends[0] < ends[1] < ends[2]
+    assert 1e3 <= ends[0] and ends[2] <= 1e6
+
+
 def test_magma_ocean_steam_atmosphere_lasts_longer():
     """A thick steam atmosphere (1.4e21 kg H2O, ~one ocean, plus CO2) delays the end of the magma ocean
     (Lebrun et al. 2013: by ~1 Myr; Hamano, Abe & Genda 2013, Nature 497:607: within several Myr beyond the

@@ -223,6 +223,7 @@ def test_node_refinement_default():
     ({"core_mass_fraction": -0.1}, "core_mass_fraction"),
     ({"mantle_nodes": 3.5}, "mantle_nodes"),
     ({"colour": "red"}, "unknown key"),
+    ({"critical_melt_fraction": 0.8, "rheology_blend_width": 0.25}, "must be < 1"),
 ])
 def test_bad_input_api(bad, match):
     """Bad values raise ConfigError naming the key (never a silently wrong number)."""

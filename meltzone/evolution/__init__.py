@@ -95,6 +95,7 @@ def build_arrays(spec: PlanetSpec, interior: Interior):
     par[k.P_BETA] = cv.beta
     par[k.P_NU_A] = cv.nusselt_prefactor
     par[k.P_T_SOLID] = k.NOT_YET
+    par[k.P_BLEND] = cv.rheology_blend_width
     par[k.P_A_RH] = cv.rheology_a
     par[k.P_MELT_WEAK] = cv.melt_weakening
     par[k.P_ETA_LIQ] = cv.liquid_viscosity_pa_s

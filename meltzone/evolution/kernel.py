@@ -35,7 +35,8 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   phi_m = 1 - phi_c (Roscoe 1952, Br. J. Appl. Phys. 3:267; < 10x rise up to 40 vol%
   crystals, Lejeune & Richet 1995, JGR 100:4215) and a liquid viscosity of
   ~0.01-0.1 Pa s (Karki & Stixrude 2010, Science 328:740; from memory); the two
-  are blended in log eta over a melt-fraction width of 0.05 (this model's choice,
+  are blended in log eta over a melt-fraction width (convection.rheology_blend_width,
+  default 0.05; this model's choice,
   so that the heat flow is continuous across the transition);
 * magma ocean: the same boundary-layer law with the suspension viscosity
   (soft turbulence, Nu ~ Ra^(1/3); the prefactor Ra_cr^(-1/3) = 0.13 against 0.089
@@ -99,8 +100,9 @@ N_Y = 4
 (P_RADIUS, P_CORE_RADIUS, P_G_SURF, P_G_CMB, P_RHO_MANTLE, P_RHO_TOP, P_K, P_KAPPA, P_ALPHA, P_CM, P_LATENT,
  P_A_VISC, P_E_ACT, P_V_ACT, P_RA_CR, P_BETA, P_A_RH, P_MELT_WEAK, P_ETA_LIQ, P_PHI_C, P_CC, P_LC, P_EG,
  P_T_EQ, P_ATMOSPHERE, P_H2O_TOTAL, P_CO2_TOTAL, P_STAGNANT, P_P_CMB, P_START_AGE, P_LAW, P_DT_MAX, P_RTOL,
- P_T_END, P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS, P_V_DECAY, P_ATOL, P_NU_A, P_T_SOLID) = range(42)
-N_PAR = 42
+ P_T_END, P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS, P_V_DECAY, P_ATOL, P_NU_A, P_T_SOLID,
+ P_BLEND) = range(43)
+N_PAR = 43
 #: P_T_SOLID until the top of the mantle first reaches the rheological transition (set by the integrator)
 NOT_YET = 1.0e300
 
@@ -138,7 +140,6 @@ STATUS_STEP_TOO_SMALL = 4
 
 R_GAS = 8.314462618  # CODATA 2018
 SIGMA_SB = 5.670374419e-8  # CODATA 2018
-BLEND_WIDTH = 0.05  # melt-fraction width of the rheological-transition blend
 
 
 @njit
@@ -168,7 +169,7 @@ def activation_enthalpy(p, par):
 def viscosity(t, p, phi, par):
     """Effective viscosity [Pa s] at temperature t [K], pressure p [Pa] and melt fraction phi."""
     solid = math.log(par[P_A_VISC]) + activation_enthalpy(p, par) / (R_GAS * t) - par[P_MELT_WEAK] * phi
-    w = smoothstep((phi - par[P_PHI_C]) / BLEND_WIDTH)
+    w = smoothstep((phi - par[P_PHI_C]) / par[P_BLEND])
     if w <= 0.0:
         return math.exp(min(solid, 700.0))
     phi_m = 1.0 - par[P_PHI_C]  # maximum packing of crystals
@@ -511,9 +512,9 @@ def diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag):
         eps = 2.0 / (tau + 2.0)
     # top boundary: the magma ocean (soft-turbulence law) and the solid mantle (the configured law: mobile
     # lid, or the lid over its sublayer in stagnant-lid mode); across the rheological transition
-    # (phi_c < phi_top < phi_c + BLEND_WIDTH) the two are blended with the same weight as the viscosity,
+    # (phi_c < phi_top < phi_c + P_BLEND) the two are blended with the same weight as the viscosity,
     # so that the fluxes are continuous in T_u
-    w_mo = smoothstep((phi_top - par[P_PHI_C]) / BLEND_WIDTH)
+    w_mo = smoothstep((phi_top - par[P_PHI_C]) / par[P_BLEND])
     ts_m, qs_m, qu_m, du_m = 0.0, 0.0, 0.0, 0.0
     if w_mo > 0.0:
         ts_m, qs_m, qu_m, du_m = _top_boundary(False, False, tu, tu, 0.0, depth, dtc, eta_u, eps, par)
