@@ -112,12 +112,14 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
         "critical_rayleigh": Key(450.0, "1", "critical Rayleigh number", lo=1.0, hi=1.0e5,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
         "beta": Key(1.0 / 3.0, "1", "exponent of the solid mantle's Nusselt-Rayleigh scaling "
-                    "Nu = a (Ra / Ra_cr)^beta", lo=0.0, hi=0.5,
+                    "Nu = a (Ra / Ra_cr)^beta, from the time the top first reaches the rheological transition "
+                    "(1/3 before)", lo=0.0, hi=0.5,
             source='Stevenson, Spohn & Schubert 1983, Icarus 54:466 (common practice)'),
         "nusselt_prefactor": Key(1.0, "1", "prefactor a of the Nusselt-Rayleigh scaling Nu = a (Ra / Ra_cr)^beta "
                                  "of the solid mantle's upper boundary layer, from the time the top first reaches "
                                  "the rheological transition (the magma ocean keeps a = 1, beta = 1/3); weak "
-                                 "scalings need a > 1, e.g. beta 0.015 with a 40 for the present Earth",
+                                 "scalings need a > 1, e.g. beta 0.015 with a 40 for the present Earth (calibrated for "
+                                 "the mobile lid)",
                                  lo=0.0, hi=1.0e4, lo_open=True,
             source='1 in Stevenson, Spohn & Schubert 1983, Icarus 54:466'),
         "rheology_a": Key(2.5, "1", "factor of the rheological temperature scale (stagnant lid)",

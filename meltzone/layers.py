@@ -14,9 +14,10 @@ history and the interior grid.
   An interval with no predecessor *formed*; a layer with no successor *froze*.
 * Events: formed, froze, split (its layer is the new piece), merged (its layer
   is the one absorbed), reached-surface, reached-cmb (per layer), and the regime events magma-ocean-ended (melt fraction at the top of
-  the mantle fell below the rheological transition), stagnant-lid-formed,
+  the mantle fell below the rheological transition), magma-ocean-reformed (a solidified mantle warmed until
+  its isentropic melt fraction at the top passed it again), stagnant-lid-formed,
   inner-core-nucleated and last-melt.
-* Event times of formed, froze, last-melt, magma-ocean-ended and
+* Event times of formed, froze, last-melt, magma-ocean-ended, magma-ocean-reformed and
   inner-core-nucleated are refined inside their step: the state is
   interpolated by cubic Hermite polynomials (values and rates at both ends),
   T(r) and phi(r) are rebuilt from it, and the crossing is found with
@@ -37,7 +38,7 @@ from .constants import YEAR
 EVENT_TIME_TOLERANCE = 1e-6
 
 EVENT_KINDS = ("formed", "froze", "split", "merged", "reached-surface", "reached-cmb", "magma-ocean-ended",
-               "stagnant-lid-formed", "inner-core-nucleated", "last-melt")
+               "magma-ocean-reformed", "stagnant-lid-formed", "inner-core-nucleated", "last-melt")
 
 
 def _hermite(t, t0, t1, y0, y1, d0, d1):
@@ -236,9 +237,10 @@ def _regime_events(result, interp, add_event, n_nodes):
     phi_c = par[k.P_PHI_C]
     top = n_nodes - 1
     for s in range(1, len(t)):
-        if regime[s - 1] == 0 and regime[s] != 0:
+        was_magma, is_magma = regime[s - 1] == 0, regime[s] == 0
+        if was_magma != is_magma:
             when = _refine(lambda tt: interp.profile(s, tt, True)[2][k.D_PHI_TOP] - phi_c, t[s - 1], t[s])
-            add_event(when, "magma-ocean-ended", -1, top)
+            add_event(when, "magma-ocean-ended" if was_magma else "magma-ocean-reformed", -1, top)
         if regime[s] == 2 and regime[s - 1] != 2:
             add_event(t[s], "stagnant-lid-formed", -1, top)
     ric = h["inner_core_radius"]
@@ -273,6 +275,7 @@ def summarize(result, table=None, events=None) -> dict:
     it = result.interior
     ends = [e["time"] for e in events if e["kind"] == "magma-ocean-ended"]
     mo_end = ends[0] / YEAR if ends else (0.0 if h["regime"][0] != 0 else None)
+    again = [e["time"] for e in events if e["kind"] == "magma-ocean-reformed"]
     last = [e["time"] for e in events if e["kind"] == "last-melt"]
     still = h["melt_mass"][-1] > 0 or h["regime"][-1] == 0
     last_melt = last[-1] / YEAR if last else (None if still else 0.0)
@@ -283,6 +286,8 @@ def summarize(result, table=None, events=None) -> dict:
         "mass_kg": it.mass,
         "radius_m": it.radius,
         "magma_ocean_end_yr": mo_end,
+        "magma_ocean_reformed_yr": again[0] / YEAR if again else None,
+        "magma_ocean_at_end": bool(h["regime"][-1] == 0),
         "last_melt_yr": last_melt,
         "basal_layer": basal,
         "final_upper_temperature_k": float(h["upper_temperature"][-1]),

@@ -102,7 +102,8 @@ def plot_curves(model, path, *, max_pressure_pa: float | None = None, n_points: 
 RUN_FIGURES = ("meltmap", "profiles", "history")
 _NOTE = "model estimate, not a measurement"
 _EVENT_MARKERS = {"formed": "^", "froze": "v", "split": "x", "merged": "+", "reached-surface": "o",
-                  "reached-cmb": "D", "magma-ocean-ended": "*", "stagnant-lid-formed": "s"}
+                  "reached-cmb": "D", "magma-ocean-ended": "*", "magma-ocean-reformed": "P",
+                  "stagnant-lid-formed": "s"}
 _CONFIDENCE_COLOURS = {"high": "0.6", "medium": "tab:orange", "low": "tab:red"}
 
 

@@ -388,7 +388,7 @@ RUN_KIND = "run"
 #: Kinds of meltzone HDF5 files.
 FILE_KINDS = ("run", "sweep")
 #: Version of the run-file layout below; :func:`load` refuses any other.
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2  # 2: kernel parameters P_NU_A, P_T_SOLID, P_BLEND (43 in all)
 
 #: structure group, node arrays: file name -> (Interior attribute, unit, long name). Nodes run centre -> surface.
 STRUCTURE_ARRAYS = {
@@ -453,7 +453,7 @@ LAYER_COLUMNS = {
 #: events group: event key -> (unit, long name).
 EVENT_COLUMNS = {
     "time": ("s", "model time of the event (refined inside its step for formed, froze, last-melt, "
-                  "magma-ocean-ended, inner-core-nucleated)"),
+                  "magma-ocean-ended, magma-ocean-reformed, inner-core-nucleated)"),
     "kind": ("1", "event kind (meltzone.layers.EVENT_KINDS)"),
     "layer": ("1", "layer id (-1: an event of the whole planet)"),
     "depth": ("m", "depth of the event (NaN: none)"),

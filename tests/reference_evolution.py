@@ -95,15 +95,15 @@ class ReferenceModel:
         par = self.p
         depth = par[k.P_RADIUS] - par[k.P_CORE_RADIUS]
         phi_surf = self.phi_surface(tu)
-        eta_u = self.viscosity(tu, par[k.P_P_TOP], phi_surf)
-        # after the top first reached phi_c: the regime follows the isentropic melt fraction, and the
-        # solid branch has melt weakening up to phi_c but no suspension
+        # after the top first reached phi_c: the regime (and the magma-ocean branch's suspension) follows the
+        # isentropic melt fraction, and the solid branch has melt weakening up to phi_c but no suspension
         if t >= self.t_solid:
             phi_top = self.phi_isentropic(tu * self.f[-1])
+            eta_u = self.viscosity(tu, par[k.P_P_TOP], phi_top)
             eta_s = self.viscosity(tu, par[k.P_P_TOP], min(phi_surf, par[k.P_PHI_C]))
         else:
             phi_top = phi_surf
-            eta_s = eta_u
+            eta_u = eta_s = self.viscosity(tu, par[k.P_P_TOP], phi_surf)
         tb = tu * self.f[0]
         dtc = tc - tb
         tm = 0.5 * (tc + tb)
@@ -159,6 +159,7 @@ class ReferenceModel:
         t_end = float(t_eval[-1])
         phi_c = self.p[k.P_PHI_C]
         opts = dict(method=method, rtol=rtol, atol=[1e-6, 1e-6])
+        self.t_solid = math.inf
         if self.phi_surface(tu0) <= phi_c:
             self.t_solid = 0.0
             first = None

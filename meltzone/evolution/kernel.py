@@ -69,18 +69,24 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   adiabat at the surface; from then on it is the isentropic value of a solid mantle
   that melts as it rises and pays the latent heat (batch limit of McKenzie & Bickle
   1988, J. Petrol. 29:625; from memory), so a solidified mantle that warms again does
-  not turn back into a magma ocean until about L / c_p (~500 K) hotter. The solid branch
-  of a solidified mantle has melt weakening up to phi_c but no suspension viscosity.
+  not turn back into a magma ocean until about phi_c L / c_p (~220 K) hotter; the
+  magma-ocean branch's suspension then follows that same melt fraction. The solid branch
+  of a solidified mantle has melt weakening up to phi_c but no suspension viscosity. The
+  integrator lands the step that first crosses phi_c on the crossing (to PHI_TOL in melt
+  fraction). A solid law that cannot carry the heat (weak scalings away from their
+  calibration) lets the mantle warm to that threshold, where the magma-ocean branch then
+  holds it.
 
 Known limitations: with beta = 1/3 the mantle equilibrates with its heating within
 ~1 Gyr, so an Earth hindcast gives a present heat flow of ~31 TW (46 TW observed)
 and a Urey ratio ~0.6 (Korenaga 2008, Rev. Geophys. 46:RG2007 discuss this paradox).
-A weak scaling (beta = 0.015, a = 40, a calibration of this project) lands the present
-Earth inside the published ranges (tests/test_evolution.py). The configured (a, beta)
-apply from the end of the step in which the top first reaches phi_c; before that,
-the classical law. Applied from the start, a weak law could not end the magma ocean
-while the young Earth's radiogenic heating exceeds its solid-state heat flow at phi_c
-(measured: ~1.4 Gyr): the model has no melt extraction to vent that heat.
+A weak scaling (beta = 0.015, a = 40, a calibration of this project for Earth's mobile
+lid) lands the present Earth inside the published ranges (tests/test_evolution.py). The
+configured (a, beta) apply once the top first reaches phi_c (the heat flow jumps there
+when they differ from the classical law); before that, the classical law. Applied from
+the start, a weak law could not end the magma ocean while the young Earth's radiogenic
+heating exceeds its solid-state heat flow at phi_c (measured: ~1.4 Gyr): the model has no
+melt extraction to vent that heat.
 """
 
 from __future__ import annotations
@@ -105,6 +111,8 @@ N_Y = 4
 N_PAR = 43
 #: P_T_SOLID until the top of the mantle first reaches the rheological transition (set by the integrator)
 NOT_YET = 1.0e300
+#: melt-fraction tolerance with which the integrator lands on that first crossing
+PHI_TOL = 1.0e-4
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 (G_R, G_P, G_F, G_W, G_TSOL, G_TLIQ, G_AUX1, G_AUX2) = range(8)
@@ -477,7 +485,9 @@ def diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag):
     phi_top = isentropic_melt(tu * grid[G_F, top], grid, top, law_i, par) if solidified else phi_surf
     magma = phi_top > par[P_PHI_C]
     stagnant = par[P_STAGNANT] > 0.5 and not magma
-    eta_u = viscosity(tu, par[P_P_TOP], phi_surf, par)
+    # magma-ocean branch: the suspension viscosity of the same melt fraction that sets the regime, so that
+    # both branches meet at phi_c
+    eta_u = viscosity(tu, par[P_P_TOP], phi_top, par)
     # the solid-mantle branch of a solidified mantle: melt weakening, but no suspension, up to phi_c
     eta_s = viscosity(tu, par[P_P_TOP], min(phi_surf, par[P_PHI_C]), par) if solidified else eta_u
     tb = tu * grid[G_F, 0]
@@ -818,8 +828,11 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
             k1[j] = state[13 + j]
     tu = work[0]
     tc = work[1]
+    top = n - 1
+    phi_c = par[P_PHI_C]
+    phi_prev = node_melt(tu * grid[G_F, top], grid, top, law)  # surface melt (batch) at the step's start
     if n_h == 0:
-        if par[P_T_SOLID] >= NOT_YET and diag[D_PHI_SURF] <= par[P_PHI_C]:
+        if par[P_T_SOLID] >= NOT_YET and diag[D_PHI_SURF] <= phi_c:
             par[P_T_SOLID] = t  # starts below the rheological transition
             rhs(t, y, grid, core, iso, par, law, work, diag, k1)
         res = record(t, y, tu, tc, k1, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp, phi)
@@ -896,13 +909,27 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
                     above = t_ext > grid[G_TSOL, 0]
                     if above != (tc > grid[G_TSOL, 0]) and above != (tc_new > grid[G_TSOL, 0]):
                         unseen = True
-        if err <= 1.0 and not big_jump and not unseen:
+        # the step that first takes the surface below phi_c ends on the crossing (within PHI_TOL), so that the
+        # switch to the solidified mantle's criterion and law (P_T_SOLID) does not depend on the step size
+        phi_end = diag[D_PHI_SURF]
+        crossing = par[P_T_SOLID] >= NOT_YET and phi_end <= phi_c
+        overshoot = (crossing and err <= 1.0 and not big_jump and not unseen and h > 1.0
+                     and phi_c - phi_end > PHI_TOL and phi_prev > phi_c)
+        if err <= 1.0 and not big_jump and not unseen and not overshoot:
+            if crossing:
+                # from here on the solidified mantle: its slopes at the step's end (the heat flow jumps here
+                # when the solid mantle's (a, beta) differ from the classical law's)
+                par[P_T_SOLID] = t + h
+                rhs(t + h, ynew, grid, core, iso, par, law, work, diag, k7)
             # record first: if the interval buffer is full, the step is redone from the unchanged state
             res = record(t + h, ynew, tu_new, tc_new, k7, diag, grid, core, par, law, hist, n_h, iv, n_iv, temp,
                          phi)
             if res < 0:
+                if crossing:
+                    par[P_T_SOLID] = NOT_YET
                 _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work0, k1)
                 return STATUS_INTERVALS_FULL
+            phi_prev = phi_end
             t = t + h
             for j in range(N_Y):
                 y[j] = ynew[j]
@@ -911,12 +938,6 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
             tc = tc_new
             n_iv = res
             n_h += 1
-            # the top has reached the rheological transition: from here on the regime follows the isentropic
-            # melt fraction (the fluxes agree at this point, where both give the solid-mantle law)
-            if par[P_T_SOLID] >= NOT_YET and diag[D_PHI_SURF] <= par[P_PHI_C]:
-                par[P_T_SOLID] = t
-                # the solid mantle's own scaling starts here: fresh slopes (first-same-as-last no longer holds)
-                rhs(t, y, grid, core, iso, par, law, work, diag, k1)
             steps += 1
             fac = 5.0 if err == 0.0 else min(5.0, max(0.2, 0.9 * err ** (-0.2)))
             h = h * fac
@@ -928,6 +949,8 @@ def integrate(state, grid, core, iso, par, law, hist, iv, max_steps):
                 h = 0.5 * h
             elif unseen:
                 h = 0.3 * h
+            elif overshoot:  # secant on the surface melt fraction
+                h = h * min(max((phi_prev - phi_c) / (phi_prev - phi_end), 0.01), 0.99)
             else:
                 h = h * max(0.1, 0.9 * err ** (-0.25))
     _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1)
