@@ -42,6 +42,9 @@ INVERSION_XTOL = 1.0e-5
 METRICS = {
     "magma_ocean_end_yr": ("yr", "time at which the surface magma ocean ended (melt fraction at the top of the "
                                  "mantle fell below the rheological transition); NaN: not within the run"),
+    "magma_ocean_reformed_yr": ("yr", "time at which a solidified mantle first warmed back into a surface magma "
+                                      "ocean (isentropic melt at the top above the rheological transition); NaN: "
+                                      "never"),
     "last_melt_yr": ("yr", "start of the final melt-free stretch (no melt anywhere in the mantle); NaN: "
                            "melt remains at the end of the run"),
     "basal_layer_start_yr": ("yr", "time at which a basal melt layer (on the CMB, detached from the surface) "
@@ -65,6 +68,7 @@ METRICS = {
 #: Yes/no outcomes per case: name -> long name. int8: 1 yes, 0 no, -1 no result (failed or rejected case).
 FLAGS = {
     "magma_ocean_persists": "the surface magma ocean outlived the run",
+    "magma_ocean_reformed": "a solidified mantle warmed back into a surface magma ocean during the run",
     "melt_persists": "melt remains somewhere in the mantle at the end of the run",
     "basal_layer_formed": "a basal melt layer formed during the run",
     "basal_layer_persists": "the basal melt layer outlived the run",
@@ -206,11 +210,26 @@ def _flag(v: bool) -> int:
     return 1 if v else 0
 
 
+def _magma_ocean_at(summary: dict, result, age_yr: float) -> bool:
+    """Whether the surface is a magma ocean at ``age_yr``: the starting regime, toggled by every
+    magma-ocean-ended / magma-ocean-reformed event at or before that time."""
+    state = bool(result.history["regime"][0] == 0) if result is not None else summary["magma_ocean_end_yr"] != 0.0
+    for e in sorted(summary.get("events", ()), key=lambda e: e["time_yr"]):
+        if e["time_yr"] > age_yr:
+            break
+        if e["kind"] == "magma-ocean-ended":
+            state = False
+        elif e["kind"] == "magma-ocean-reformed":
+            state = True
+    return state
+
+
 def outcomes(summary: dict, result=None, age_yr: float | None = None) -> tuple[dict, dict]:
     """(metrics, flags) of one run from :func:`meltzone.layers.summarize` (and, for the age flags, the Result)."""
     basal = summary.get("basal_layer")
     metrics = {
         "magma_ocean_end_yr": _none_nan(summary["magma_ocean_end_yr"]),
+        "magma_ocean_reformed_yr": _none_nan(summary.get("magma_ocean_reformed_yr")),
         "last_melt_yr": _none_nan(summary["last_melt_yr"]),
         "basal_layer_start_yr": _none_nan(basal["start_yr"]) if basal else math.nan,
         "basal_layer_end_yr": _none_nan(basal["end_yr"]) if basal else math.nan,
@@ -229,6 +248,7 @@ def outcomes(summary: dict, result=None, age_yr: float | None = None) -> tuple[d
     }
     flags = {
         "magma_ocean_persists": _flag(summary["magma_ocean_end_yr"] is None),
+        "magma_ocean_reformed": _flag(summary.get("magma_ocean_reformed_yr") is not None),
         "melt_persists": _flag(summary["last_melt_yr"] is None),
         "basal_layer_formed": _flag(basal is not None),
         "basal_layer_persists": _flag(basal is not None and basal["end_yr"] is None),
@@ -236,8 +256,7 @@ def outcomes(summary: dict, result=None, age_yr: float | None = None) -> tuple[d
     if age_yr is not None:
         import numpy as np
 
-        mo_end = summary["magma_ocean_end_yr"]
-        flags["magma_ocean_at_age"] = _flag(mo_end is None or mo_end > age_yr)
+        flags["magma_ocean_at_age"] = _flag(_magma_ocean_at(summary, result, age_yr))
         flags["basal_layer_by_age"] = _flag(basal is not None and basal["start_yr"] <= age_yr)
         t_yr = result.history["time"] / _YEAR
         melt = result.history["melt_mass"]

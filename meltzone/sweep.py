@@ -102,7 +102,7 @@ __all__ = ["SweepSpec", "load_spec", "run_sweep", "infer_core_fraction", "print_
 MODES = ("grid", "latin-hypercube", "sobol", "monte-carlo", "observed")
 DISTRIBUTIONS = ("uniform", "normal", "lognormal")
 #: Version of the sweep file layout (root attribute ``sweep_schema_version``).
-SWEEP_SCHEMA_VERSION = 1
+SWEEP_SCHEMA_VERSION = 2  # 2: magma_ocean_reformed metric and flag; evolution with the solidification switch
 #: Upper bound on the number of cases of one sweep.
 MAX_CASES = 10_000_000
 

@@ -498,3 +498,14 @@ def test_dashboard_only_when_asked_and_only_for_a_local_cluster(tmp_path):
     res = CliRunner().invoke(cli_main, ["sweep", str(spec), "-o", str(tmp_path / "o.h5"),
                                         "--dashboard", "127.0.0.1:8787"])
     assert res.exit_code == 2 and "--dask-local" in res.output and "Traceback" not in res.output
+
+
+def test_magma_ocean_at_age_follows_reformation():
+    """The magma-ocean-at-age flag follows the events: present before the end, absent after it, present again
+    after a magma-ocean-reformed event (a constructed event list)."""
+    from meltzone._sweep_exec import _magma_ocean_at
+
+    summary = {"magma_ocean_end_yr": 1e5, "events": [
+        {"time_yr": 5e8, "kind": "magma-ocean-reformed"}, {"time_yr": 1e5, "kind": "magma-ocean-ended"}]}
+    assert [_magma_ocean_at(summary, None, age) for age in (1e3, 1e6, 1e9)] == [True, False, True]
+    assert not _magma_ocean_at({"magma_ocean_end_yr": 0.0, "events": []}, None, 1e3)
