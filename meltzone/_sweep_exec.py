@@ -67,7 +67,8 @@ METRICS = {
 
 #: Yes/no outcomes per case: name -> long name. int8: 1 yes, 0 no, -1 no result (failed or rejected case).
 FLAGS = {
-    "magma_ocean_persists": "the surface magma ocean outlived the run",
+    "magma_ocean_persists": "a surface magma ocean is present at the end of the run (the first one outlived "
+                            "it, or one formed again)",
     "magma_ocean_reformed": "a solidified mantle warmed back into a surface magma ocean during the run",
     "melt_persists": "melt remains somewhere in the mantle at the end of the run",
     "basal_layer_formed": "a basal melt layer formed during the run",
@@ -247,7 +248,7 @@ def outcomes(summary: dict, result=None, age_yr: float | None = None) -> tuple[d
         "n_events": float(len(summary.get("events", ()))),
     }
     flags = {
-        "magma_ocean_persists": _flag(summary["magma_ocean_end_yr"] is None),
+        "magma_ocean_persists": _flag(summary.get("magma_ocean_at_end", summary["magma_ocean_end_yr"] is None)),
         "magma_ocean_reformed": _flag(summary.get("magma_ocean_reformed_yr") is not None),
         "melt_persists": _flag(summary["last_melt_yr"] is None),
         "basal_layer_formed": _flag(basal is not None),

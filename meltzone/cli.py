@@ -347,7 +347,8 @@ def _head_lines(result, s: dict) -> list[str]:
     else:
         mo_text = f"ends after {format_years(mo)}"
     if s.get("magma_ocean_reformed_yr") is not None:
-        mo_text += (f"; forms again at {format_years(s['magma_ocean_reformed_yr'])} (the mantle warmed past the "
+        again = "forms" if mo == 0.0 else "forms again"
+        mo_text += (f"; {again} at {format_years(s['magma_ocean_reformed_yr'])} (the mantle warmed past the "
                     "rheological transition)" + (" and is present at the end" if s["magma_ocean_at_end"] else ""))
     last = s["last_melt_yr"]
     last_text = "melt remains at the end of the run" if last is None else f"last melt froze at {format_years(last)}"

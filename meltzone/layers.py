@@ -274,7 +274,8 @@ def summarize(result, table=None, events=None) -> dict:
     h = result.history
     it = result.interior
     ends = [e["time"] for e in events if e["kind"] == "magma-ocean-ended"]
-    mo_end = ends[0] / YEAR if ends else (0.0 if h["regime"][0] != 0 else None)
+    # the first magma ocean: none when the run starts below the transition (a later one is "reformed")
+    mo_end = 0.0 if h["regime"][0] != 0 else (ends[0] / YEAR if ends else None)
     again = [e["time"] for e in events if e["kind"] == "magma-ocean-reformed"]
     last = [e["time"] for e in events if e["kind"] == "last-melt"]
     still = h["melt_mass"][-1] > 0 or h["regime"][-1] == 0

@@ -72,8 +72,8 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   not turn back into a magma ocean until about phi_c L / c_p (~220 K) hotter; the
   magma-ocean branch's suspension then follows that same melt fraction. The solid branch
   of a solidified mantle has melt weakening up to phi_c but no suspension viscosity. The
-  integrator lands the step that first crosses phi_c on the crossing (to PHI_TOL in melt
-  fraction). A solid law that cannot carry the heat (weak scalings away from their
+  integrator lands the step that first crosses phi_c on the crossing (to PHI_TOL = 1e-8 in
+  melt fraction). A solid law that cannot carry the heat (weak scalings away from their
   calibration) lets the mantle warm to that threshold, where the magma-ocean branch then
   holds it.
 
@@ -111,8 +111,9 @@ N_Y = 4
 N_PAR = 43
 #: P_T_SOLID until the top of the mantle first reaches the rheological transition (set by the integrator)
 NOT_YET = 1.0e300
-#: melt-fraction tolerance with which the integrator lands on that first crossing
-PHI_TOL = 1.0e-4
+#: melt-fraction tolerance with which the integrator lands on that first crossing (near phi_c the melt
+#: fraction of a slowly cooling mantle changes by ~1e-9 per year, so this is a few years at most)
+PHI_TOL = 1.0e-8
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 (G_R, G_P, G_F, G_W, G_TSOL, G_TLIQ, G_AUX1, G_AUX2) = range(8)
@@ -570,7 +571,7 @@ def diagnose(t, tu, tc, d_lid, grid, core, iso, par, law, diag):
     diag[D_PHI_TOP] = phi_top
     diag[D_PHI_SURF] = phi_surf
     diag[D_RIC] = r_ic
-    diag[D_ETA_U] = eta_u
+    diag[D_ETA_U] = eta_u if magma else eta_s
     diag[D_ETA_C] = eta_c
     diag[D_TB] = tb
     diag[D_EPS] = eps
