@@ -97,6 +97,9 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                                          source="~700 K for Earth's core, Alfe et al. 2002, EPSL 195:91 (from memory)"),
     },
     "convection": {
+        "scheme": Key("boundary-layer", "", "evolution scheme: one potential temperature with thermal boundary "
+                      "layers (parameterized convection)", choices=("boundary-layer",),
+            source="Stevenson, Spohn & Schubert 1983, Icarus 54:466 (boundary-layer theory)"),
         "regime": Key("mobile-lid", "", "solid-state convection regime", choices=("mobile-lid", "stagnant-lid")),
         "viscosity_prefactor_pa_s": Key(6.127e10, "Pa s", "Arrhenius prefactor A in A exp[(E + P V)/(R T)]",
                                         lo=0.0, lo_open=True,

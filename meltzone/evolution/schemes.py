@@ -1,0 +1,33 @@
+"""The table of evolution schemes: ``convection.scheme`` -> :class:`~meltzone.evolution.contract.Scheme`.
+
+Each entry names the module that defines the scheme's ``SCHEME`` object; the module is imported only when
+the scheme is used, so that choosing one scheme never compiles another's kernels. A new scheme plugs in by
+adding one line here (and its name to the ``convection.scheme`` choices in :mod:`meltzone.config`);
+nothing downstream of :class:`~meltzone.evolution.contract.History` changes.
+"""
+
+from __future__ import annotations
+
+from importlib import import_module
+
+from ..errors import ConfigError
+from .contract import Scheme
+
+#: scheme name -> module that defines ``SCHEME``
+TABLE = {
+    "boundary-layer": "meltzone.evolution.boundary_layer",
+}
+
+
+def get_scheme(name: str) -> Scheme:
+    """The registered scheme called ``name``; ConfigError naming ``convection.scheme`` otherwise."""
+    try:
+        module = TABLE[name]
+    except KeyError:
+        raise ConfigError(f"convection.scheme = {name!r} is not a scheme; choose one of "
+                          f"{', '.join(repr(n) for n in TABLE)}") from None
+    return import_module(module).SCHEME
+
+
+def scheme_names() -> tuple[str, ...]:
+    return tuple(TABLE)
