@@ -80,31 +80,6 @@ def _spec_from_options(config, mass, core_fraction, overrides):
     return PlanetSpec.from_mapping({}, extra)
 
 
-def _interior_report(interior, spec) -> str:
-    from .constants import EARTH_MASS, EARTH_RADIUS, GPA
-
-    it = interior
-    lines = [
-        f"planet            {spec.planet.name}: {it.mass / EARTH_MASS:.4g} M_E, core mass fraction "
-        f"{it.core_mass / it.mass:.4g}",
-        f"radius            {it.radius / 1e3:,.1f} km ({it.radius / EARTH_RADIUS:.4f} R_E)",
-        f"core radius       {it.core_radius / 1e3:,.1f} km ({it.core_radius / it.radius:.3f} of the radius)",
-        f"surface gravity   {it.surface_gravity:.3f} m/s^2",
-        f"mean density      {it.mean_density:,.0f} kg/m^3",
-        f"CMB pressure      {it.cmb_pressure / GPA:,.1f} GPa",
-        f"centre pressure   {it.center_pressure / GPA:,.1f} GPa",
-        f"moment of inertia {it.moment_of_inertia_factor:.4f} (C / M R^2)",
-        "",
-        f"{'mantle phase':<18}{'depth [km]':>22}{'pressure [GPa]':>22}",
-    ]
-    for layer in it.phase_layers():
-        lines.append(f"{layer['phase']:<18}{layer['top_depth_m'] / 1e3:>10,.0f} - {layer['bottom_depth_m'] / 1e3:>9,.0f}"
-                     f"{layer['top_pressure_pa'] / GPA:>10,.1f} - {layer['bottom_pressure_pa'] / GPA:>9,.1f}")
-    lines.append("")
-    lines.append("Model estimate from equations of state, not a measurement.")
-    return "\n".join(lines)
-
-
 @main.command()
 @_planet_options
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object in SI units.")
@@ -113,24 +88,16 @@ def interior(config, mass, core_fraction, overrides, as_json):
     """Solve and print the interior structure of a planet."""
     from .interior import build_interior
 
-    spec = _spec_from_options(config, mass, core_fraction, overrides)
-    it = build_interior(spec)
-    if as_json:
-        _echo_json(interior_json(it, spec))
-    else:
-        click.echo(_interior_report(it, spec))
-
-
-def interior_json(it, spec) -> dict:
-    """The JSON object printed by ``meltzone interior --json``."""
-    from . import phases
+    from . import phases, report
     from .melting import get_model
 
-    out = it.summary_dict()
-    mantle = it.mantle
-    model = get_model(spec.melting.model, spec.melting.table_file or None)
-    out["flags"] = phases.flags(it.radius - it.r[mantle], it.P[mantle], it.T_ref[mantle], model)
-    return out
+    spec = _spec_from_options(config, mass, core_fraction, overrides)
+    it = build_interior(spec)
+    zones = phases.planet_flags(it, get_model(spec.melting.model, spec.melting.table_file or None))
+    if as_json:
+        _echo_json(report.json_safe(report.interior_dict(it, zones)))
+    else:
+        click.echo(report.interior_text(it, spec, zones))
 
 
 # ---------------------------------------------------------------- curves
@@ -238,7 +205,7 @@ def _progress_callback(end_time_s: float, min_wall_s: float = 1.0):
     if not sys.stderr.isatty():
         return None, lambda: None
     from .constants import YEAR
-    from .plot import format_years
+    from .report import format_years
 
     start = time.perf_counter()
     shown = [False]
@@ -260,153 +227,6 @@ def _progress_callback(end_time_s: float, min_wall_s: float = 1.0):
     return callback, finish
 
 
-def _km(m) -> str:
-    return "-" if m is None or m != m else f"{m / 1e3:,.0f}"
-
-
-def _gpa(pa) -> str:
-    from .constants import GPA
-
-    return "-" if pa is None or pa != pa else f"{pa / GPA:,.1f}"
-
-
-def _layer_spans(result) -> list[dict]:
-    """One entry per layer id: first and last time [s] (formed / froze or merged event when there is one),
-    whether it is still molten at the end, shallowest and deepest depth [m], largest melt fraction."""
-    import numpy as np
-
-    table, events = result.tracked()
-    t_end = result.time[-1]
-    spans = []
-    for lid in dict.fromkeys(int(x) for x in table["layer"]):
-        rows = table["layer"] == lid
-        start = [e["time"] for e in events if e["layer"] == lid and e["kind"] == "formed"]
-        stop = [e["time"] for e in events if e["layer"] == lid and e["kind"] in ("froze", "merged")]
-        alive = bool(table["time"][rows][-1] == t_end) and not stop
-        first = start[0] if start else float(table["time"][rows][0])
-        last = stop[0] if stop else float(table["time"][rows][-1])
-        spans.append({"layer": lid, "first_s": first, "last_s": last, "alive": alive,
-                      "top_depth_m": float(np.min(table["top_depth"][rows])),
-                      "bottom_depth_m": float(np.max(table["bottom_depth"][rows])),
-                      "max_melt_fraction": float(np.max(table["max_melt_fraction"][rows]))})
-    return spans
-
-
-def _layer_lines(result) -> list[str]:
-    from .constants import YEAR
-    from .plot import format_years
-
-    spans = _layer_spans(result)
-    lines = [f"melt layers ({len(spans)})",
-             f"  {'id':>3}  {'first':>10}  {'last':>10}  {'lifetime':>10}  {'depth [km]':>17}  {'max melt':>8}"]
-    for s in spans:
-        last = "end of run" if s["alive"] else format_years(s["last_s"] / YEAR)
-        life = format_years((s["last_s"] - s["first_s"]) / YEAR) + ("+" if s["alive"] else "")
-        lines.append(f"  {s['layer']:>3}  {format_years(s['first_s'] / YEAR):>10}  {last:>10}  {life:>10}  "
-                     f"{_km(s['top_depth_m']):>7} - {_km(s['bottom_depth_m']):>7}  {s['max_melt_fraction']:>8.2f}")
-    if not spans:
-        lines.append("  (no melt at any step)")
-    return lines
-
-
-def _event_lines(events) -> list[str]:
-    from .constants import YEAR
-    from .plot import format_years
-
-    lines = [f"events ({len(events)})",
-             f"  {'time':>10}  {'kind':<21}{'layer':>5}  {'depth [km]':>10}  {'P [GPa]':>8}"]
-    for e in events:
-        layer = str(e["layer"]) if e["layer"] >= 0 else "-"
-        lines.append(f"  {format_years(e['time'] / YEAR):>10}  {e['kind']:<21}{layer:>5}  {_km(e['depth']):>10}  "
-                     f"{_gpa(e['pressure']):>8}")
-    return lines
-
-
-def _flag_lines(zones) -> list[str]:
-    lines = [f"flagged zones ({len(zones)}): depths resting on theory or extrapolated laws",
-             f"  {'kind':<21}{'confidence':<11}{'depth [km]':>17}  {'P [GPa]':>17}  what"]
-    for z in zones:
-        lines.append(f"  {z['kind']:<21}{z['confidence']:<11}{_km(z['top_depth_m']):>7} - {_km(z['bottom_depth_m']):>7}"
-                     f"  {_gpa(z['top_pressure_pa']):>7} - {_gpa(z['bottom_pressure_pa']):>7}  {z['what']}")
-    if not zones:
-        lines.append("  (none)")
-    return lines
-
-
-def _head_lines(result, s: dict) -> list[str]:
-    from .constants import EARTH_MASS, EARTH_RADIUS, YEAR
-    from .plot import format_years
-
-    it = result.interior
-    spec = result.spec
-    mo = s["magma_ocean_end_yr"]
-    if mo is None:
-        mo_text = "still present at the end of the run"
-    elif mo == 0.0:
-        mo_text = "none (the run starts below the rheological transition)"
-    else:
-        mo_text = f"ends after {format_years(mo)}"
-    if s.get("magma_ocean_reformed_yr") is not None:
-        again = "forms" if mo == 0.0 else "forms again"
-        mo_text += (f"; {again} at {format_years(s['magma_ocean_reformed_yr'])} (the mantle warmed past the "
-                    "rheological transition)" + (" and is present at the end" if s["magma_ocean_at_end"] else ""))
-    last = s["last_melt_yr"]
-    last_text = "melt remains at the end of the run" if last is None else f"last melt froze at {format_years(last)}"
-    b = s["basal_layer"]
-    if b is None:
-        basal = "none"
-    else:
-        until = "outlives the run" if b["end_yr"] is None else f"until {format_years(b['end_yr'])}"
-        thick = (f"up to {b['max_thickness_m'] / 1e3:,.3g} km thick" if b["max_thickness_m"] > 0.0
-                 else "one grid node thick")
-        basal = f"layer {b['layer']} from {format_years(b['start_yr'])}, {until}, {thick}"
-    return [
-        f"planet            {spec.planet.name}: {it.mass / EARTH_MASS:.4g} M_E, core mass fraction "
-        f"{it.core_mass / it.mass:.3g}",
-        f"interior          radius {it.radius / 1e3:,.0f} km ({it.radius / EARTH_RADIUS:.3f} R_E), CMB pressure "
-        f"{_gpa(it.cmb_pressure)} GPa, core radius {it.core_radius / 1e3:,.0f} km",
-        f"evolution         {format_years(result.time[-1] / YEAR)} in {result.n_steps} steps "
-        f"({result.wall_time_s:.2g} s), {spec.convection.regime}, melting model {result.melting_model}",
-        f"magma ocean       {mo_text}",
-        f"partial melt      {last_text}; deepest melt {_km(s['max_melt_depth_m'])} km "
-        f"({_gpa(s['max_melt_pressure_pa'])} GPa)",
-        f"basal melt layer  {basal}",
-        f"at the end        T_u {s['final_upper_temperature_k']:,.0f} K, surface heat flow "
-        f"{s['final_surface_heat_flow_w'] / 1e12:,.3g} TW, CMB heat flow {s['final_cmb_heat_flow_w'] / 1e12:,.3g} TW, "
-        f"inner core {s['inner_core_radius_m'] / 1e3:,.0f} km",
-        f"energy closure    {s['energy_closure']:.2e} (relative error of the energy budget)",
-    ]
-
-
-def _note_lines(zones) -> list[str]:
-    from .results import MODEL_NOTE
-
-    parts = []
-    for kind in dict.fromkeys(z["kind"] for z in zones):
-        if kind == "predicted-transition":
-            continue
-        zs = [z for z in zones if z["kind"] == kind]
-        top = min(zs, key=lambda z: z["top_depth_m"])
-        parts.append(f"{kind} below {_km(top['top_depth_m'])} km (> {_gpa(top['top_pressure_pa'])} GPa)")
-    text = MODEL_NOTE
-    if parts:
-        text += " Extrapolated or predicted: " + "; ".join(parts) + "."
-    return [text]
-
-
-def _json_safe(obj):
-    """NaN and infinities -> None, so that the JSON output stays standard."""
-    import math
-
-    if isinstance(obj, float):
-        return obj if math.isfinite(obj) else None
-    if isinstance(obj, dict):
-        return {k: _json_safe(v) for k, v in obj.items()}
-    if isinstance(obj, (list, tuple)):
-        return [_json_safe(v) for v in obj]
-    return obj
-
-
 @main.command()
 @click.argument("config_file", required=False, type=click.Path(dir_okay=False))
 @click.option("--set", "overrides", multiple=True, metavar="SECTION.KEY=VALUE",
@@ -423,6 +243,7 @@ def run(config_file, overrides, output, as_json):
     """
     from pathlib import Path
 
+    from . import report
     from .config import PlanetSpec
     from .constants import GYR
     from .evolution import evolve
@@ -440,14 +261,10 @@ def run(config_file, overrides, output, as_json):
     finally:
         finish()
     write(result, out)
-    summary = result.summary()
     if as_json:
-        _echo_json(_json_safe({**summary, "file": str(out)}))
-        return
-    zones = result.flags()
-    lines = [*_head_lines(result, summary), "", *_layer_lines(result), "", *_event_lines(result.tracked()[1]), "",
-             *_flag_lines(zones), "", f"wrote {out}", *_note_lines(zones)]
-    click.echo("\n".join(lines))
+        _echo_json(report.summary_dict(result, written=out))
+    else:
+        click.echo(report.run_text(result, written=out))
 
 
 @main.command("summary")
@@ -456,29 +273,31 @@ def run(config_file, overrides, output, as_json):
 @_user_errors
 def summary_command(path, as_json):
     """Summarize a results file (a run, or a sweep)."""
-    from . import results
+    from . import report, results
 
     if results.file_kind(path) == "sweep":
         _sweep_module("print_summary").print_summary(path, as_json)
         return
     result = results.load(path)
-    summary = result.summary()
     if as_json:
-        _echo_json(_json_safe(summary))
+        _echo_json(report.summary_dict(result))
     else:
-        click.echo("\n".join([*_head_lines(result, summary), "", *_note_lines(result.flags())]))
+        click.echo(report.summary_text(result))
 
 
 @main.command("layers")
 @click.argument("path", type=click.Path(dir_okay=False))
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object (SI, times in years).")
 @_user_errors
-def layers_command(path):
+def layers_command(path, as_json):
     """Print the melt-layer table and the event table of a run file."""
-    from . import results
+    from . import report, results
 
     result = results.load(path)
-    click.echo("\n".join([*_layer_lines(result), "", *_event_lines(result.tracked()[1]), "",
-                          *_note_lines(result.flags())]))
+    if as_json:
+        _echo_json(report.layers_dict(result))
+    else:
+        click.echo(report.layers_text(result))
 
 
 def _sweep_module(name: str):

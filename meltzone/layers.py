@@ -267,38 +267,55 @@ def _regime_events(result, interp, add_event, n_nodes):
         add_event(_refine(most, t[s - 1], t[s]), "last-melt", -1, None)
 
 
+#: Largest |relative energy-closure error| a run may end with and still count as closed; a run above it is
+#: reported with a warning (``energy_closure_ok`` false). Good runs close to ~1e-13; this model's choice.
+ENERGY_CLOSURE_TOLERANCE = 1e-6
+
+
 def summarize(result, table=None, events=None) -> dict:
-    """JSON-ready summary of a run (SI, with times in years where the key says ``_yr``)."""
+    """JSON-ready summary of a run (SI, with times in years where the key says ``_yr``).
+
+    Null (None) means "did not happen" or "has not ended by the end of the run"; the flags next to each time
+    tell which: ``magma_ocean_at_start`` / ``magma_ocean_at_end`` for ``magma_ocean_end_yr``, ``melt_at_end``
+    (and ``n_layers``) for ``last_melt_yr``. ``basal_layer`` is None unless a basal melt layer exists after
+    the surface magma ocean has ended (see :func:`basal_layer`).
+    """
     if table is None or events is None:
         table, events = track(result)
     h = result.history
     it = result.interior
+    at_start = bool(h["regime"][0] == 0)
     ends = [e["time"] for e in events if e["kind"] == "magma-ocean-ended"]
     # the first magma ocean: none when the run starts below the transition (a later one is "reformed")
-    mo_end = 0.0 if h["regime"][0] != 0 else (ends[0] / YEAR if ends else None)
+    mo_end = ends[0] / YEAR if at_start and ends else None
     again = [e["time"] for e in events if e["kind"] == "magma-ocean-reformed"]
     last = [e["time"] for e in events if e["kind"] == "last-melt"]
-    still = h["melt_mass"][-1] > 0 or h["regime"][-1] == 0
-    last_melt = last[-1] / YEAR if last else (None if still else 0.0)
-    basal = basal_layer(result, table, events)
+    still = bool(h["melt_mass"][-1] > 0 or h["regime"][-1] == 0)
+    last_melt = last[-1] / YEAR if last and not still else None
+    mo_end_s = None if not at_start else (ends[0] if ends else None)
+    basal = basal_layer(result, table, events, after_s=0.0 if not at_start else mo_end_s)
     n_layers = int(len(np.unique(table["layer"]))) if len(table["layer"]) else 0
+    closure = float(result.energy_closure)
     return {
         "planet": result.spec.planet.name,
         "mass_kg": it.mass,
         "radius_m": it.radius,
+        "magma_ocean_at_start": at_start,
         "magma_ocean_end_yr": mo_end,
         "magma_ocean_reformed_yr": again[0] / YEAR if again else None,
         "magma_ocean_at_end": bool(h["regime"][-1] == 0),
         "last_melt_yr": last_melt,
+        "melt_at_end": still,
         "basal_layer": basal,
         "final_upper_temperature_k": float(h["upper_temperature"][-1]),
         "final_surface_heat_flow_w": float(h["surface_heat_flow"][-1]),
         "final_cmb_heat_flow_w": float(h["cmb_heat_flow"][-1]),
         "inner_core_radius_m": float(h["inner_core_radius"][-1]),
         "n_layers": n_layers,
-        "max_melt_depth_m": float(np.max(table["bottom_depth"])) if n_layers else 0.0,
-        "max_melt_pressure_pa": float(np.max(table["bottom_pressure"])) if n_layers else 0.0,
-        "energy_closure": result.energy_closure,
+        "max_melt_depth_m": float(np.max(table["bottom_depth"])) if n_layers else None,
+        "max_melt_pressure_pa": float(np.max(table["bottom_pressure"])) if n_layers else None,
+        "energy_closure": closure,
+        "energy_closure_ok": bool(closure <= ENERGY_CLOSURE_TOLERANCE),
         "end_time_yr": float(h["time"][-1] / YEAR),
         "events": [{"time_yr": e["time"] / YEAR, "kind": e["kind"], "layer": e["layer"],
                     "depth_m": None if math.isnan(e["depth"]) else e["depth"],
@@ -306,22 +323,28 @@ def summarize(result, table=None, events=None) -> dict:
     }
 
 
-def basal_layer(result, table, events):
-    """The basal melt layer: a layer on the CMB that is not connected to the surface.
+def basal_layer(result, table, events, after_s=0.0):
+    """The basal melt layer: a melt layer that sits on the core-mantle boundary, is not connected to the
+    surface, and still exists at or after model time ``after_s`` [s] (the end of the surface magma ocean;
+    0 for a run that starts solid; None when the magma ocean never ends, so that there is no basal layer of
+    its own to report). A melt region that is only the deep end of a surface magma ocean does not count.
 
-    Returns None or {start_yr, end_yr, max_thickness_m} (end_yr None if it outlives the run)."""
+    Returns None or {layer, start_yr, end_yr, max_thickness_m}: ``start_yr`` is when that layer first sat on
+    the CMB apart from any surface melt (it may separate while the magma ocean still lasts), ``end_yr`` when
+    it froze or merged into another layer (None if it outlives the run), ``max_thickness_m`` its largest
+    thickness on the CMB (edges interpolated between nodes)."""
     it = result.interior
     cmb_depth = it.radius - it.core_radius
-    if not len(table["layer"]):
+    if after_s is None or not len(table["layer"]):
         return None
     basal_rows = (np.isclose(table["bottom_depth"], cmb_depth, rtol=0, atol=1.0)
                   & (table["top_depth"] > 0.0))
-    if not np.any(basal_rows):
+    later = basal_rows & (table["time"] >= after_s)
+    if not np.any(later):
         return None
-    first = int(np.argmax(basal_rows))
-    lid = int(table["layer"][first])
+    lid = int(table["layer"][int(np.argmax(later))])
     rows = basal_rows & (table["layer"] == lid)
-    start = float(table["time"][first])
+    start = float(table["time"][int(np.argmax(rows))])
     thickness = float(np.max(table["bottom_depth"][rows] - table["top_depth"][rows]))
     froze = [e["time"] for e in events if e["kind"] == "froze" and e["layer"] == lid]
     merged = [e["time"] for e in events if e["kind"] == "merged" and e["layer"] == lid]

@@ -225,3 +225,39 @@ def flags(depth_m, pressure_pa, temperature_k, melting_model, *, eos_limit_pa: f
                       "top_pressure_pa": float(top_p), "bottom_pressure_pa": float(bottom_p),
                       "source": marker.source, "confidence": marker.confidence})
     return zones
+
+
+#: Pressure [Pa] of the highest laser-shock melting data on iron: 1000 GPa (Kraus et al. 2022, Science
+#: 375:202, checked against the abstract). Iron melting used above the static experiments is "medium"
+#: confidence up to it and "low" above.
+IRON_SHOCK_DATA_LIMIT_PA = 1.0 * TPA
+
+
+def core_flags(depth_m, pressure_pa) -> list[dict]:
+    """High-pressure flags of the core: depths where the iron melting curve (which sets the inner core) is used
+    beyond its static experiments (:data:`meltzone.melting.IRON_VALIDATED_MAX_PA`, ~330 GPa; Anzellini et al.
+    2013, Science 340:464). Kind ``extrapolated-iron-melting``; confidence ``medium`` up to the laser-shock
+    data (:data:`IRON_SHOCK_DATA_LIMIT_PA`), ``low`` above. Same zone dicts as :func:`flags`."""
+    from .melting import IRON_VALIDATED_MAX_PA
+
+    order = np.argsort(np.asarray(depth_m, dtype=float), kind="stable")
+    depth = np.asarray(depth_m, dtype=float)[order]
+    p = np.asarray(pressure_pa, dtype=float)[order]
+    if depth.size == 0:
+        return []
+    confidence = np.where(p <= IRON_SHOCK_DATA_LIMIT_PA, "medium", "low")
+    return _mask_zones("extrapolated-iron-melting",
+                       f"iron melting curve beyond its static experiments (to {IRON_VALIDATED_MAX_PA / GPA:g} GPa)",
+                       "Anzellini et al. 2013, Science 340:464 (static data to ~330 GPa)", depth, p,
+                       p > IRON_VALIDATED_MAX_PA, confidence)
+
+
+def planet_flags(interior, melting_model) -> list[dict]:
+    """All high-pressure flags of a planet: the mantle's (:func:`flags`, on the reference adiabat the interior
+    was built on) and the core's (:func:`core_flags`)."""
+    it = interior
+    ms = it.mantle
+    cs = it.core
+    return (flags(it.radius - it.r[ms], it.P[ms], it.T_ref[ms], melting_model)
+            + core_flags(it.radius - it.r[cs], it.P[cs]))
+

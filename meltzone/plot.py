@@ -9,6 +9,7 @@ from pathlib import Path
 import numpy as np
 
 from .errors import MeltzoneError
+from .report import format_years
 
 #: File suffixes a figure may be written to and the matplotlib format of each.
 FIGURE_FORMATS = {".png": "png", ".pdf": "pdf", ".svg": "svg"}
@@ -408,16 +409,6 @@ def history(result, path) -> Path:
                          bbox={"facecolor": "white", "alpha": 0.7, "lw": 0, "pad": 1})
     axes[0].set_title(f"{result.spec.planet.name}: thermal history")
     return _save(fig, path, fmt)
-
-
-def format_years(years: float) -> str:
-    """A model time in years as a short string with the unit: 250 yr, 3.2 kyr, 45 Myr, 4.5 Gyr."""
-    if years is None or not np.isfinite(years):
-        return "-"
-    for scale, unit in ((1e9, "Gyr"), (1e6, "Myr"), (1e3, "kyr")):
-        if abs(years) >= scale:
-            return f"{years / scale:.3g} {unit}"
-    return f"{years:.3g} yr"
 
 
 def plot_run(result, figure: str, path) -> Path:

@@ -165,21 +165,14 @@ class Result:
         return summarize(self, table, events)
 
     def flags(self) -> list[dict]:
-        """High-pressure flags of the mantle (:func:`meltzone.phases.flags` on the reference adiabat the
-        interior was built on); empty when that function is not available."""
+        """High-pressure flags of the mantle and the core (:func:`meltzone.phases.planet_flags`, on the
+        reference adiabat the interior was built on)."""
         if "flags" not in self._cache:
-            from . import phases
+            from .melting import get_model
+            from .phases import planet_flags
 
-            find = getattr(phases, "flags", None)
-            zones = []
-            if find is not None:
-                from .melting import get_model
-
-                it = self.interior
-                ms = it.mantle
-                model = get_model(self.melting_model, self.spec.melting.table_file or None)
-                zones = find(it.radius - it.r[ms], it.P[ms], it.T_ref[ms], model)
-            self._cache["flags"] = zones
+            model = get_model(self.melting_model, self.spec.melting.table_file or None)
+            self._cache["flags"] = planet_flags(self.interior, model)
         return self._cache["flags"]
 
     def snapshots(self, times=None) -> dict:
@@ -240,46 +233,19 @@ def _snapshot_labels(result, times) -> list[str]:
 
 
 # ====================================================================== sources of the laws used
-def _citations(text: str) -> list[str]:
-    """Citations in a docstring: author names and a year, then optionally a journal with volume:page,
-    e.g. "Stevenson, Spohn & Schubert 1983, Icarus 54:466" or "Tosi et al. 2017 (A&A 605:A71";
-    and books cited as "Author & Author, Title (edition year"."""
-    import re
-
-    name = r"[A-Z][\w'\-]+"
-    pattern = (rf"{name}(?: et al\.|(?:(?:, | & | and ){name})*) (?:19|20)\d\d[a-z]?"
-               r"(?:(?:, | \()(?:[A-Z][\w.&'/]*\.? )+?\d+:[\w.]+)?")
-    book = rf"{name}(?: & {name})+, [A-Z][\w ]+ \([^()]*?(?:19|20)\d\d"  # "Author & Author, Title (2nd ed. 2002"
-    text = " ".join(text.split())
-    return ([c.replace(" (", ", ") for c in re.findall(pattern, text)]
-            + [c + ")" for c in re.findall(book, text)])
-
-
 def collect_sources(result) -> tuple[str, ...]:
-    """Sources of the laws a run used, each prefixed by what it is for: the melting model's citation,
-    the equation-of-state materials' sources, and the citations in the docstrings of the
-    :mod:`meltzone.evolution` modules."""
-    import importlib
-    import pkgutil
-
-    from . import evolution
-    from .errors import MeltzoneError
+    """Sources of the laws a run used, each with what it is for and its status (checked / from memory /
+    this model's choice), from the citation registry :mod:`meltzone.citations`."""
+    from .citations import run_sources
     from .melting import get_model
 
-    out = []
     try:
         model = get_model(result.melting_model, result.spec.melting.table_file or None)
-        out.append(f"melting curves ({model.id}): {model.citation}")
     except MeltzoneError:  # a user table that has moved since the run: keep the id
-        out.append(f"melting curves: model {result.melting_model!r}")
-    for mat in result.interior.materials:
-        out.append(f"equation of state ({mat.name}): {mat.source}")
-    modules = [evolution] + [importlib.import_module(f"{evolution.__name__}.{m.name}")
-                             for m in pkgutil.iter_modules(evolution.__path__)]
-    for mod in modules:
-        for ref in _citations(mod.__doc__ or ""):
-            out.append(f"thermal evolution ({mod.__name__.rsplit('.', 1)[-1]}): {ref}")
-    return tuple(dict.fromkeys(out))
+        from types import SimpleNamespace
+
+        model = SimpleNamespace(id=result.melting_model, citation=f"model {result.melting_model!r}")
+    return run_sources(result.spec, model, result.interior.materials)
 
 
 # ====================================================================== HDF5 primitives

@@ -1,0 +1,252 @@
+"""Text and JSON reports: every table and sentence meltzone prints, for interiors and runs (and sweeps).
+
+The command line (:mod:`meltzone.cli`) only parses, calls the API and prints what these functions return.
+Times are shown in years (``format_years``), depths in km, pressures in GPa; JSON objects are SI with times in
+years where the key says ``_yr``, and null where nothing happened.
+
+Results are model estimates, not measurements.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from .constants import EARTH_MASS, EARTH_RADIUS, GPA, YEAR
+from .results import MODEL_NOTE
+
+
+def format_years(years: float) -> str:
+    """A model time in years as a short string with the unit: 250 yr, 3.2 kyr, 45 Myr, 4.5 Gyr."""
+    if years is None or not np.isfinite(years):
+        return "-"
+    for scale, unit in ((1e9, "Gyr"), (1e6, "Myr"), (1e3, "kyr")):
+        if abs(years) >= scale:
+            return f"{years / scale:.3g} {unit}"
+    return f"{years:.3g} yr"
+
+
+def km(m) -> str:
+    return "-" if m is None or m != m else f"{m / 1e3:,.0f}"
+
+
+def gpa(pa) -> str:
+    return "-" if pa is None or pa != pa else f"{pa / GPA:,.1f}"
+
+
+def json_safe(obj):
+    """NaN and infinities -> None, numpy scalars -> Python numbers, so that the JSON output stays standard."""
+    if isinstance(obj, np.generic):
+        obj = obj.item()
+    if isinstance(obj, float):
+        return obj if math.isfinite(obj) else None
+    if isinstance(obj, dict):
+        return {k: json_safe(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [json_safe(v) for v in obj]
+    return obj
+
+
+# ---------------------------------------------------------------- flags
+def flag_lines(zones) -> list[str]:
+    lines = [f"flagged zones ({len(zones)}): depths resting on theory or extrapolated laws",
+             f"  {'kind':<26}{'confidence':<11}{'depth [km]':>17}  {'P [GPa]':>17}  what"]
+    for z in zones:
+        lines.append(f"  {z['kind']:<26}{z['confidence']:<11}{km(z['top_depth_m']):>7} - {km(z['bottom_depth_m']):>7}"
+                     f"  {gpa(z['top_pressure_pa']):>7} - {gpa(z['bottom_pressure_pa']):>7}  {z['what']}")
+    if not zones:
+        lines.append("  (none)")
+    return lines
+
+
+def note_lines(zones) -> list[str]:
+    """The closing note: model estimate, and where the profile rests on extrapolated or predicted laws."""
+    parts = []
+    for kind in dict.fromkeys(z["kind"] for z in zones):
+        if kind == "predicted-transition":
+            continue
+        zs = [z for z in zones if z["kind"] == kind]
+        top = min(zs, key=lambda z: z["top_depth_m"])
+        parts.append(f"{kind} below {km(top['top_depth_m'])} km (> {gpa(top['top_pressure_pa'])} GPa)")
+    text = MODEL_NOTE
+    if parts:
+        text += " Extrapolated or predicted: " + "; ".join(parts) + "."
+    return [text]
+
+
+# ---------------------------------------------------------------- interior
+def interior_text(interior, spec, zones) -> str:
+    """The report of ``meltzone interior``: structure, mantle phases and the flagged zones."""
+    it = interior
+    lines = [
+        f"planet            {spec.planet.name}: {it.mass / EARTH_MASS:.4g} M_E, core mass fraction "
+        f"{it.core_mass / it.mass:.4g}",
+        f"radius            {it.radius / 1e3:,.1f} km ({it.radius / EARTH_RADIUS:.4f} R_E)",
+        f"core radius       {it.core_radius / 1e3:,.1f} km ({it.core_radius / it.radius:.3f} of the radius)",
+        f"surface gravity   {it.surface_gravity:.3f} m/s^2",
+        f"mean density      {it.mean_density:,.0f} kg/m^3",
+        f"CMB pressure      {it.cmb_pressure / GPA:,.1f} GPa",
+        f"centre pressure   {it.center_pressure / GPA:,.1f} GPa",
+        f"moment of inertia {it.moment_of_inertia_factor:.4f} (C / M R^2)",
+        "",
+        f"{'mantle phase':<18}{'depth [km]':>22}{'pressure [GPa]':>22}",
+    ]
+    for layer in it.phase_layers():
+        lines.append(f"{layer['phase']:<18}{layer['top_depth_m'] / 1e3:>10,.0f} - {layer['bottom_depth_m'] / 1e3:>9,.0f}"
+                     f"{layer['top_pressure_pa'] / GPA:>10,.1f} - {layer['bottom_pressure_pa'] / GPA:>9,.1f}")
+    lines += ["", *flag_lines(zones), ""]
+    lines += [n.replace(MODEL_NOTE, "Model estimate from equations of state, not a measurement.")
+              for n in note_lines(zones)]
+    return "\n".join(lines)
+
+
+def interior_dict(interior, zones) -> dict:
+    """The JSON object of ``meltzone interior --json`` (SI units) with its flagged zones."""
+    out = interior.summary_dict()
+    out["flags"] = list(zones)
+    return out
+
+
+# ---------------------------------------------------------------- runs
+def layer_spans(result) -> list[dict]:
+    """One entry per layer id: first and last time [s] (formed / froze or merged event when there is one),
+    whether it is still molten at the end, shallowest and deepest depth [m], largest melt fraction."""
+    table, events = result.tracked()
+    t_end = result.time[-1]
+    spans = []
+    for lid in dict.fromkeys(int(x) for x in table["layer"]):
+        rows = table["layer"] == lid
+        start = [e["time"] for e in events if e["layer"] == lid and e["kind"] == "formed"]
+        stop = [e["time"] for e in events if e["layer"] == lid and e["kind"] in ("froze", "merged")]
+        alive = bool(table["time"][rows][-1] == t_end) and not stop
+        first = start[0] if start else float(table["time"][rows][0])
+        last = stop[0] if stop else float(table["time"][rows][-1])
+        spans.append({"layer": lid, "first_s": first, "last_s": last, "alive": alive,
+                      "top_depth_m": float(np.min(table["top_depth"][rows])),
+                      "bottom_depth_m": float(np.max(table["bottom_depth"][rows])),
+                      "max_melt_fraction": float(np.max(table["max_melt_fraction"][rows]))})
+    return spans
+
+
+def layer_lines(result) -> list[str]:
+    spans = layer_spans(result)
+    lines = [f"melt layers ({len(spans)})",
+             f"  {'id':>3}  {'first':>10}  {'last':>10}  {'lifetime':>10}  {'depth [km]':>17}  {'max melt':>8}"]
+    for s in spans:
+        last = "end of run" if s["alive"] else format_years(s["last_s"] / YEAR)
+        life = format_years((s["last_s"] - s["first_s"]) / YEAR) + ("+" if s["alive"] else "")
+        lines.append(f"  {s['layer']:>3}  {format_years(s['first_s'] / YEAR):>10}  {last:>10}  {life:>10}  "
+                     f"{km(s['top_depth_m']):>7} - {km(s['bottom_depth_m']):>7}  {s['max_melt_fraction']:>8.2f}")
+    if not spans:
+        lines.append("  (no melt at any step)")
+    return lines
+
+
+def event_lines(events) -> list[str]:
+    lines = [f"events ({len(events)})",
+             f"  {'time':>10}  {'kind':<21}{'layer':>5}  {'depth [km]':>10}  {'P [GPa]':>8}"]
+    for e in events:
+        layer = str(e["layer"]) if e["layer"] >= 0 else "-"
+        when = "t = 0" if e["time"] == 0.0 else format_years(e["time"] / YEAR)
+        lines.append(f"  {when:>10}  {e['kind']:<21}{layer:>5}  {km(e['depth']):>10}  {gpa(e['pressure']):>8}")
+    return lines
+
+
+def _magma_ocean_text(s: dict) -> str:
+    mo = s["magma_ocean_end_yr"]
+    if not s["magma_ocean_at_start"]:
+        text = "none (the run starts below the rheological transition)"
+    elif mo is None:
+        text = "still present at the end of the run"
+    else:
+        text = f"ends after {format_years(mo)}"
+    if s.get("magma_ocean_reformed_yr") is not None:
+        again = "forms" if not s["magma_ocean_at_start"] else "forms again"
+        text += (f"; {again} at {format_years(s['magma_ocean_reformed_yr'])} (the mantle warmed past the "
+                 "rheological transition)" + (" and is present at the end" if s["magma_ocean_at_end"] else ""))
+    return text
+
+
+def _melt_text(s: dict) -> str:
+    if s["melt_at_end"]:
+        text = "melt remains at the end of the run"
+    elif s["last_melt_yr"] is None:
+        return "none at any step"
+    else:
+        text = f"last melt froze at {format_years(s['last_melt_yr'])}"
+    return f"{text}; deepest melt {km(s['max_melt_depth_m'])} km ({gpa(s['max_melt_pressure_pa'])} GPa)"
+
+
+def _basal_text(s: dict) -> str:
+    b = s["basal_layer"]
+    if b is None:
+        return "none after the magma ocean"
+    until = "outlives the run" if b["end_yr"] is None else f"until {format_years(b['end_yr'])}"
+    return (f"layer {b['layer']} on the CMB from {format_years(b['start_yr'])}, {until}, up to "
+            f"{b['max_thickness_m'] / 1e3:,.3g} km thick")
+
+
+def head_lines(result, s: dict) -> list[str]:
+    """The run's outcome in a few lines (the summary dict ``s`` of :meth:`Result.summary`)."""
+    it = result.interior
+    spec = result.spec
+    closure = f"{s['energy_closure']:.2e} (relative error of the energy budget)"
+    if not s.get("energy_closure_ok", True):
+        closure += " WARNING: above the tolerance, the run's energy budget does not close"
+    return [
+        f"planet            {spec.planet.name}: {it.mass / EARTH_MASS:.4g} M_E, core mass fraction "
+        f"{it.core_mass / it.mass:.3g}",
+        f"interior          radius {it.radius / 1e3:,.0f} km ({it.radius / EARTH_RADIUS:.3f} R_E), CMB pressure "
+        f"{gpa(it.cmb_pressure)} GPa, core radius {it.core_radius / 1e3:,.0f} km",
+        f"evolution         {format_years(result.time[-1] / YEAR)} in {result.n_steps} steps "
+        f"({result.wall_time_s:.2g} s), {spec.convection.scheme} scheme, {spec.convection.regime}, melting model "
+        f"{result.melting_model}",
+        f"magma ocean       {_magma_ocean_text(s)}",
+        f"partial melt      {_melt_text(s)}",
+        f"basal melt layer  {_basal_text(s)}",
+        f"at the end        T_u {s['final_upper_temperature_k']:,.0f} K, surface heat flow "
+        f"{s['final_surface_heat_flow_w'] / 1e12:,.3g} TW, CMB heat flow {s['final_cmb_heat_flow_w'] / 1e12:,.3g} TW, "
+        f"inner core {s['inner_core_radius_m'] / 1e3:,.0f} km",
+        f"energy closure    {closure}",
+    ]
+
+
+def run_text(result, written=None) -> str:
+    """The report of ``meltzone run``: outcome, layers, events, flagged zones, the file written."""
+    zones = result.flags()
+    lines = [*head_lines(result, result.summary()), "", *layer_lines(result), "",
+             *event_lines(result.tracked()[1]), "", *flag_lines(zones), ""]
+    if written is not None:
+        lines.append(f"wrote {written}")
+    return "\n".join(lines + note_lines(zones))
+
+
+def summary_text(result) -> str:
+    """The report of ``meltzone summary`` for a run file."""
+    zones = result.flags()
+    return "\n".join([*head_lines(result, result.summary()), "", *flag_lines(zones), "", *note_lines(zones)])
+
+
+def layers_text(result) -> str:
+    """The report of ``meltzone layers``: the layer table and the event table."""
+    return "\n".join([*layer_lines(result), "", *event_lines(result.tracked()[1]), "",
+                      *note_lines(result.flags())])
+
+
+def summary_dict(result, written=None) -> dict:
+    """The JSON object of ``run --json`` and ``summary --json``: the summary with its flagged zones."""
+    out = {**result.summary(), "flags": list(result.flags())}
+    if written is not None:
+        out["file"] = str(written)
+    return json_safe(out)
+
+
+def layers_dict(result) -> dict:
+    """The JSON object of ``layers --json``: one entry per layer (times in years) and the events."""
+    layers = [{"layer": s["layer"], "first_yr": s["first_s"] / YEAR,
+               "last_yr": None if s["alive"] else s["last_s"] / YEAR, "molten_at_end": s["alive"],
+               "top_depth_m": s["top_depth_m"], "bottom_depth_m": s["bottom_depth_m"],
+               "max_melt_fraction": s["max_melt_fraction"]} for s in layer_spans(result)]
+    return json_safe({"planet": result.spec.planet.name, "layers": layers,
+                      "events": result.summary()["events"], "flags": list(result.flags())})
