@@ -13,8 +13,6 @@ from meltzone.evolution import evolve
 from meltzone.evolution.heating import BSE_MASS, radiogenic_power
 from meltzone.layers import summarize
 
-from reference_evolution import ReferenceModel
-
 
 # ------------------------------------------------------------------ radiogenic heating
 def test_bse_radiogenic_power_today():
@@ -221,25 +219,6 @@ def test_energy_closure(earth):
     formulation makes it close to round-off."""
     assert earth.energy_closure <= 1e-4
     assert np.max(np.abs(earth.history["closure_error"])) <= 1e-9
-
-
-@pytest.mark.parametrize("scaling", [{}, {"beta": 0.1, "nusselt_prefactor": 10.0},
-                                     {"upper_temperature_k": 1788.0, "core_temperature_k": 4800.0, **WEAK}],
-                         ids=["beta-1/3", "weak-beta", "solid-start-rewarming"])
-def test_against_scipy_reference(scaling):
-    """The numba Dormand-Prince path against a plain NumPy + scipy solve_ivp (LSODA) path in temperature form:
-    upper-mantle temperature within 1e-3 relative over the whole run, core temperature too; for the default
-    scaling, for a weak one (whose solid-state law differs from the magma ocean's), and for a solid start that
-    warms past the batch magma-ocean threshold (the isentropic criterion; the reference solves it in closed
-    form for the linear law, the kernel by bisection)."""
-    spec = PlanetSpec(mass_earth=1.0, end_time_gyr=4.5, mantle_nodes=128, **scaling)
-    r = evolve(spec)
-    t_eval = np.geomspace(1e3, r.time[-1], 30)
-    sol = ReferenceModel(spec).run(t_eval)
-    tu = np.interp(t_eval, r.time, r.history["upper_temperature"])
-    tc = np.interp(t_eval, r.time, r.history["core_temperature"])
-    assert np.max(np.abs(tu / sol.y[0] - 1.0)) < 1e-3
-    assert np.max(np.abs(tc / sol.y[1] - 1.0)) < 1e-3
 
 
 def test_tolerance_halving_moves_magma_ocean_end_little():
