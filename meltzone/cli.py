@@ -49,7 +49,42 @@ def _echo_json(obj) -> None:
     click.echo(json.dumps(obj, indent=2, allow_nan=False))
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+def _one_line(text: str) -> str:
+    """An error message on one line (line breaks and runs of blanks folded to one blank)."""
+    return " ".join(str(text).split())
+
+
+class _OneLineErrors(click.Group):
+    """The command group: every error of every command reaches stderr as ONE line, ``error: ...`` (naming the
+    option, key or file), with exit code 2, never a traceback. ``--help`` and ``--version`` are unchanged."""
+
+    def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True, **extra):
+        from .errors import MeltzoneError
+
+        try:
+            rv = super().main(args, prog_name, complete_var, standalone_mode=False, **extra)
+        except click.exceptions.NoArgsIsHelpError as exc:  # bare `meltzone`: click's help on stderr, as before
+            if not standalone_mode:
+                raise
+            exc.show()
+            sys.exit(exc.exit_code)
+        except (click.ClickException, MeltzoneError) as exc:
+            if not standalone_mode:
+                raise
+            text = exc.format_message() if isinstance(exc, click.ClickException) else str(exc)
+            click.echo(f"error: {_one_line(text)}", err=True)
+            sys.exit(2)
+        except click.Abort:
+            if not standalone_mode:
+                raise
+            click.echo("error: aborted", err=True)
+            sys.exit(1)
+        if standalone_mode:
+            sys.exit(rv if isinstance(rv, int) else 0)
+        return rv
+
+
+@click.group(cls=_OneLineErrors, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="meltzone")
 def main():
     """meltzone: where and when the mantles of rocky planets melt (model estimates, not measurements)."""
@@ -67,7 +102,17 @@ def _planet_options(func):
     return func
 
 
+#: The one rule for the planet a command starts from, quoted in the --help of `run` and `interior`.
+BASE_PLANET_RULE = ("\b\nThe planet: without CONFIG, the built-in demo planet (Veyra-3 b, an invented\n"
+                    "4 Earth-mass planet, core mass fraction 0.30, meltzone/data/demo.toml);\n"
+                    "with CONFIG, the schema defaults (1 Earth mass, core mass fraction 0.325)\n"
+                    "overridden by the file. --mass, --core-fraction and --set apply on top\n"
+                    "in both cases.")
+
+
 def _spec_from_options(config, mass, core_fraction, overrides):
+    """The planet of `run` and `interior`: the demo planet without CONFIG, else the schema defaults overridden by
+    CONFIG; then --set, --mass and --core-fraction."""
     from .config import PlanetSpec
 
     extra = list(overrides)
@@ -75,24 +120,25 @@ def _spec_from_options(config, mass, core_fraction, overrides):
         extra.append(f"planet.mass_earth={mass!r}")
     if core_fraction is not None:
         extra.append(f"planet.core_mass_fraction={core_fraction!r}")
-    if config:
-        return PlanetSpec.from_toml(config, extra)
-    return PlanetSpec.from_mapping({}, extra)
+    return PlanetSpec.from_toml(config or str(demo_config_path()), extra)
 
 
-@main.command()
+@main.command(epilog=BASE_PLANET_RULE)
 @_planet_options
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object in SI units.")
 @_user_errors
 def interior(config, mass, core_fraction, overrides, as_json):
-    """Solve and print the interior structure of a planet."""
+    """Solve and print the interior structure of a planet.
+
+    CONFIG is a TOML planet configuration (see `meltzone config --example`).
+    """
     from .interior import build_interior
 
     from . import phases, report
     from .melting import get_model
 
     spec = _spec_from_options(config, mass, core_fraction, overrides)
-    it = build_interior(spec)
+    it = build_interior(spec, check_melting=False)
     zones = phases.planet_flags(it, get_model(spec.melting.model, spec.melting.table_file or None))
     if as_json:
         _echo_json(report.json_safe(report.interior_dict(it, zones)))
@@ -227,30 +273,26 @@ def _progress_callback(end_time_s: float, min_wall_s: float = 1.0):
     return callback, finish
 
 
-@main.command()
-@click.argument("config_file", required=False, type=click.Path(dir_okay=False))
-@click.option("--set", "overrides", multiple=True, metavar="SECTION.KEY=VALUE",
-              help="Override one config key (repeatable), e.g. --set run.end_time_gyr=2.")
+@main.command(epilog=BASE_PLANET_RULE)
+@_planet_options
 @click.option("-o", "--output", type=click.Path(dir_okay=False), default=None,
               help="Results file (HDF5). Default: <config stem>.h5, or meltzone-demo.h5 for the demo planet.")
 @click.option("--json", "as_json", is_flag=True, help="Print the run's summary as JSON (SI, times in years).")
 @_user_errors
-def run(config_file, overrides, output, as_json):
+def run(config, mass, core_fraction, overrides, output, as_json):
     """Evolve a planet, find its melt layers and write the results file.
 
-    CONFIG_FILE is a TOML planet configuration (see `meltzone config --example`); without it the
-    built-in demo planet (an invented one) is run.
+    CONFIG is a TOML planet configuration (see `meltzone config --example`).
     """
     from pathlib import Path
 
     from . import report
-    from .config import PlanetSpec
     from .constants import GYR
     from .evolution import evolve
     from .results import write
 
-    spec = PlanetSpec.from_toml(config_file or str(demo_config_path()), list(overrides))
-    out = Path(output) if output else Path(f"{Path(config_file).stem}.h5" if config_file else "meltzone-demo.h5")
+    spec = _spec_from_options(config, mass, core_fraction, overrides)
+    out = Path(output) if output else Path(f"{Path(config).stem}.h5" if config else "meltzone-demo.h5")
     if not out.parent.resolve().is_dir():
         raise click.BadParameter(f"folder {str(out.parent)!r} does not exist", param_hint="--output")
     if not os.access(out.parent.resolve(), os.W_OK):

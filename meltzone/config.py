@@ -13,8 +13,11 @@ key, the value and what is allowed.
 
 from __future__ import annotations
 
+import difflib
 import math
+import numbers
 import tomllib
+import unicodedata
 import warnings
 from dataclasses import dataclass
 from pathlib import Path
@@ -27,6 +30,18 @@ from .errors import ConfigError
 CALIBRATED_MASS_RANGE = (0.5, 15.0)
 #: Largest core mass fraction the interior solver and evolution are tested for; above it a run warns.
 TESTED_CORE_FRACTION_MAX = 0.8
+#: Hard limits of planet.mass_earth [Earth masses]: the Moon's order of mass, and the largest mass whose mantle
+#: the default melting model covers at every core fraction (22.07 M_E coreless, measured), rounded down.
+MASS_LIMITS_EARTH = (0.01, 20.0)
+#: Lowest initial temperature [K] other than 0 (the default start) of the mantle and of the core.
+MIN_INITIAL_TEMPERATURE_K = 500.0
+_COLD_START_REASON = ("below any mantle temperature of a rocky planet (Earth's ~1620 K, Herzberg et al. 2010, EPSL "
+                      "292:79); it also keeps E/(R T) of the Arrhenius law below 709, the float64 limit of exp, for "
+                      "every allowed E (a 1 K start ran with an energy-closure error of 7e-3)")
+#: Ids of the melting models (meltzone.melting.list_models(); a test keeps the two equal without importing numpy).
+MELTING_MODELS = ("peridotite-lowp", "katz2003", "whole-mantle-sg", "peridotite-mantle", "super-earth", "table")
+#: Characters refused in string values: control characters (incl. NUL), unpaired surrogates, line separators.
+_BAD_CHAR_CATEGORIES = frozenset({"Cc", "Cs", "Zl", "Zp"})
 
 
 @dataclass(frozen=True)
@@ -42,6 +57,10 @@ class Key:
     hi_open: bool = False
     choices: tuple[str, ...] | None = None
     source: str = ""
+    #: A value outside [lo, hi] that is allowed with a special meaning (e.g. 0 = "molten start"), described in doc.
+    special: float | None = None
+    #: Longest allowed string (string keys).
+    max_len: int | None = None
 
     @property
     def kind(self) -> type:
@@ -51,30 +70,42 @@ class Key:
         if self.choices is not None:
             return "one of " + ", ".join(repr(c) for c in self.choices)
         if self.kind is str:
-            return "a string"
+            return f"a string of at most {self.max_len} characters without control characters"
         parts = []
         if self.lo is not None:
             parts.append(f"{'>' if self.lo_open else '>='} {self.lo:g}")
         if self.hi is not None:
             parts.append(f"{'<' if self.hi_open else '<='} {self.hi:g}")
         what = "an integer" if self.kind is int else "a number"
-        return what + (" " + " and ".join(parts) if parts else "")
+        text = what + (" " + " and ".join(parts) if parts else "")
+        return text if self.special is None else f"{self.special:g} or {text}"
 
 
 SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
     "planet": {
-        "name": Key("unnamed planet", "", "label used in reports and files"),
-        "mass_earth": Key(1.0, "Earth masses", "planet mass (calibrated range 0.5-15)", lo=0.0, lo_open=True,
-                          hi=100.0),
+        "name": Key("unnamed planet", "", "label used in reports and files", max_len=200,
+            source="this model's choice (a label; stored as an HDF5 string attribute)"),
+        "mass_earth": Key(1.0, "Earth masses", "planet mass (calibrated range 0.5-15; a warning outside it)",
+                          lo=MASS_LIMITS_EARTH[0], hi=MASS_LIMITS_EARTH[1],
+            source="limits: 0.01 ~ the Moon (0.0123 M_E), smaller bodies are not planets with a convecting mantle; "
+                   "20: the default melting model (0-5000 GPa) covers the mantle of every core fraction up to "
+                   "22.07 M_E (coreless; 28.4 M_E at core fraction 0.325), measured with this interior solver"),
         "core_mass_fraction": Key(0.325, "1", "mass fraction of the iron-alloy core", lo=0.0, hi=1.0,
-                                  hi_open=True),
+                                  hi_open=True,
+            source="limits: 0 = coreless, < 1 = some mantle (tested to 0.8, a warning above it)"),
     },
     "interior": {
-        "mantle_nodes": Key(256, "1", "radial nodes in the mantle before refinement", lo=32, hi=8192),
-        "core_nodes": Key(64, "1", "radial nodes in the core", lo=8, hi=2048),
+        "mantle_nodes": Key(256, "1", "radial nodes in the mantle before refinement", lo=32, hi=8192,
+            source="numerical setting; limits: this model's choice (8192 bounds the memory of the history, nodes x "
+                   "steps)"),
+        "core_nodes": Key(64, "1", "radial nodes in the core", lo=8, hi=2048,
+            source="numerical setting; limits: this model's choice"),
         "integration_steps": Key(1000, "1", "RK4 steps of the structure integration across the radius",
-                                 lo=200, hi=200000),
-        "surface_pressure_pa": Key(1.0e5, "Pa", "pressure at the solid surface", lo=0.0, hi=1.0e10),
+                                 lo=200, hi=200000,
+            source="numerical setting; limits: this model's choice (200000 bounds the solve time)"),
+        "surface_pressure_pa": Key(1.0e5, "Pa", "pressure at the solid surface", lo=0.0, hi=1.0e10,
+            source="Earth's 1 bar (common practice); limit: 10 GPa, ~1000x Venus's 9.2 MPa, the base of any "
+                   "atmosphere a rocky planet keeps"),
         "reference_potential_temperature_k": Key(1600.0, "K",
                                                  "potential temperature of the reference adiabat on which "
                                                  "mantle phases are chosen", lo=300.0, hi=5000.0,
@@ -86,12 +117,19 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
             source="common practice (Earth's mantle Mg# ~0.89-0.90)"),
     },
     "melting": {
-        "model": Key("whole-mantle-sg", "", "mantle solidus/liquidus model id (see `meltzone curves`)"),
-        "table_file": Key("", "", "CSV table for model 'table' (pressure, solidus, liquidus with units header)"),
+        "model": Key("whole-mantle-sg", "", "mantle solidus/liquidus model id (see `meltzone curves`)",
+                      choices=MELTING_MODELS,
+            source="Monteux, Andrault & Samuel 2016, EPSL 448:140 (see `meltzone curves whole-mantle-sg`)"),
+        "table_file": Key("", "", "CSV table for melting.model = 'table' (pressure, solidus, liquidus with a units "
+                          "header); only with that model", max_len=4096,
+            source="limit: 4096 characters, the usual longest path (PATH_MAX on Linux)"),
         "melt_fraction_law": Key("linear", "", "melt fraction between solidus and liquidus",
-                                 choices=("linear", "katz2003")),
+                                 choices=("linear", "katz2003"),
+            source="linear: common practice; katz2003: Katz, Spiegelman & Langmuir 2003, G3 4:1073"),
         "water_wt_percent": Key(0.0, "wt%", "bulk mantle water content lowering the solidus (Katz et al. 2003)",
-                                lo=0.0, hi=5.0),
+                                lo=0.0, hi=5.0,
+            source="dry mantle by default; limit: 5 wt%, beyond the water contents of the Katz et al. 2003, "
+                   "G3 4:1073 fit (<~1-2 wt% of melt-bearing peridotite, from memory)"),
         "core_melting_depression_k": Key(700.0, "K", "lowering of the iron melting curve by light elements",
                                          lo=0.0, hi=3000.0,
                                          source="~700 K for Earth's core, Alfe et al. 2002, EPSL 195:91 (from memory)"),
@@ -100,18 +138,22 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
         "scheme": Key("boundary-layer", "", "evolution scheme: one potential temperature with thermal boundary "
                       "layers (parameterized convection)", choices=("boundary-layer",),
             source="Stevenson, Spohn & Schubert 1983, Icarus 54:466 (boundary-layer theory)"),
-        "regime": Key("mobile-lid", "", "solid-state convection regime", choices=("mobile-lid", "stagnant-lid")),
+        "regime": Key("mobile-lid", "", "solid-state convection regime", choices=("mobile-lid", "stagnant-lid"),
+            source="Stevenson, Spohn & Schubert 1983 (mobile lid); Solomatov & Moresi 2000 (stagnant lid)"),
         "viscosity_prefactor_pa_s": Key(6.127e10, "Pa s", "Arrhenius prefactor A in A exp[(E + P V)/(R T)]",
-                                        lo=0.0, lo_open=True,
-            source='Tosi et al. 2017, A&A 605:A71, Table 1'),
+                                        lo=1.0e7, hi=1.0e15,
+            source="Tosi et al. 2017, A&A 605:A71, Table 1; limits: 3-4 orders of magnitude around the published "
+                   "6.1e10 (Tosi 2017, E 335 kJ/mol) and 7e11 Pa s (Nakagawa 2020, PEPS 7:57, E 300 kJ/mol), i.e. "
+                   "~1e17-1e26 Pa s at 1600 K and E 335 kJ/mol"),
         "activation_energy_j_mol": Key(3.35e5, "J/mol", "activation energy E", lo=0.0, hi=1.0e6,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
         "activation_volume_m3_mol": Key(4.0e-6, "m^3/mol", "activation volume V0 at zero pressure", lo=0.0,
                                         hi=3.0e-5,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
         "activation_volume_decay_pa": Key(2.0e11, "Pa", "pressure scale over which the activation volume "
-                                          "decays, V(P) = V0 exp(-P / P_d); 0 keeps V constant", lo=0.0,
-            source="this model's choice (see evolution.kernel.activation_enthalpy)"),
+                                          "decays, V(P) = V0 exp(-P / P_d); 0 keeps V constant", lo=0.0, hi=1.0e13,
+            source="this model's choice (see evolution.kernel.activation_enthalpy); limit: 10 TPa, twice the "
+                   "deepest pressure the melting models evaluate (5 TPa), beyond which V(P) ~ V0 as with 0"),
         "critical_rayleigh": Key(450.0, "1", "critical Rayleigh number", lo=1.0, hi=1.0e5,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
         "beta": Key(1.0 / 3.0, "1", "exponent of the solid mantle's Nusselt-Rayleigh scaling "
@@ -171,60 +213,155 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
         "equilibrium_temperature_k": Key(255.0, "K", "radiative equilibrium temperature set by the star",
                                          lo=0.0, hi=3000.0,
             source="Earth's radiative equilibrium temperature (common practice)"),
-        "atmosphere": Key("none", "", "surface boundary", choices=("none", "grey")),
-        "water_inventory_kg": Key(0.0, "kg", "total H2O of mantle + atmosphere (grey atmosphere)", lo=0.0),
-        "co2_inventory_kg": Key(0.0, "kg", "total CO2 of mantle + atmosphere (grey atmosphere)", lo=0.0),
+        "atmosphere": Key("none", "", "surface boundary", choices=("none", "grey"),
+            source="none: a bare radiating surface; grey: Abe & Matsui 1985 (from memory)"),
+        "water_inventory_kg": Key(0.0, "kg", "total H2O of mantle + atmosphere (grey atmosphere)", lo=0.0,
+                                  hi=1.0e24,
+            source="limit: ~700 Earth oceans (1.4e21 kg each, common practice), ~1.7 wt% of the mantle of a 15 M_E "
+                   "planet (6e25 kg); more water makes a water world, which this rocky-mantle model does not "
+                   "describe"),
+        "co2_inventory_kg": Key(0.0, "kg", "total CO2 of mantle + atmosphere (grey atmosphere)", lo=0.0, hi=1.0e23,
+            source="limit: ~200x the CO2 of Venus's atmosphere (4.8e20 kg, from memory), ~0.2 wt% of the mantle of "
+                   "a 15 M_E planet"),
     },
     "initial": {
         "upper_temperature_k": Key(0.0, "K", "initial upper-mantle potential temperature; 0 = fully molten "
-                                   "start (50 K above the liquidus at every depth)", lo=0.0, hi=20000.0),
+                                   "start (50 K above the liquidus at every depth); otherwise at least "
+                                   "surface.equilibrium_temperature_k", lo=MIN_INITIAL_TEMPERATURE_K, hi=20000.0,
+                                   special=0.0,
+            source=f"limits: {MIN_INITIAL_TEMPERATURE_K:g} K, " + _COLD_START_REASON + "; 20000 K: this model's "
+                   "choice, ten times the liquidus at the surface (~2000 K)"),
         "core_temperature_k": Key(0.0, "K", "initial temperature at the top of the core; 0 = the mantle adiabat "
-                                  "at the CMB plus initial_cmb_jump_k", lo=0.0, hi=30000.0),
+                                  "at the CMB plus initial_cmb_jump_k", lo=MIN_INITIAL_TEMPERATURE_K, hi=30000.0,
+                                  special=0.0,
+            source=f"limits: {MIN_INITIAL_TEMPERATURE_K:g} K, " + _COLD_START_REASON + "; 30000 K: above the iron "
+                   "melting curve at any CMB pressure of an allowed planet (27540 K at 5 TPa, this code)"),
         "initial_cmb_jump_k": Key(200.0, "K", "initial excess of the core over the mantle adiabat at the CMB "
                                   "(used when core_temperature_k = 0)", lo=0.0, hi=10000.0,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
     },
     "run": {
-        "end_time_gyr": Key(10.0, "Gyr", "model time at which the run stops", lo=0.0, lo_open=True, hi=100.0),
-        "rtol": Key(1.0e-7, "1", "relative tolerance of the time integrator", lo=1.0e-12, hi=1.0e-2),
+        "end_time_gyr": Key(10.0, "Gyr", "model time at which the run stops", lo=0.0, lo_open=True, hi=100.0,
+            source="limit: 100 Gyr, ~7x the age of the Universe (13.8 Gyr)"),
+        "rtol": Key(1.0e-7, "1", "relative tolerance of the time integrator", lo=1.0e-12, hi=1.0e-2,
+            source="numerical setting; limits: 1e-12 ~ 1e4 float64 epsilons, 1e-2 the loosest useful"),
         "atol_k": Key(1.0e-7, "K", "absolute tolerance of the time integrator, as the heat of this temperature "
-                      "change of the whole mantle or core (the lid's: atol_k x 1 km/K)", lo=1.0e-12, hi=10.0),
+                      "change of the whole mantle or core (the lid's: atol_k x 1 km/K)", lo=1.0e-12, hi=10.0,
+            source="numerical setting; limit: 10 K, the default largest temperature step"),
         "max_temperature_step_k": Key(10.0, "K", "largest change of either temperature in one step",
-                                      lo=0.01, hi=500.0),
-        "max_steps": Key(200000, "1", "upper bound on accepted steps", lo=100, hi=10000000),
-        "max_step_myr": Key(20.0, "Myr", "largest time step", lo=1e-6, hi=1000.0),
+                                      lo=0.01, hi=500.0,
+            source="numerical setting; limits: this model's choice"),
+        "max_steps": Key(200000, "1", "upper bound on accepted steps", lo=100, hi=10000000,
+            source="numerical setting; limit: 1e7 steps bounds the recorded history's memory"),
+        "max_step_myr": Key(20.0, "Myr", "largest time step", lo=1e-6, hi=1000.0,
+            source="numerical setting; limits: 1 yr to 1 Gyr"),
     },
 })
 
 
+def _show(value: Any, limit: int = 60) -> str:
+    """repr of a value for an error message: one line (repr escapes control characters), at most ``limit`` chars."""
+    try:
+        text = repr(value)
+    except ValueError:  # an integer of more than 4300 digits
+        return "an integer of more than 4300 digits"
+    return text if len(text) <= limit else text[:limit - 3] + "..."
+
+
+def _show_name(name: Any, limit: int = 40) -> str:
+    """A key or section name for a message: control characters escaped, at most ``limit`` chars."""
+    text = repr(str(name))[1:-1]
+    return text if len(text) <= limit else text[:limit - 3] + "..."
+
+
+def _kind_name(value: Any) -> str:
+    """What a TOML value is, in TOML's words."""
+    if isinstance(value, bool):
+        return "a boolean"
+    if isinstance(value, str):
+        return "a string"
+    if isinstance(value, (list, tuple)):
+        return "an array"
+    if isinstance(value, Mapping):
+        return "a table"
+    if isinstance(value, numbers.Integral):
+        return "an integer"
+    if isinstance(value, numbers.Real):
+        return "a number"
+    return "a " + type(value).__name__
+
+
+def _check_text(where: str, key: Key, value: str) -> str:
+    """Refuse control characters (NUL included), unpaired surrogates, line separators and over-long strings."""
+    for i, ch in enumerate(value):
+        if unicodedata.category(ch) in _BAD_CHAR_CATEGORIES:
+            raise ConfigError(f"{where} = {_show(value)}: character {i + 1} ({ch!r}) is a control character or "
+                              f"unpaired surrogate; must be {key.allowed()}")
+    if key.max_len is not None and len(value) > key.max_len:
+        raise ConfigError(f"{where} = {_show(value)}: {len(value)} characters; must be {key.allowed()}")
+    return value
+
+
 def _check_value(section: str, name: str, key: Key, value: Any) -> Any:
+    """The value of ``section.name`` checked against its Key (type, finiteness, range); ConfigError naming it."""
     where = f"{section}.{name}"
+    unit = f" [{key.unit}]" if key.unit and key.unit != "1" else ""
     if key.kind is str:
         if not isinstance(value, str):
-            raise ConfigError(f"{where} = {value!r}: must be {key.allowed()}")
+            raise ConfigError(f"{where} = {_show(value)}: must be {key.allowed()}, not {_kind_name(value)}")
         if key.choices is not None and value not in key.choices:
-            raise ConfigError(f"{where} = {value!r}: must be {key.allowed()}")
-        return value
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise ConfigError(f"{where} = {value!r}: must be {key.allowed()}" + (f" [{key.unit}]" if key.unit else ""))
+            close = difflib.get_close_matches(value, key.choices, n=1)
+            hint = f" (did you mean {close[0]!r}?)" if close else ""
+            raise ConfigError(f"{where} = {_show(value)}: must be {key.allowed()}{hint}")
+        return _check_text(where, key, value)
+    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+        raise ConfigError(f"{where} = {_show(value)}: must be {key.allowed()}{unit}, not {_kind_name(value)}")
     if key.kind is int:
-        if isinstance(value, float):
+        if not isinstance(value, numbers.Integral):
+            value = float(value)
             if not value.is_integer():
-                raise ConfigError(f"{where} = {value!r}: must be {key.allowed()}")
-            value = int(value)
+                raise ConfigError(f"{where} = {_show(value)}: must be {key.allowed()}")
+        value = int(value)
     else:
-        value = float(value)
-    if not math.isfinite(value):
-        raise ConfigError(f"{where} = {value!r}: must be a finite number ({key.allowed()})")
+        try:
+            value = float(value)
+        except OverflowError:
+            raise ConfigError(f"{where} = {_show(value)}: must be {key.allowed()}{unit}") from None
+    if isinstance(value, float) and not math.isfinite(value):
+        raise ConfigError(f"{where} = {value!r}: must be a finite number ({key.allowed()}{unit})")
+    if key.special is not None and value == key.special:
+        return value
     bad = False
     if key.lo is not None:
         bad |= value <= key.lo if key.lo_open else value < key.lo
     if key.hi is not None:
         bad |= value >= key.hi if key.hi_open else value > key.hi
     if bad:
-        unit = f" [{key.unit}]" if key.unit and key.unit != "1" else ""
-        raise ConfigError(f"{where} = {value!r}: must be {key.allowed()}{unit}")
+        raise ConfigError(f"{where} = {_show(value)}: must be {key.allowed()}{unit}")
     return value
+
+
+def _check_together(values: Mapping[str, Mapping[str, Any]]) -> None:
+    """Checks that involve more than one key (each message names every key involved)."""
+    cv = values["convection"]
+    if cv["critical_melt_fraction"] + cv["rheology_blend_width"] >= 1.0:
+        raise ConfigError(f"convection.critical_melt_fraction + convection.rheology_blend_width = "
+                          f"{cv['critical_melt_fraction']:g} + {cv['rheology_blend_width']:g}: must be < 1, so "
+                          "that the blend to the magma-ocean law ends before the melt fraction reaches 1")
+    melt = values["melting"]
+    if melt["model"] == "table" and not melt["table_file"]:
+        raise ConfigError("melting.model = 'table' needs melting.table_file (a CSV file of pressure, solidus and "
+                          "liquidus)")
+    if melt["model"] != "table" and melt["table_file"]:
+        raise ConfigError(f"melting.table_file = {_show(melt['table_file'])} is only read with melting.model = "
+                          f"'table', not {melt['model']!r}: set melting.model = \"table\" or remove the table file")
+    t_eq = values["surface"]["equilibrium_temperature_k"]
+    for name in ("upper_temperature_k", "core_temperature_k"):
+        t = values["initial"][name]
+        if t != 0.0 and t < t_eq:
+            raise ConfigError(f"initial.{name} = {t:g} K is below surface.equilibrium_temperature_k = {t_eq:g} K: "
+                              "a planet's interior starts at least as hot as its surface (or 0 for the default "
+                              "start)")
 
 
 class Section:
@@ -262,6 +399,37 @@ def _flat_index() -> dict[str, str]:
 
 
 _KEY_SECTION = _flat_index()
+#: Every key as "section.key" (for suggestions).
+_ALL_KEYS = tuple(f"{sec}.{k}" for sec, keys in SCHEMA.items() for k in keys)
+
+
+def _split_key(name: str) -> tuple[str, str]:
+    """"section.key" or a bare key (looked up in its section) -> (section, key); ("", name) when unknown."""
+    if "." in name:
+        sec, _, key = name.partition(".")
+        return sec, key
+    return _KEY_SECTION.get(name, ""), name
+
+
+def _suggest(word: Any, candidates) -> str:
+    """' (did you mean X?)' with the nearest candidate by difflib, or ''."""
+    close = difflib.get_close_matches(str(word), list(candidates), n=1, cutoff=0.6)
+    return f" (did you mean {close[0]}?)" if close else ""
+
+
+def _unknown_key(sec: str, key: Any) -> str:
+    home = _KEY_SECTION.get(key) if isinstance(key, str) else None
+    if home is not None:
+        return f"unknown key {sec}.{_show_name(key)}: {key} belongs to [{home}] ({home}.{key})"
+    hint = _suggest(key, SCHEMA[sec]) or _suggest(f"{sec}.{key}", _ALL_KEYS)
+    return f"unknown key {sec}.{_show_name(key)}" + (hint or f"; keys of [{sec}]: {', '.join(SCHEMA[sec])}")
+
+
+def _unknown_section(sec: Any, content: Any) -> str:
+    if not isinstance(content, Mapping) and isinstance(sec, str) and sec in _KEY_SECTION:
+        return (f"{sec} = {_show(content)} stands outside any section: write it under [{_KEY_SECTION[sec]}] "
+                f"({_KEY_SECTION[sec]}.{sec})")
+    return f"unknown section [{_show_name(sec)}]{_suggest(sec, SCHEMA)}; known sections: {', '.join(SCHEMA)}"
 
 
 class PlanetSpec:
@@ -278,31 +446,28 @@ class PlanetSpec:
 
     def __init__(self, data: Mapping[str, Any] | None = None, /, **flat: Any):
         values = {sec: {k: key.default for k, key in keys.items()} for sec, keys in SCHEMA.items()}
+        if data is not None and not isinstance(data, Mapping):
+            raise ConfigError(f"a config must be a table of sections, not {_kind_name(data)}")
         for sec, content in (data or {}).items():
             if sec not in SCHEMA:
-                raise ConfigError(f"unknown section [{sec}]; known sections: {', '.join(SCHEMA)}")
+                raise ConfigError(_unknown_section(sec, content))
             if not isinstance(content, Mapping):
-                raise ConfigError(f"[{sec}] must be a table of keys, got {content!r}")
+                raise ConfigError(f"[{sec}] must be a table of keys, not {_kind_name(content)} ({sec} = "
+                                  f"{_show(content)})")
             for k, v in content.items():
                 if k not in SCHEMA[sec]:
-                    raise ConfigError(f"unknown key {sec}.{k}; keys of [{sec}]: {', '.join(SCHEMA[sec])}")
+                    raise ConfigError(_unknown_key(sec, k))
                 values[sec][k] = _check_value(sec, k, SCHEMA[sec][k], v)
         for k, v in flat.items():
-            if "." in k:
-                sec, _, name = k.partition(".")
-            else:
-                sec, name = _KEY_SECTION.get(k, ""), k
+            sec, name = _split_key(k)
             if sec not in SCHEMA or name not in SCHEMA[sec]:
-                raise ConfigError(f"unknown key {k!r}; see `meltzone config --example` for every key")
+                raise ConfigError(_unknown_key(sec, name) if sec in SCHEMA else
+                                  f"unknown key {_show(k)}{_suggest(k, _ALL_KEYS)}; see `meltzone config --example`")
             values[sec][name] = _check_value(sec, name, SCHEMA[sec][name], v)
+        _check_together(values)
         self._values = values
         for sec in SCHEMA:
             object.__setattr__(self, sec, Section(sec, values[sec]))
-        cv = values["convection"]
-        if cv["critical_melt_fraction"] + cv["rheology_blend_width"] >= 1.0:
-            raise ConfigError(f"convection.critical_melt_fraction + convection.rheology_blend_width = "
-                              f"{cv['critical_melt_fraction']:g} + {cv['rheology_blend_width']:g}: must be < 1, so "
-                              "that the blend to the magma-ocean law ends before the melt fraction reaches 1")
         cmf = values["planet"]["core_mass_fraction"]
         if cmf > TESTED_CORE_FRACTION_MAX:
             warnings.warn(f"planet.core_mass_fraction = {cmf:g} is above {TESTED_CORE_FRACTION_MAX:g}, the largest "
@@ -316,16 +481,17 @@ class PlanetSpec:
     # ------------------------------------------------------------------ I/O
     @classmethod
     def from_toml(cls, path: str | Path, overrides: list[str] | tuple[str, ...] = ()) -> "PlanetSpec":
-        """Read a TOML file; ``overrides`` are ``section.key=value`` strings (TOML values)."""
-        path = Path(path)
-        try:
-            text = path.read_text(encoding="utf-8")
-        except OSError as exc:
-            raise ConfigError(f"cannot read config file {str(path)!r}: {exc.strerror or exc}") from None
-        try:
-            data = tomllib.loads(text)
-        except tomllib.TOMLDecodeError as exc:
-            raise ConfigError(f"config file {str(path)!r} is not valid TOML: {exc}") from None
+        """Read a TOML file; ``overrides`` are ``section.key=value`` strings (TOML values).
+
+        A file that sets no key at all gives a warning: every value is then a schema default.
+        """
+        data = read_toml(path)
+        if all(isinstance(v, Mapping) and not v for v in data.values()):  # no key, at most empty sections
+            p = SCHEMA["planet"]
+            warnings.warn(f"config file {str(path)!r} sets no key: the schema defaults are used (planet.mass_earth "
+                          f"= {p['mass_earth'].default:g} M_E, planet.core_mass_fraction = "
+                          f"{p['core_mass_fraction'].default:g}; see `meltzone config --example`)", UserWarning,
+                          stacklevel=2)
         return cls.from_mapping(data, overrides)
 
     @classmethod
@@ -356,7 +522,7 @@ class PlanetSpec:
                     unit = f" [{key.unit}]" if key.unit and key.unit != "1" else ""
                     lines.append(f"# {key.doc}{unit}; {key.allowed()}; default {_toml_value(key.default)}")
                     if key.source:
-                        lines.append(f"#   default from: {key.source}")
+                        lines.append(f"#   source: {key.source}")
                 lines.append(f"{name} = {_toml_value(self._values[sec][name])}")
             lines.append("")
         return "\n".join(lines)
@@ -367,6 +533,27 @@ class PlanetSpec:
     def __repr__(self) -> str:
         p = self._values["planet"]
         return f"PlanetSpec({p['name']!r}, mass_earth={p['mass_earth']:g}, core_mass_fraction={p['core_mass_fraction']:g})"
+
+
+def read_toml(path: str | Path) -> dict[str, Any]:
+    """The parsed content of a TOML config file; ConfigError naming the file when it cannot be read (missing,
+    a folder, no permission), is not UTF-8 text or is not valid TOML (with line and column)."""
+    path = Path(path)
+    where = f"config file {str(path)!r}"
+    try:
+        raw = path.read_bytes()
+    except OSError as exc:
+        raise ConfigError(f"cannot read {where}: {exc.strerror or exc}") from None
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        kind = " (an HDF5 file?)" if raw.startswith(b"\x89HDF") else ""
+        raise ConfigError(f"{where} is not a UTF-8 text file{kind}: byte {exc.start + 1} is 0x{raw[exc.start]:02x}; "
+                          "a config is TOML text (see `meltzone config --example`)") from None
+    try:
+        return tomllib.loads(text)
+    except (tomllib.TOMLDecodeError, ValueError) as exc:  # ValueError: an integer of more than 4300 digits
+        raise ConfigError(f"{where} is not valid TOML: {' '.join(str(exc).split())}") from None
 
 
 def _toml_value(v: Any) -> str:
@@ -381,25 +568,31 @@ def _toml_value(v: Any) -> str:
 
 def parse_override(item: str) -> tuple[str, str, Any]:
     """Parse ``section.key=value`` (value in TOML syntax; bare words are taken as strings)."""
+    shown = _show(item)
     if "=" not in item:
-        raise ConfigError(f"--set {item!r}: expected section.key=value")
+        raise ConfigError(f"--set {shown}: expected section.key=value")
     lhs, _, rhs = item.partition("=")
     lhs = lhs.strip()
     rhs = rhs.strip()
-    if "." in lhs:
-        sec, _, name = lhs.partition(".")
-    else:
-        sec, name = _KEY_SECTION.get(lhs, ""), lhs
+    sec, name = _split_key(lhs)
     if sec not in SCHEMA or name not in SCHEMA[sec]:
-        raise ConfigError(f"--set {item!r}: unknown key {lhs!r}; see `meltzone config --example`")
+        hint = _unknown_key(sec, name) if sec in SCHEMA else f"unknown key {_show(lhs)}{_suggest(lhs, _ALL_KEYS)}"
+        raise ConfigError(f"--set {shown}: {hint}; see `meltzone config --example`")
+    key = SCHEMA[sec][name]
+    if any(unicodedata.category(ch) in _BAD_CHAR_CATEGORIES for ch in rhs):
+        raise ConfigError(f"--set {shown}: {sec}.{name} must be {key.allowed()}; the value holds a control "
+                          "character or unpaired surrogate")
     try:
-        value = tomllib.loads(f"v = {rhs}")["v"]
-    except tomllib.TOMLDecodeError:
-        if SCHEMA[sec][name].kind is str:
+        parsed = tomllib.loads(f"v = {rhs}")
+        if set(parsed) != {"v"}:
+            raise ValueError("more than one value")
+        value = parsed["v"]
+    except (tomllib.TOMLDecodeError, ValueError):  # ValueError: an integer of more than 4300 digits
+        if key.kind is str:
             value = rhs
         else:
-            raise ConfigError(f"--set {item!r}: {rhs!r} is not {SCHEMA[sec][name].allowed()}") from None
-    if SCHEMA[sec][name].kind is str and not isinstance(value, str):
+            raise ConfigError(f"--set {shown}: {sec}.{name} = {_show(rhs)} is not {key.allowed()}") from None
+    if key.kind is str and not isinstance(value, str):
         value = rhs  # a string key takes the text as written (e.g. planet.name=123)
     return sec, name, value
 

@@ -36,9 +36,9 @@ from scipy.optimize import brentq
 
 from . import phases
 from .config import PlanetSpec, as_spec
-from .constants import EARTH_MASS, EARTH_RADIUS, G
+from .constants import EARTH_MASS, EARTH_RADIUS, GPA, G
 from .eos import IRON, Material, mantle_materials
-from .errors import ConvergenceError
+from .errors import ConfigError, ConvergenceError
 
 #: Relative tolerance on the planet mass at convergence.
 MASS_TOLERANCE = 1e-10
@@ -302,13 +302,18 @@ def _nodes_from_path(path, mass, core_mass, p_surface, t_ref, mantle_nodes, core
     )
 
 
-def build_interior(spec: PlanetSpec | dict | str | None = None, **kwargs) -> Interior:
-    """Interior of the planet described by ``spec`` (PlanetSpec, mapping, TOML path or flat kwargs)."""
+def build_interior(spec: PlanetSpec | dict | str | None = None, *, check_melting: bool = True,
+                   **kwargs) -> Interior:
+    """Interior of the planet described by ``spec`` (PlanetSpec, mapping, TOML path or flat kwargs).
+
+    With ``check_melting`` (the default) the spec's melting model must cover every mantle pressure
+    (:func:`check_melting_range`), so that an evolution of this planet can evaluate its curves.
+    """
     spec = as_spec(spec, **kwargs)
     mass = spec.planet.mass_earth * EARTH_MASS
     core_material = IRON.scaled_density(1.0 - spec.interior.core_density_deficit,
                                         f"{100 * spec.interior.core_density_deficit:g}% light-element deficit")
-    return solve_structure(
+    interior = solve_structure(
         mass, spec.planet.core_mass_fraction * mass,
         surface_pressure=spec.interior.surface_pressure_pa,
         reference_temperature=spec.interior.reference_potential_temperature_k,
@@ -318,3 +323,33 @@ def build_interior(spec: PlanetSpec | dict | str | None = None, **kwargs) -> Int
         mantle_nodes=spec.interior.mantle_nodes,
         core_nodes=spec.interior.core_nodes,
     )
+    if check_melting:
+        check_melting_range(spec, interior)
+    return interior
+
+
+def check_melting_range(spec: PlanetSpec, interior: Interior) -> None:
+    """ConfigError naming planet.mass_earth, melting.model (and the table file or surface pressure where they
+    matter) when the mantle's pressures leave the evaluable range of the spec's melting model."""
+    from .config import MASS_LIMITS_EARTH
+    from .melting import TABLE_MODEL_ID, get_model
+
+    model = get_model(spec.melting.model, spec.melting.table_file or None)
+    p = interior.P[interior.mantle]
+    if not len(p):
+        return
+    p_lo, p_hi = float(p.min()), float(p.max())
+    slack = 1e-9 * max(model.max_pressure_pa, 1.0)
+    if model.min_pressure_pa - slack <= p_lo and p_hi <= model.max_pressure_pa + slack:
+        return
+    name = f"melting.model = {model.id!r}" + (f" (melting.table_file = {spec.melting.table_file!r})"
+                                              if model.id == TABLE_MODEL_ID else "")
+    span = (f"the mantle spans {p_lo / GPA:.4g}-{p_hi / GPA:.4g} GPa, {name} covers "
+            f"{model.min_pressure_pa / GPA:g}-{model.max_pressure_pa / GPA:g} GPa")
+    if p_hi > model.max_pressure_pa + slack:
+        raise ConfigError(f"planet.mass_earth = {spec.planet.mass_earth:g} (planet.core_mass_fraction = "
+                          f"{spec.planet.core_mass_fraction:g}): {span}; lower planet.mass_earth (the default model "
+                          f"covers up to {MASS_LIMITS_EARTH[1]:g} M_E at any core fraction) or choose another "
+                          "melting.model (see `meltzone curves`)")
+    raise ConfigError(f"interior.surface_pressure_pa = {spec.interior.surface_pressure_pa:g}: {span}; raise the "
+                      "surface pressure or choose a melting model that starts lower")

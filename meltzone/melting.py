@@ -421,6 +421,12 @@ def get_model(model_id: str, table_file: str | Path | None = None) -> MeltingMod
 TABLE_PRESSURE_COLUMNS = {"pressure_pa": 1.0, "pressure_gpa": GPA}
 #: Required temperature columns of a table (K).
 TABLE_TEMPERATURE_COLUMNS = ("solidus_k", "liquidus_k")
+#: Temperatures [K] a table may hold: 100 K, below any silicate solidus (water ice melts at 273 K), to 30000 K,
+#: above the liquidus of every built-in model at 5 TPa (26500-28500 K, this module).
+TABLE_TEMPERATURE_RANGE_K = (100.0, 30000.0)
+#: Highest pressure [Pa] a table may hold: 10 TPa, twice the deepest mantle pressure of an allowed planet
+#: (4.4 TPa at 20 M_E, coreless; config.MASS_LIMITS_EARTH).
+TABLE_MAX_PRESSURE_PA = 10.0e12
 
 
 def load_table(path: str | Path) -> MeltingModel:
@@ -429,8 +435,9 @@ def load_table(path: str | Path) -> MeltingModel:
     Format: lines starting with ``#`` and blank lines are skipped; the first other line is
     the header, naming (in any order, case-insensitive) one pressure column, ``pressure_pa``
     or ``pressure_gpa``, and the two temperature columns ``solidus_k`` and ``liquidus_k``;
-    no other columns. At least two rows; pressures finite, >= 0 and strictly rising;
-    solidus below liquidus on every row. Values are linearly interpolated in pressure; the
+    no other columns. At least two rows; pressures finite, 0-10 TPa and strictly rising;
+    temperatures 100-30000 K (:data:`TABLE_TEMPERATURE_RANGE_K`); solidus below liquidus on
+    every row. Values are linearly interpolated in pressure; the
     model refuses pressures outside the table (no extrapolation), so its validated range is
     the table's range.
 
@@ -479,15 +486,19 @@ def load_table(path: str | Path) -> MeltingModel:
     table = np.array([v for _, v in data], dtype=float)
     p_pa = table[:, 0] * TABLE_PRESSURE_COLUMNS[pressure_cols[0]]
     sol, liq = table[:, 1], table[:, 2]
-    if p_pa[0] < 0.0:
-        raise ModelError(f"{where}, line {lines[0]}: negative pressure")
-    for i in range(1, len(p_pa)):
-        if p_pa[i] <= p_pa[i - 1]:
-            raise ModelError(f"{where}, line {lines[i]}: pressure must rise strictly from row to row")
+    p_max, (t_lo, t_hi) = TABLE_MAX_PRESSURE_PA, TABLE_TEMPERATURE_RANGE_K
     for i in range(len(p_pa)):
-        if sol[i] <= 0.0 or sol[i] >= liq[i]:
-            raise ModelError(f"{where}, line {lines[i]}: solidus ({sol[i]:g} K) must be positive and below the "
-                             f"liquidus ({liq[i]:g} K)")
+        row = f"{where}, line {lines[i]}"
+        if not 0.0 <= p_pa[i] <= p_max:
+            what = "negative pressure" if p_pa[i] < 0.0 else "pressure"
+            raise ModelError(f"{row}: {what} {p_pa[i] / GPA:g} GPa; must be >= 0 and <= {p_max / GPA:g} GPa")
+        if i and p_pa[i] <= p_pa[i - 1]:
+            raise ModelError(f"{row}: pressure must rise strictly from row to row")
+        for name, t in (("solidus", sol[i]), ("liquidus", liq[i])):
+            if not t_lo <= t <= t_hi:
+                raise ModelError(f"{row}: {name} {t:g} K must be >= {t_lo:g} K and <= {t_hi:g} K")
+        if sol[i] >= liq[i]:
+            raise ModelError(f"{row}: solidus ({sol[i]:g} K) must be below the liquidus ({liq[i]:g} K)")
     p_gpa = p_pa / GPA
     return MeltingModel(
         TABLE_MODEL_ID, f"user table {str(path)}", float(p_pa[0]), float(p_pa[-1]), float(p_pa[-1]),

@@ -144,7 +144,7 @@ def test_plot_command(ran, tmp_path, figure, suffix, magic):
 def _error_line(res):
     assert res.exit_code == 2, res.output
     assert "Traceback" not in res.output and not isinstance(res.exception, (ValueError, OSError, KeyError))
-    errors = [line for line in res.output.splitlines() if line.startswith("Error:")]
+    errors = [line for line in res.output.splitlines() if line.startswith("error:")]
     assert len(errors) == 1
     return errors[0]
 
