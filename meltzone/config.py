@@ -197,7 +197,9 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
 })
 
 
-def _check_value(section: str, name: str, key: Key, value: Any) -> Any:
+def check_value(section: str, name: str, key: Key, value: Any) -> Any:
+    """``value`` of key ``section.name`` checked against its schema entry ``key`` (ints and floats coerced);
+    ConfigError naming the key otherwise."""
     where = f"{section}.{name}"
     if key.kind is str:
         if not isinstance(value, str):
@@ -261,7 +263,8 @@ def _flat_index() -> dict[str, str]:
     return index
 
 
-_KEY_SECTION = _flat_index()
+#: Flat key name -> its section (keys are unique across sections).
+KEY_SECTION = _flat_index()
 
 
 class PlanetSpec:
@@ -286,15 +289,15 @@ class PlanetSpec:
             for k, v in content.items():
                 if k not in SCHEMA[sec]:
                     raise ConfigError(f"unknown key {sec}.{k}; keys of [{sec}]: {', '.join(SCHEMA[sec])}")
-                values[sec][k] = _check_value(sec, k, SCHEMA[sec][k], v)
+                values[sec][k] = check_value(sec, k, SCHEMA[sec][k], v)
         for k, v in flat.items():
             if "." in k:
                 sec, _, name = k.partition(".")
             else:
-                sec, name = _KEY_SECTION.get(k, ""), k
+                sec, name = KEY_SECTION.get(k, ""), k
             if sec not in SCHEMA or name not in SCHEMA[sec]:
                 raise ConfigError(f"unknown key {k!r}; see `meltzone config --example` for every key")
-            values[sec][name] = _check_value(sec, name, SCHEMA[sec][name], v)
+            values[sec][name] = check_value(sec, name, SCHEMA[sec][name], v)
         self._values = values
         for sec in SCHEMA:
             object.__setattr__(self, sec, Section(sec, values[sec]))
@@ -317,16 +320,7 @@ class PlanetSpec:
     @classmethod
     def from_toml(cls, path: str | Path, overrides: list[str] | tuple[str, ...] = ()) -> "PlanetSpec":
         """Read a TOML file; ``overrides`` are ``section.key=value`` strings (TOML values)."""
-        path = Path(path)
-        try:
-            text = path.read_text(encoding="utf-8")
-        except OSError as exc:
-            raise ConfigError(f"cannot read config file {str(path)!r}: {exc.strerror or exc}") from None
-        try:
-            data = tomllib.loads(text)
-        except tomllib.TOMLDecodeError as exc:
-            raise ConfigError(f"config file {str(path)!r} is not valid TOML: {exc}") from None
-        return cls.from_mapping(data, overrides)
+        return cls.from_mapping(read_toml(path, "config file"), overrides)
 
     @classmethod
     def from_mapping(cls, data: Mapping[str, Any] | None, overrides=()) -> "PlanetSpec":
@@ -354,10 +348,10 @@ class PlanetSpec:
             for name, key in keys.items():
                 if comments:
                     unit = f" [{key.unit}]" if key.unit and key.unit != "1" else ""
-                    lines.append(f"# {key.doc}{unit}; {key.allowed()}; default {_toml_value(key.default)}")
+                    lines.append(f"# {key.doc}{unit}; {key.allowed()}; default {toml_value(key.default)}")
                     if key.source:
                         lines.append(f"#   default from: {key.source}")
-                lines.append(f"{name} = {_toml_value(self._values[sec][name])}")
+                lines.append(f"{name} = {toml_value(self._values[sec][name])}")
             lines.append("")
         return "\n".join(lines)
 
@@ -369,7 +363,22 @@ class PlanetSpec:
         return f"PlanetSpec({p['name']!r}, mass_earth={p['mass_earth']:g}, core_mass_fraction={p['core_mass_fraction']:g})"
 
 
-def _toml_value(v: Any) -> str:
+def read_toml(path: str | Path, what: str) -> dict:
+    """The tables of the TOML file at ``path``; ConfigError naming ``what`` and the file when it cannot be
+    read or is not valid TOML."""
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except OSError as exc:
+        raise ConfigError(f"cannot read {what} {str(path)!r}: {exc.strerror or exc}") from None
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise ConfigError(f"{what} {str(path)!r} is not valid TOML: {exc}") from None
+
+
+def toml_value(v: Any) -> str:
+    """One value as TOML text (strings quoted and escaped, booleans lower case, floats by repr)."""
     if isinstance(v, str):
         return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
     if isinstance(v, bool):
@@ -389,7 +398,7 @@ def parse_override(item: str) -> tuple[str, str, Any]:
     if "." in lhs:
         sec, _, name = lhs.partition(".")
     else:
-        sec, name = _KEY_SECTION.get(lhs, ""), lhs
+        sec, name = KEY_SECTION.get(lhs, ""), lhs
     if sec not in SCHEMA or name not in SCHEMA[sec]:
         raise ConfigError(f"--set {item!r}: unknown key {lhs!r}; see `meltzone config --example`")
     try:
