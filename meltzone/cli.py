@@ -459,7 +459,9 @@ def summary_command(path, as_json):
     from . import results
 
     if results.file_kind(path) == "sweep":
-        _sweep_module("print_summary").print_summary(path, as_json)
+        from .report import print_sweep_summary
+
+        print_sweep_summary(path, as_json)
         return
     result = results.load(path)
     summary = result.summary()
@@ -481,18 +483,6 @@ def layers_command(path):
                           *_note_lines(result.flags())]))
 
 
-def _sweep_module(name: str):
-    import importlib
-
-    try:
-        sweep = importlib.import_module("meltzone.sweep")
-    except ImportError as exc:
-        raise click.UsageError(f"this file is a sweep, but meltzone.sweep cannot be imported ({exc})") from None
-    if not hasattr(sweep, name):
-        raise click.UsageError(f"this file is a sweep, but meltzone.sweep has no {name}()")
-    return sweep
-
-
 @main.command("plot")
 @click.argument("path", type=click.Path(dir_okay=False))
 @click.option("--figure", default="meltmap", show_default=True, metavar="NAME",
@@ -506,12 +496,14 @@ def plot_command(path, figure, output):
     from pathlib import Path
 
     from . import results
-    from .plot import RUN_FIGURES, _figure_format, plot_run
+    from .plot import RUN_FIGURES, figure_format, plot_run
 
     out = Path(output) if output else Path(f"{Path(path).stem}-{figure}.png")
-    _figure_format(out)
+    figure_format(out)
     if results.file_kind(path) == "sweep":
-        _sweep_module("plot_sweep").plot_sweep(path, figure, out)
+        from .sweep import plot_sweep
+
+        plot_sweep(path, figure, out)
     else:
         if figure not in RUN_FIGURES:
             raise click.BadParameter(f"{figure!r} is not a run figure; choose one of {', '.join(RUN_FIGURES)}",
