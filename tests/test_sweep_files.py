@@ -211,3 +211,23 @@ def test_basal_layer_formed_follows_the_run_summary(sweep_file):
     with h5py.File(sweep_file, "r") as f:
         assert f["cases/basal_layer_formed"].attrs["long_name"] == FLAGS["basal_layer_formed"]
     assert set(METRICS) <= set(summary_dict(sweep_file)["metrics"])
+
+
+# ---------------------------------------------------------------- the package's public face
+def test_import_is_light_and_the_public_names_stay():
+    """`import meltzone.sweep` loads neither numba nor scipy, h5py or matplotlib (they come with the first
+    case, file or figure); the public names of the former module are still there, and
+    meltzone.sweep.infer_core_fraction is the interior's function."""
+    code = ("import sys, meltzone.sweep as s; print(sorted(m for m in ('numba', 'scipy', 'h5py', 'matplotlib') "
+            "if m in sys.modules))")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert done.stdout.strip() == "[]"
+    import meltzone
+    import meltzone.interior
+    import meltzone.sweep as sweep
+
+    assert sweep.infer_core_fraction is meltzone.interior.infer_core_fraction
+    assert meltzone.run_sweep is sweep.run_sweep
+    for name in ("load_spec", "read_sweep", "summary_dict", "print_summary", "plot_sweep", "binomial_estimate",
+                 "progress_path", "EXAMPLE_SPEC", "SweepIncomplete", "SweepSpec"):
+        assert name in sweep.__all__ and getattr(sweep, name) is not None, name
