@@ -540,7 +540,7 @@ def config(example):
 @click.option("--resume", is_flag=True, help="Finish an interrupted sweep: run only the cases not checkpointed.")
 @click.option("--keep-detail", is_flag=True, help="Also keep each case's full run file in OUTPUT.detail/.")
 @click.option("--checkpoint-every", type=click.IntRange(min=1), default=64, show_default=True, metavar="N",
-              help="Write a checkpoint batch after N finished cases (and at least every 5 s).")
+              help="Write a checkpoint batch after the first finished task, then after N finished cases or 5 s.")
 @click.option("--example", is_flag=True, help="Print a commented sweep spec and exit.")
 @_user_errors
 def sweep_command(spec, output, workers, dask_local, dashboard, scheduler, resume, keep_detail, checkpoint_every,
