@@ -38,11 +38,11 @@ def make_spec(n: int) -> dict:
 def bare_loops(spec) -> tuple[float, float]:
     import warnings
 
+    from meltzone import evolve
     from meltzone.config import PlanetSpec
-    from meltzone.evolution import evolve
     from meltzone.layers import summarize, track
     from meltzone.sweep import load_spec
-    from meltzone._sweep_exec import _merge
+    from meltzone.sweep.worker import _merge
 
     s = load_spec(spec)
     specs = []

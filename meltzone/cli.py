@@ -318,7 +318,9 @@ def summary_command(path, as_json):
     from . import report, results
 
     if results.file_kind(path) == "sweep":
-        _sweep_module("print_summary").print_summary(path, as_json)
+        from .report import print_sweep_summary
+
+        print_sweep_summary(path, as_json)
         return
     result = results.load(path)
     if as_json:
@@ -342,18 +344,6 @@ def layers_command(path, as_json):
         click.echo(report.layers_text(result))
 
 
-def _sweep_module(name: str):
-    import importlib
-
-    try:
-        sweep = importlib.import_module("meltzone.sweep")
-    except ImportError as exc:
-        raise click.UsageError(f"this file is a sweep, but meltzone.sweep cannot be imported ({exc})") from None
-    if not hasattr(sweep, name):
-        raise click.UsageError(f"this file is a sweep, but meltzone.sweep has no {name}()")
-    return sweep
-
-
 @main.command("plot")
 @click.argument("path", type=click.Path(dir_okay=False))
 @click.option("--figure", default="meltmap", show_default=True, metavar="NAME",
@@ -367,12 +357,14 @@ def plot_command(path, figure, output):
     from pathlib import Path
 
     from . import results
-    from .plot import RUN_FIGURES, _figure_format, plot_run
+    from .plot import RUN_FIGURES, figure_format, plot_run
 
     out = Path(output) if output else Path(f"{Path(path).stem}-{figure}.png")
-    _figure_format(out)
+    figure_format(out)
     if results.file_kind(path) == "sweep":
-        _sweep_module("plot_sweep").plot_sweep(path, figure, out)
+        from .sweep import plot_sweep
+
+        plot_sweep(path, figure, out)
     else:
         if figure not in RUN_FIGURES:
             raise click.BadParameter(f"{figure!r} is not a run figure; choose one of {', '.join(RUN_FIGURES)}",
@@ -409,7 +401,7 @@ def config(example):
 @click.option("--resume", is_flag=True, help="Finish an interrupted sweep: run only the cases not checkpointed.")
 @click.option("--keep-detail", is_flag=True, help="Also keep each case's full run file in OUTPUT.detail/.")
 @click.option("--checkpoint-every", type=click.IntRange(min=1), default=64, show_default=True, metavar="N",
-              help="Write a checkpoint batch after N finished cases (and at least every 5 s).")
+              help="Write a checkpoint batch after the first finished task, then after N finished cases or 5 s.")
 @click.option("--example", is_flag=True, help="Print a commented sweep spec and exit.")
 @_user_errors
 def sweep_command(spec, output, workers, dask_local, dashboard, scheduler, resume, keep_detail, checkpoint_every,

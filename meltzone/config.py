@@ -302,7 +302,7 @@ def _check_text(where: str, key: Key, value: str) -> str:
     return value
 
 
-def _check_value(section: str, name: str, key: Key, value: Any) -> Any:
+def check_value(section: str, name: str, key: Key, value: Any) -> Any:
     """The value of ``section.name`` checked against its Key (type, finiteness, range); ConfigError naming it."""
     where = f"{section}.{name}"
     unit = f" [{key.unit}]" if key.unit and key.unit != "1" else ""
@@ -398,7 +398,7 @@ def _flat_index() -> dict[str, str]:
     return index
 
 
-_KEY_SECTION = _flat_index()
+KEY_SECTION = _flat_index()
 #: Every key as "section.key" (for suggestions).
 _ALL_KEYS = tuple(f"{sec}.{k}" for sec, keys in SCHEMA.items() for k in keys)
 
@@ -408,7 +408,7 @@ def _split_key(name: str) -> tuple[str, str]:
     if "." in name:
         sec, _, key = name.partition(".")
         return sec, key
-    return _KEY_SECTION.get(name, ""), name
+    return KEY_SECTION.get(name, ""), name
 
 
 def _suggest(word: Any, candidates) -> str:
@@ -418,7 +418,7 @@ def _suggest(word: Any, candidates) -> str:
 
 
 def _unknown_key(sec: str, key: Any) -> str:
-    home = _KEY_SECTION.get(key) if isinstance(key, str) else None
+    home = KEY_SECTION.get(key) if isinstance(key, str) else None
     if home is not None:
         return f"unknown key {sec}.{_show_name(key)}: {key} belongs to [{home}] ({home}.{key})"
     hint = _suggest(key, SCHEMA[sec]) or _suggest(f"{sec}.{key}", _ALL_KEYS)
@@ -426,9 +426,9 @@ def _unknown_key(sec: str, key: Any) -> str:
 
 
 def _unknown_section(sec: Any, content: Any) -> str:
-    if not isinstance(content, Mapping) and isinstance(sec, str) and sec in _KEY_SECTION:
-        return (f"{sec} = {_show(content)} stands outside any section: write it under [{_KEY_SECTION[sec]}] "
-                f"({_KEY_SECTION[sec]}.{sec})")
+    if not isinstance(content, Mapping) and isinstance(sec, str) and sec in KEY_SECTION:
+        return (f"{sec} = {_show(content)} stands outside any section: write it under [{KEY_SECTION[sec]}] "
+                f"({KEY_SECTION[sec]}.{sec})")
     return f"unknown section [{_show_name(sec)}]{_suggest(sec, SCHEMA)}; known sections: {', '.join(SCHEMA)}"
 
 
@@ -457,13 +457,13 @@ class PlanetSpec:
             for k, v in content.items():
                 if k not in SCHEMA[sec]:
                     raise ConfigError(_unknown_key(sec, k))
-                values[sec][k] = _check_value(sec, k, SCHEMA[sec][k], v)
+                values[sec][k] = check_value(sec, k, SCHEMA[sec][k], v)
         for k, v in flat.items():
             sec, name = _split_key(k)
             if sec not in SCHEMA or name not in SCHEMA[sec]:
                 raise ConfigError(_unknown_key(sec, name) if sec in SCHEMA else
                                   f"unknown key {_show(k)}{_suggest(k, _ALL_KEYS)}; see `meltzone config --example`")
-            values[sec][name] = _check_value(sec, name, SCHEMA[sec][name], v)
+            values[sec][name] = check_value(sec, name, SCHEMA[sec][name], v)
         _check_together(values)
         self._values = values
         for sec in SCHEMA:
@@ -520,10 +520,10 @@ class PlanetSpec:
             for name, key in keys.items():
                 if comments:
                     unit = f" [{key.unit}]" if key.unit and key.unit != "1" else ""
-                    lines.append(f"# {key.doc}{unit}; {key.allowed()}; default {_toml_value(key.default)}")
+                    lines.append(f"# {key.doc}{unit}; {key.allowed()}; default {toml_value(key.default)}")
                     if key.source:
                         lines.append(f"#   source: {key.source}")
-                lines.append(f"{name} = {_toml_value(self._values[sec][name])}")
+                lines.append(f"{name} = {toml_value(self._values[sec][name])}")
             lines.append("")
         return "\n".join(lines)
 
@@ -535,11 +535,12 @@ class PlanetSpec:
         return f"PlanetSpec({p['name']!r}, mass_earth={p['mass_earth']:g}, core_mass_fraction={p['core_mass_fraction']:g})"
 
 
-def read_toml(path: str | Path) -> dict[str, Any]:
-    """The parsed content of a TOML config file; ConfigError naming the file when it cannot be read (missing,
-    a folder, no permission), is not UTF-8 text or is not valid TOML (with line and column)."""
+def read_toml(path: str | Path, what: str = "config file") -> dict[str, Any]:
+    """The parsed content of a TOML file (a planet config, a sweep spec, ...; ``what`` names it in messages);
+    ConfigError naming the file when it cannot be read (missing, a folder, no permission), is not UTF-8 text or
+    is not valid TOML (with line and column)."""
     path = Path(path)
-    where = f"config file {str(path)!r}"
+    where = f"{what} {str(path)!r}"
     try:
         raw = path.read_bytes()
     except OSError as exc:
@@ -556,7 +557,7 @@ def read_toml(path: str | Path) -> dict[str, Any]:
         raise ConfigError(f"{where} is not valid TOML: {' '.join(str(exc).split())}") from None
 
 
-def _toml_value(v: Any) -> str:
+def toml_value(v: Any) -> str:
     if isinstance(v, str):
         return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
     if isinstance(v, bool):

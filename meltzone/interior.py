@@ -353,3 +353,84 @@ def check_melting_range(spec: PlanetSpec, interior: Interior) -> None:
                           "melting.model (see `meltzone curves`)")
     raise ConfigError(f"interior.surface_pressure_pa = {spec.interior.surface_pressure_pa:g}: {span}; raise the "
                       "surface pressure or choose a melting model that starts lower")
+
+
+# ---------------------------------------------------------------------- inversion: mass and radius -> core fraction
+#: Bracket [lower, upper] of the core mass fraction searched by :func:`infer_core_fraction`.
+CORE_FRACTION_BRACKET = (0.0, 0.8)
+#: Interior settings used for the inversion unless overridden (the radius changes by < 1e-8
+#: relative between these and the defaults 256 / 1500; checked with meltzone.interior.build_interior).
+INVERSION_DEFAULTS = {"interior.mantle_nodes": 64, "interior.integration_steps": 400}
+#: Absolute tolerance on the inferred core mass fraction.
+INVERSION_XTOL = 1.0e-5
+
+
+def infer_core_fraction(mass_earth: float, radius_earth: float, **spec_overrides):
+    """Core mass fraction that gives a planet of this mass the observed radius, or None.
+
+    Solves R(CMF; M) = R_obs for CMF in [0, 0.8] with Brent's method
+    (scipy.optimize.brentq; Brent 1973, *Algorithms for Minimization without
+    Derivatives*) over the radius of :func:`meltzone.interior.build_interior`,
+    which falls monotonically with the core mass fraction at fixed mass (a
+    denser planet is smaller). Returns None when no rocky composition in the
+    bracket fits: R_obs above R(CMF = 0) (too large: needs volatiles or a
+    lighter mantle) or below R(CMF = 0.8) (too dense: iron-rich beyond the
+    bracket).
+
+    Parameters
+    ----------
+    mass_earth : float
+        Planet mass [Earth masses].
+    radius_earth : float
+        Planet radius [Earth radii, 6.371e6 m].
+    **spec_overrides
+        Other config keys (flat or ``section.key`` names) of the planet, e.g.
+        ``mantle_fe_fraction=0.15``; by default the interior uses
+        ``interior.mantle_nodes = 64`` and ``interior.integration_steps = 400``
+        (the radius is insensitive to both; see :data:`INVERSION_DEFAULTS`).
+
+    Returns
+    -------
+    float or None
+        The core mass fraction (to 1e-5), or None when no value in [0, 0.8] fits.
+    """
+    from .errors import ConfigError
+
+    if not (math.isfinite(mass_earth) and math.isfinite(radius_earth)) or radius_earth <= 0.0:
+        raise ConfigError(f"infer_core_fraction: mass {mass_earth!r} and radius {radius_earth!r} must be "
+                          "finite and positive")
+    overrides = dict(INVERSION_DEFAULTS)
+    overrides.update(spec_overrides)
+    base = PlanetSpec(**overrides).replace(mass_earth=float(mass_earth))
+
+    steps = base.interior.integration_steps
+
+    def excess(cmf: float) -> float:
+        # the structure solver occasionally fails to bracket the radius (NaN residual) for iron-rich
+        # planets at one step count; the radius differs by < 1e-8 relative between step counts, so a
+        # retry at other counts changes the root by far less than INVERSION_XTOL
+        first = None
+        for n_steps in dict.fromkeys((steps, max(steps, 1500), 2 * max(steps, 1500) + 7)):
+            try:
+                it = build_interior(base.replace(core_mass_fraction=float(cmf), integration_steps=n_steps))
+            except ConfigError:
+                raise
+            except (ValueError, ArithmeticError, ConvergenceError) as exc:
+                first = first or exc
+                continue
+            return it.radius / EARTH_RADIUS - radius_earth
+        raise ConvergenceError(f"interior solver failed at core mass fraction {cmf:.4f} for M = {mass_earth:.4g} "
+                               f"M_E ({type(first).__name__}: {str(first).strip()})")
+
+    lo, hi = CORE_FRACTION_BRACKET
+    f_lo = excess(lo)
+    if f_lo < 0.0:
+        return None  # larger than a coreless rocky planet
+    f_hi = excess(hi)
+    if f_hi > 0.0:
+        return None  # smaller than the densest rocky planet of the bracket
+    if f_lo == 0.0:
+        return lo
+    if f_hi == 0.0:
+        return hi
+    return float(brentq(excess, lo, hi, xtol=INVERSION_XTOL, rtol=1e-12))

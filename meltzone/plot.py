@@ -15,7 +15,8 @@ from .report import format_years
 FIGURE_FORMATS = {".png": "png", ".pdf": "pdf", ".svg": "svg"}
 
 
-def _figure_format(path: Path) -> str:
+def figure_format(path: Path) -> str:
+    """The matplotlib format of a figure file, chosen by its suffix; MeltzoneError for any other suffix."""
     try:
         return FIGURE_FORMATS[path.suffix.lower()]
     except KeyError:
@@ -53,7 +54,7 @@ def plot_curves(model, path, *, max_pressure_pa: float | None = None, n_points: 
     from .phases import BOUNDARIES
 
     path = Path(path)
-    fmt = _figure_format(path)
+    fmt = figure_format(path)
     p_max = min(model.max_pressure_pa, 3.0 * TPA) if max_pressure_pa is None else float(max_pressure_pa)
     if not np.isfinite(p_max) or p_max <= model.min_pressure_pa or p_max > model.max_pressure_pa:
         raise MeltzoneError(f"plot pressure limit {p_max / GPA:g} GPa must lie above "
@@ -111,7 +112,7 @@ _CONFIDENCE_COLOURS = {"high": "0.6", "medium": "tab:orange", "low": "tab:red"}
 def _target(path):
     """(Path, matplotlib format) of a figure file; MeltzoneError for a suffix other than .png, .pdf, .svg."""
     path = Path(path)
-    return path, _figure_format(path)
+    return path, figure_format(path)
 
 
 def _new_figure(figsize):

@@ -310,9 +310,33 @@ def write_variable(group, name: str, data, dims: tuple[str, ...], units: str, lo
     return ds
 
 
+def _remove_stale_temporaries(target: str) -> None:
+    """Remove the temporaries of ``target`` (``.NAME.PID.*.part``) whose writer process is gone (killed
+    while writing); those of a live process are left alone."""
+    import glob
+    import os
+
+    prefix = os.path.join(os.path.dirname(target), "." + os.path.basename(target) + ".")
+    for tmp in glob.glob(glob.escape(prefix) + "*.part"):
+        pid = tmp[len(prefix):].partition(".")[0]
+        if not pid.isdigit():
+            continue
+        try:
+            os.kill(int(pid), 0)
+        except ProcessLookupError:
+            try:
+                os.unlink(tmp)
+            except OSError:
+                pass
+        except OSError:  # alive under another user (EPERM): not ours to remove
+            pass
+
+
 def atomic_h5(path):
     """Context manager: an h5py.File opened on a temporary name in the target folder, moved into place
-    (os.replace) only when the block succeeds; the temporary is removed on failure."""
+    (os.replace) only when the block succeeds; the temporary is removed on failure. The temporary's name
+    holds the writer's process id, and temporaries of the same target left by a process that is gone are
+    removed first."""
     import contextlib
     import os
     import tempfile
@@ -323,7 +347,9 @@ def atomic_h5(path):
     def manager():
         target = os.path.abspath(os.fspath(path))
         folder = os.path.dirname(target) or "."
-        fd, tmp = tempfile.mkstemp(prefix="." + os.path.basename(target) + ".", suffix=".part", dir=folder)
+        _remove_stale_temporaries(target)
+        fd, tmp = tempfile.mkstemp(prefix=f".{os.path.basename(target)}.{os.getpid()}.", suffix=".part",
+                                   dir=folder)
         os.close(fd)
         try:
             with h5py.File(tmp, "w", track_order=True) as f:
@@ -636,6 +662,9 @@ def _kind(f, path) -> str:
     kind = f.attrs.get("meltzone_kind")
     if isinstance(kind, bytes):
         kind = kind.decode("utf-8", "replace")
+    if kind is not None and not isinstance(kind, str):
+        raise ResultsFileError(f"{str(path)!r}: attribute meltzone_kind is not a single string; the file was not "
+                               "written by meltzone or has been edited")
     if kind is None:
         raise ResultsFileError(f"{str(path)!r} is an HDF5 file but not a meltzone file (no meltzone_kind attribute)")
     if kind not in FILE_KINDS:

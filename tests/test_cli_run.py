@@ -11,7 +11,6 @@ import os
 import shutil
 import subprocess
 import sys
-import types
 
 import h5py
 import numpy as np
@@ -183,15 +182,19 @@ def test_user_mistakes_exit_2_with_one_line(ran, tmp_path):
 
 
 def test_sweep_files_go_to_the_sweep_module(ran, tmp_path, monkeypatch):
-    """A file with meltzone_kind = "sweep" is handed to meltzone.sweep.print_summary / plot_sweep."""
+    """A file with meltzone_kind = "sweep" is handed to meltzone.report.print_sweep_summary and
+    meltzone.sweep.plot_sweep."""
+    import meltzone.report
+    import meltzone.sweep
+
     sweep = tmp_path / "sweep.h5"
     with h5py.File(sweep, "w") as f:
         f.attrs["meltzone_kind"] = "sweep"
     calls = []
-    fake = types.ModuleType("meltzone.sweep")
-    fake.print_summary = lambda path, as_json: calls.append(("summary", str(path), as_json))
-    fake.plot_sweep = lambda path, figure, out: calls.append(("plot", str(path), figure, str(out)))
-    monkeypatch.setitem(sys.modules, "meltzone.sweep", fake)
+    monkeypatch.setattr(meltzone.report, "print_sweep_summary",
+                        lambda path, as_json: calls.append(("summary", str(path), as_json)))
+    monkeypatch.setattr(meltzone.sweep, "plot_sweep",
+                        lambda path, figure, out: calls.append(("plot", str(path), figure, str(out))))
     assert CliRunner().invoke(main, ["summary", str(sweep), "--json"]).exit_code == 0
     fig = tmp_path / "s.png"
     assert CliRunner().invoke(main, ["plot", str(sweep), "--figure", "scatter", "-o", str(fig)]).exit_code == 0

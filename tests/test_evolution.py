@@ -191,7 +191,7 @@ def test_solid_start_that_melts_later_has_no_first_magma_ocean():
     """A run that starts below the transition and warms into a magma ocean later: the first magma ocean is
     "none" (end null, magma_ocean_at_start false), the later one is reported as formed again, and the sweep
     flags follow the events."""
-    from meltzone._sweep_exec import outcomes
+    from meltzone.sweep.worker import outcomes
 
     r = evolve(PlanetSpec(mass_earth=1.0, end_time_gyr=4.5, upper_temperature_k=1700.0, beta=0.0,
                           nusselt_prefactor=20.0))

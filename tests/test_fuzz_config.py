@@ -16,7 +16,7 @@ import string
 from click.testing import CliRunner
 
 from meltzone.cli import main
-from meltzone.config import SCHEMA, _toml_value
+from meltzone.config import SCHEMA, toml_value
 
 SEED = 20240611
 N_PER_KIND = 40
@@ -57,7 +57,7 @@ def _out_of_range(rng):
         value = int(math.floor(value) if side == "lo" else math.ceil(value))
         if side == "lo" and value >= edge:
             value = int(edge) - 1
-    return _doc(sec, f"{k} = {_toml_value(value)}").encode(), f"{sec}.{k}"
+    return _doc(sec, f"{k} = {toml_value(value)}").encode(), f"{sec}.{k}"
 
 
 def _bad_text(rng):

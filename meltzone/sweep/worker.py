@@ -1,4 +1,4 @@
-"""Worker side of a sweep: run one case and return a compact, picklable, JSON-ready dict.
+"""The case worker of a sweep: run one case (or a batch) and return a compact, picklable, JSON-ready dict.
 
 This module is what a worker process (local process pool or Dask worker)
 imports. It stays light at import (numpy and the standard library only); the
@@ -7,7 +7,7 @@ kernels come from numba's on-disk cache (``NUMBA_CACHE_DIR``, inherited from
 the client's environment; see :mod:`meltzone._jit`), so a worker compiles
 nothing that another process has already compiled. The kernels live in
 importable modules, never in ``__main__``, so every worker finds them in the
-cache.
+cache. The evolution is called only through the public ``meltzone.evolve``.
 
 A case never raises: a failure of the case itself (a parameter value the
 config rejects, a solver that does not converge) comes back as ``status =
@@ -25,18 +25,11 @@ import os
 import time
 import warnings
 
+from ..constants import YEAR
+
 #: Case status codes (stored as int8 in the sweep file).
 OK, FAILED, REJECTED = 0, 1, 2
 STATUS_MEANINGS = "ok failed rejected"
-
-#: Bracket [lower, upper] of the core mass fraction searched by :func:`infer_core_fraction`.
-CORE_FRACTION_BRACKET = (0.0, 0.8)
-#: Interior settings used for the inversion unless overridden (the radius changes by < 1e-8
-#: relative between these and the defaults 256 / 1500; checked with meltzone.interior.build_interior).
-INVERSION_DEFAULTS = {"interior.mantle_nodes": 64, "interior.integration_steps": 400}
-#: Absolute tolerance on the inferred core mass fraction.
-INVERSION_XTOL = 1.0e-5
-
 #: Outcome metrics per case: name -> (unit, long name). All float64; NaN when there is no value
 #: (failed case, or a time that did not happen within the run; see the flags).
 METRICS = {
@@ -71,7 +64,8 @@ FLAGS = {
                             "it, or one formed again)",
     "magma_ocean_reformed": "a solidified mantle warmed back into a surface magma ocean during the run",
     "melt_persists": "melt remains somewhere in the mantle at the end of the run",
-    "basal_layer_formed": "a basal melt layer formed during the run",
+    "basal_layer_formed": "a basal melt layer that exists after the surface magma ocean has ended formed during "
+                          "the run (the run summary's basal_layer is not null)",
     "basal_layer_persists": "the basal melt layer outlived the run",
 }
 #: Extra flags of the observed mode, evaluated at the stated age.
@@ -80,8 +74,6 @@ AGE_FLAGS = {
     "basal_layer_by_age": "a basal melt layer formed at or before the stated age",
     "melting_at_age": "melt is present somewhere in the mantle at the stated age",
 }
-
-_YEAR = 365.25 * 86400.0  # Julian year [s], as meltzone.constants.YEAR
 
 
 def worker_init() -> None:
@@ -122,85 +114,6 @@ def _merge(base: dict, assignments: dict) -> dict:
     for sec, vals in _nested_from_flat(assignments).items():
         merged.setdefault(sec, {}).update(vals)
     return merged
-
-
-def infer_core_fraction(mass_earth: float, radius_earth: float, **spec_overrides):
-    """Core mass fraction that gives a planet of this mass the observed radius, or None.
-
-    Solves R(CMF; M) = R_obs for CMF in [0, 0.8] with Brent's method
-    (scipy.optimize.brentq; Brent 1973, *Algorithms for Minimization without
-    Derivatives*) over the radius of :func:`meltzone.interior.build_interior`,
-    which falls monotonically with the core mass fraction at fixed mass (a
-    denser planet is smaller). Returns None when no rocky composition in the
-    bracket fits: R_obs above R(CMF = 0) (too large: needs volatiles or a
-    lighter mantle) or below R(CMF = 0.8) (too dense: iron-rich beyond the
-    bracket).
-
-    Parameters
-    ----------
-    mass_earth : float
-        Planet mass [Earth masses].
-    radius_earth : float
-        Planet radius [Earth radii, 6.371e6 m].
-    **spec_overrides
-        Other config keys (flat or ``section.key`` names) of the planet, e.g.
-        ``mantle_fe_fraction=0.15``; by default the interior uses
-        ``interior.mantle_nodes = 64`` and ``interior.integration_steps = 400``
-        (the radius is insensitive to both; see :data:`INVERSION_DEFAULTS`).
-
-    Returns
-    -------
-    float or None
-        The core mass fraction (to 1e-5), or None when no value in [0, 0.8] fits.
-    """
-    from scipy.optimize import brentq
-
-    from .config import PlanetSpec
-    from .constants import EARTH_RADIUS
-    from .interior import build_interior
-
-    if not (math.isfinite(mass_earth) and math.isfinite(radius_earth)) or radius_earth <= 0.0:
-        from .errors import ConfigError
-
-        raise ConfigError(f"infer_core_fraction: mass {mass_earth!r} and radius {radius_earth!r} must be "
-                          "finite and positive")
-    overrides = dict(INVERSION_DEFAULTS)
-    overrides.update(spec_overrides)
-    base = PlanetSpec(**overrides).replace(mass_earth=float(mass_earth))
-
-    steps = base.interior.integration_steps
-
-    def excess(cmf: float) -> float:
-        # the structure solver occasionally fails to bracket the radius (NaN residual) for iron-rich
-        # planets at one step count; the radius differs by < 1e-8 relative between step counts, so a
-        # retry at other counts changes the root by far less than INVERSION_XTOL
-        from .errors import ConfigError, ConvergenceError
-
-        first = None
-        for n_steps in dict.fromkeys((steps, max(steps, 1500), 2 * max(steps, 1500) + 7)):
-            try:
-                it = build_interior(base.replace(core_mass_fraction=float(cmf), integration_steps=n_steps))
-            except ConfigError:
-                raise
-            except (ValueError, ArithmeticError, ConvergenceError) as exc:
-                first = first or exc
-                continue
-            return it.radius / EARTH_RADIUS - radius_earth
-        raise ConvergenceError(f"interior solver failed at core mass fraction {cmf:.4f} for M = {mass_earth:.4g} "
-                               f"M_E ({_message(first)})")
-
-    lo, hi = CORE_FRACTION_BRACKET
-    f_lo = excess(lo)
-    if f_lo < 0.0:
-        return None  # larger than a coreless rocky planet
-    f_hi = excess(hi)
-    if f_hi > 0.0:
-        return None  # smaller than the densest rocky planet of the bracket
-    if f_lo == 0.0:
-        return lo
-    if f_hi == 0.0:
-        return hi
-    return float(brentq(excess, lo, hi, xtol=INVERSION_XTOL, rtol=1e-12))
 
 
 def _none_nan(v) -> float:
@@ -259,7 +172,7 @@ def outcomes(summary: dict, result=None, age_yr: float | None = None) -> tuple[d
 
         flags["magma_ocean_at_age"] = _flag(_magma_ocean_at(summary, result, age_yr))
         flags["basal_layer_by_age"] = _flag(basal is not None and basal["start_yr"] <= age_yr)
-        t_yr = result.history["time"] / _YEAR
+        t_yr = result.history["time"] / YEAR
         melt = result.history["melt_mass"]
         # melt present at the last history step at or before the age (steps bracket the melt-free stretch)
         step = int(np.clip(np.searchsorted(t_yr, age_yr, side="right") - 1, 0, len(t_yr) - 1))
@@ -267,7 +180,8 @@ def outcomes(summary: dict, result=None, age_yr: float | None = None) -> tuple[d
     return metrics, flags
 
 
-def _message(exc: BaseException) -> str:
+def message(exc: BaseException) -> str:
+    """One line for an exception: its type and the first line of its text."""
     text = str(exc).strip().splitlines()[0] if str(exc).strip() else ""
     return f"{type(exc).__name__}: {text}" if text else type(exc).__name__
 
@@ -308,7 +222,7 @@ def run_case(index: int, base: dict, assignments: dict, observed: dict | None = 
             _run(out, base, assignments, observed, detail_dir)
         except Exception as exc:  # the case failed; the sweep goes on and records why
             out["status"] = FAILED
-            out["error"] = _message(exc)
+            out["error"] = message(exc)
             out["metrics"], out["flags"] = {}, {}
             out["events"] = []
         for w in record:
@@ -327,7 +241,7 @@ def run_cases(cases: list, base: dict, detail_dir: str | None = None) -> list:
 
 
 def _run(out, base, assignments, observed, detail_dir):
-    from .config import PlanetSpec
+    from ..config import PlanetSpec
 
     merged = _merge(base, assignments)
     if observed is not None:
@@ -342,6 +256,8 @@ def _run(out, base, assignments, observed, detail_dir):
         inversion.pop("planet.core_mass_fraction", None)
         inversion.update(observed.get("inversion", {}))
         inversion.pop("planet.mass_earth", None)
+        from ..interior import infer_core_fraction
+
         cmf = infer_core_fraction(mass, radius, **inversion)
         if cmf is None:
             out["status"] = REJECTED
@@ -353,10 +269,11 @@ def _run(out, base, assignments, observed, detail_dir):
         merged.setdefault("planet", {})["core_mass_fraction"] = cmf
     spec = PlanetSpec(merged)
 
-    from .evolution import evolve
-    from .layers import summarize, track
+    import meltzone
 
-    result = evolve(spec)
+    from ..layers import summarize, track
+
+    result = meltzone.evolve(spec)
     table, events = track(result)
     summary = summarize(result, table, events)
     age_yr = None if observed is None else observed["age_gyr"] * 1e9
@@ -364,7 +281,7 @@ def _run(out, base, assignments, observed, detail_dir):
     out["events"] = [[float(e["time_yr"]), str(e["kind"]), int(e["layer"]), _none_nan(e["depth_m"]),
                       _none_nan(e["pressure_pa"])] for e in summary["events"]]
     if detail_dir is not None:
-        from . import results as _results
+        from .. import results as _results
 
         writer = getattr(_results, "write", None)
         if writer is not None:
