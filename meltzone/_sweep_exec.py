@@ -353,7 +353,7 @@ def _run(out, base, assignments, observed, detail_dir):
         merged.setdefault("planet", {})["core_mass_fraction"] = cmf
     spec = PlanetSpec(merged)
 
-    from .evolution import evolve
+    from .pipeline import evolve
     from .layers import summarize, track
 
     result = evolve(spec)

@@ -32,6 +32,8 @@ GYR = 1.0e9 * YEAR
 GPA = 1.0e9
 TPA = 1.0e12
 BAR = 1.0e5
+#: Standard atmosphere [Pa] (exact by definition; BIPM SI Brochure 2019).
+STANDARD_ATMOSPHERE = 101325.0
 
 # --- Molar masses [kg/mol] (IUPAC 2013 standard atomic weights) -------------
 MOLAR_MASS_MG = 24.305e-3
