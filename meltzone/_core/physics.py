@@ -76,8 +76,8 @@ def node_melt(t, grid, i, law):
 
 @njit
 def _isentropic_residual(x, args):
-    t, grid, i, law, lc = args
-    return x - node_melt(t - lc * x, grid, i, law)
+    t, lc, tsol, tliq, aux1, aux2, law = args
+    return x - melt_fraction(t - lc * x, tsol, tliq, aux1, aux2, law)
 
 
 @njit
@@ -90,7 +90,9 @@ def isentropic_melt(t, grid, i, law, par):
     hi = node_melt(t, grid, i, law)
     if hi <= 0.0 or lc <= 0.0:
         return hi
-    return bisect(_isentropic_residual, (t, grid, i, law, lc), 0.0, hi, PHI_XTOL, 0.0, 60)
+    # plain floats in the tuple: no reference counting in the hot loop
+    args = (t, lc, grid[G_TSOL, i], grid[G_TLIQ, i], grid[G_AUX1, i], grid[G_AUX2, i], law)
+    return bisect(_isentropic_residual, args, 0.0, hi, PHI_XTOL, 0.0, 60)
 
 
 @njit
@@ -203,9 +205,8 @@ def _invert(kind, e, d, grid, core, par, law, guess, slope):
     Newton's first step with the caller's slope (the previous call's, > 0) or a centred difference, then
     secant steps; bisection on [T_MIN, T_MAX] if that fails. Both stored-heat functions rise monotonically
     with temperature."""
-    args = (kind, e, d, grid, core, par, law)
     t0 = min(max(guess, T_MIN), T_MAX)
-    f0 = _stored_heat_residual(t0, args)
+    f0 = (mantle_energy(t0, d, grid, par, law) if kind == 0 else core_energy(t0, core, par)) - e
     s = slope
     if not s > 0.0:
         hh = 1e-3 * max(1.0, 1e-4 * t0)
@@ -222,7 +223,7 @@ def _invert(kind, e, d, grid, core, par, law, guess, slope):
         t1 = t0 - f0 / s
         if not (T_MIN <= t1 <= T_MAX):
             break
-        f1 = _stored_heat_residual(t1, args)
+        f1 = (mantle_energy(t1, d, grid, par, law) if kind == 0 else core_energy(t1, core, par)) - e
         if f1 != f0 and t1 != t0:
             s_new = (f1 - f0) / (t1 - t0)
             if s_new > 0.0:
@@ -231,7 +232,7 @@ def _invert(kind, e, d, grid, core, par, law, guess, slope):
             return t1, s
         t0 = t1
         f0 = f1
-    return bisect(_stored_heat_residual, args, T_MIN, T_MAX, 0.0, 1e-12, 200), 0.0
+    return bisect(_stored_heat_residual, (kind, e, d, grid, core, par, law), T_MIN, T_MAX, 0.0, 1e-12, 200), 0.0
 
 
 @njit
@@ -486,7 +487,7 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     dy[Y_OUT] = q_surf - heat
 
 
-@njit
+@njit(inline="always")
 def rhs_packed(t, y, args, dy):
     """:func:`rhs` with its inputs in one tuple (t_switch, grid, core, iso, par, law, work, diag), the form the
     stepper of :mod:`meltzone._core.dopri` calls."""

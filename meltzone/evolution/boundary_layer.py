@@ -241,7 +241,8 @@ def initial_state(spec, inputs) -> np.ndarray:
 
 def integrate(spec, inputs, progress=None, history_rows=4096, interval_rows=8192):
     """Run the integrator from :func:`initial_state` to the end time, growing the buffers (initial sizes
-    ``history_rows``, ``interval_rows``) when they fill. Returns (hist, temps, phis, iv, state), trimmed."""
+    ``history_rows``, ``interval_rows``) when they fill. Returns (hist, temps, phis, iv, state), trimmed (the
+    profiles as views of their buffers: copying them costs more than the rest of the wrapper)."""
     from .._core import layout as k
     from .._core.loop import integrate as step_all
 
@@ -276,7 +277,7 @@ def integrate(spec, inputs, progress=None, history_rows=4096, interval_rows=8192
                 f"(T_u = {state[k.S_TU]:.1f} K, T_c = {state[k.S_TC]:.1f} K); raise run.rtol or run.atol_k")
     n_h = int(state[k.S_N_H])
     n_iv = int(state[k.S_N_IV])
-    return hist[:n_h].copy(), temps[:n_h].copy(), phis[:n_h].copy(), iv[:n_iv].copy(), state
+    return hist[:n_h].copy(), temps[:n_h], phis[:n_h], iv[:n_iv].copy(), state
 
 
 def run(spec, interior, curves, progress=None, *, history_rows=4096, interval_rows=8192) -> History:
