@@ -167,9 +167,11 @@ def solve_structure(mass_kg: float, core_mass_kg: float, *, surface_pressure: fl
     guess = zeng2016_radius(mass_kg, min(core_mass_kg / mass_kg, 0.8))
     calls = [0]
 
+    scratch = np.empty((1, k.PATH_COLS))
+
     def resid(radius):
         calls[0] += 1
-        return k.residual_at(radius, *args)
+        return k.integrate_inward(radius, *args, scratch, False)[2]  # the same signature as the stored run
 
     # the residual falls with the radius: too small a planet leaves mass at the centre (> 0),
     # too large a one runs out of mass above it (< 0)

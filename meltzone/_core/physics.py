@@ -11,6 +11,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from ..constants import GAS_CONSTANT, STANDARD_ATMOSPHERE, STEFAN_BOLTZMANN, YEAR
 from ._jit import njit
 from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DELTA_C, D_DELTA_U, D_DLID, D_EPS,
@@ -24,6 +26,12 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
                      REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
 from .melt import melt_fraction
 from .roots import bisect
+
+# Flags and indices passed between kernels as typed values, not literals: numba compiles one specialization per
+# literal argument value, so ``f(0)`` and ``f(1)`` would compile ``f`` twice (the cold start's cost)
+MANTLE, CORE = np.int64(0), np.int64(1)
+BOTTOM = np.int64(0)
+NO, YES = np.bool_(False), np.bool_(True)
 
 #: Temperature bracket of the stored-heat inversion [K]
 T_MIN, T_MAX = 10.0, 2.0e5
@@ -240,9 +248,9 @@ def temperatures(y, grid, core, par, law, work):
     """(T_u, T_c) of the energy state y; ``work`` = (T_u, T_c, dE_m/dT_u, dE_c/dT_c) of the last solution,
     the starting point of the next (a slope <= 0 asks for a fresh centred difference)."""
     d = max(y[Y_LID], 0.0) if par[P_STAGNANT] > 0.5 else 0.0
-    tu, work[2] = _invert(0, y[Y_EM], d, grid, core, par, law, work[0], work[2])
+    tu, work[2] = _invert(MANTLE, y[Y_EM], d, grid, core, par, law, work[0], work[2])
     if core[C_W].sum() > 0.0:
-        tc, work[3] = _invert(1, y[Y_EC], 0.0, grid, core, par, law, work[1], work[3])
+        tc, work[3] = _invert(CORE, y[Y_EC], 0.0, grid, core, par, law, work[1], work[3])
     else:
         tc = work[1]
     work[0] = tu
@@ -385,7 +393,7 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
     dtc = tc - tb
     # bottom boundary layer (local critical Rayleigh number)
     t_mean_c = 0.5 * (tc + tb)
-    phi_c = node_melt(t_mean_c, grid, 0, law_i)
+    phi_c = node_melt(t_mean_c, grid, BOTTOM, law_i)
     eta_c = viscosity(t_mean_c, par[P_P_CMB], phi_c, par)
     if abs(dtc) > 1e-9 and par[P_G_CMB] > 0.0:
         delta_c = (par[P_KAPPA] * eta_c * par[P_RA_CR] / (par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_CMB]
@@ -418,7 +426,7 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
     w_mo = smoothstep((phi_top - par[P_PHI_C]) / par[P_BLEND])
     ts_m, qs_m, qu_m, du_m = 0.0, 0.0, 0.0, 0.0
     if w_mo > 0.0:
-        ts_m, qs_m, qu_m, du_m = _top_boundary(False, False, tu, tu, 0.0, depth, dtc, eta_u, eps, par)
+        ts_m, qs_m, qu_m, du_m = _top_boundary(NO, NO, tu, tu, 0.0, depth, dtc, eta_u, eps, par)
     tl = tu
     ddl_sl = 0.0
     ts_s, qs_s, qu_s, du_s = ts_m, qs_m, qu_m, du_m
@@ -427,14 +435,15 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
             tl = lid_base_temperature(tu, par)
             d_eff = max(d_lid, par[P_LID_MIN])
             d_conv = max(depth - d_eff, 0.05 * depth)
-            ts_s, qs_s, qu_s, du_s = _top_boundary(True, solidified, tu, tl, d_eff, d_conv, dtc, eta_s, eps, par)
+            ts_s, qs_s, qu_s, du_s = _top_boundary(YES, solidified, tu, tl, d_eff, d_conv, dtc, eta_s,
+                                                    eps, par)
             # rho c (T_u - T_lid,mean) dD/dt = q_lid - q_u: new lid material is cooled from T_u to the mean of
             # the linear lid profile, the same bookkeeping as mantle_energy (with it, the convecting mantle
             # loses exactly q_u at the lid base)
             t_lid_mean = 0.5 * (par[P_T_EQ] + tl)
             ddl_sl = (qs_s - qu_s) / (par[P_RHO_TOP] * par[P_CM] * max(tu - t_lid_mean, 1.0))
         else:
-            ts_s, qs_s, qu_s, du_s = _top_boundary(False, solidified, tu, tu, 0.0, depth, dtc, eta_s, eps, par)
+            ts_s, qs_s, qu_s, du_s = _top_boundary(NO, solidified, tu, tu, 0.0, depth, dtc, eta_s, eps, par)
     if w_mo <= 0.0:
         ts_m, qs_m, qu_m, du_m = ts_s, qs_s, qu_s, du_s
     qs = w_mo * qs_m + (1.0 - w_mo) * qs_s

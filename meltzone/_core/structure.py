@@ -245,9 +245,9 @@ def integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, cor
         region = min(mantle_phase(p_surface, t_surface, bounds), n_phase - 1)
     mat = core_mat if region < 0 else mantle_mats[region]
     rho = eos_density(p_surface, t_surface, mat, mat[MAT_RHO0])
-    n = 0
+    n = np.int64(0)  # typed, not a literal: one specialization of _store
     if store:
-        _store(path, 0, r, y, rho, region)
+        _store(path, n, r, y, rho, region)
         n = 1
     cap = path.shape[0]
     while r > r_stop:
@@ -311,11 +311,3 @@ def integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, cor
         return BLEW_UP, n, y[0] / mass
     residual = (y[0] - (FOUR_PI / 3.0) * r ** 3 * rho) / mass
     return REACHED_CENTRE, n, residual
-
-
-@njit
-def residual_at(radius, mass, core_mass, p_surface, t_surface, n_steps, core_mat, mantle_mats, bounds):
-    path = np.empty((1, PATH_COLS))
-    status, n, res = integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, core_mat,
-                                      mantle_mats, bounds, path, False)
-    return res
