@@ -103,6 +103,8 @@ import math
 
 import numpy as np
 
+from .. import melting
+from .._core import layout as k
 from ..constants import GYR, MYR, YEAR
 from ..errors import ConvergenceError
 from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid, Scheme
@@ -126,8 +128,6 @@ def _node_weights(r: np.ndarray, m: np.ndarray, m_bottom: float, m_top: float) -
 def build_inputs(spec, interior, curves):
     """The core's inputs (:class:`~meltzone._core.layout.KernelInputs`) for a spec, its interior and the
     melting curves on the mantle nodes (:func:`meltzone.melting.node_curves`)."""
-    from .. import melting
-    from .._core import layout as k
     from .heating import isotope_table
 
     it = interior
@@ -208,23 +208,20 @@ def build_inputs(spec, interior, curves):
 def initial_temperatures(spec, inputs) -> tuple[float, float]:
     """(T_u, T_c) at the start: by default 50 K above the liquidus at every mantle node (fully molten),
     and the core the mantle adiabat at the CMB plus ``initial.initial_cmb_jump_k``."""
-    from .._core.layout import G_F, G_TLIQ
-
     grid = inputs.grid
     tu = spec.initial.upper_temperature_k
     if tu <= 0.0:
-        tu = float(np.max(grid[G_TLIQ] / grid[G_F])) + 50.0
+        tu = float(np.max(grid[k.G_TLIQ] / grid[k.G_F])) + 50.0
     tc = spec.initial.core_temperature_k
     if tc <= 0.0:
-        tc = tu * grid[G_F, 0] + spec.initial.initial_cmb_jump_k
+        tc = tu * grid[k.G_F, 0] + spec.initial.initial_cmb_jump_k
     return float(tu), float(tc)
 
 
 def initial_state(spec, inputs) -> np.ndarray:
     """The integrator's state at the start (S_* of :mod:`meltzone._core.layout`): energies of the initial
     temperatures, the minimal lid in stagnant-lid mode, a first step of 1 s, no rheological switch yet."""
-    from .._core import layout as k
-    from .._core.physics import energy_state
+    from .._core.physics import energy_state  # numba: imported when a run starts
 
     tu, tc = initial_temperatures(spec, inputs)
     state = np.zeros(k.N_STATE)
@@ -243,7 +240,6 @@ def integrate(spec, inputs, progress=None, history_rows=4096, interval_rows=8192
     """Run the integrator from :func:`initial_state` to the end time, growing the buffers (initial sizes
     ``history_rows``, ``interval_rows``) when they fill. Returns (hist, temps, phis, iv, state), trimmed (the
     profiles as views of their buffers: copying them costs more than the rest of the wrapper)."""
-    from .._core import layout as k
     from .._core.loop import integrate as step_all
 
     n = inputs.grid.shape[1]
@@ -285,8 +281,6 @@ def run(spec, interior, curves, progress=None, *, history_rows=4096, interval_ro
 
     ``curves``: :func:`meltzone.melting.node_curves` on the interior's mantle nodes. ``progress``, if given, is
     called with the model time reached [s] every PROGRESS_STEPS accepted steps."""
-    from .._core import layout as k
-
     inputs = build_inputs(spec, interior, curves)
     hist, temps, phis, iv, state = integrate(spec, inputs, progress, history_rows, interval_rows)
     column = {name: j for j, name in enumerate(k.HISTORY_COLUMNS)}
@@ -330,21 +324,17 @@ class Evaluator:
     ends of the step), then the core's diagnostics and profile at that state and time."""
 
     def __init__(self, history: History):
-        from .._core.layout import KernelInputs, NOT_YET
-
         d = history.scheme_data
-        self.inputs = KernelInputs(*(np.ascontiguousarray(d[name], dtype=np.float64)
+        self.inputs = k.KernelInputs(*(np.ascontiguousarray(d[name], dtype=np.float64)
                                      for name in ("grid", "core", "iso", "par")), int(d["law"]))
         h = history
         self.t = h.time
         self.cols = [(h["upper_temperature"], h["upper_temperature_rate"]),
                      (h["core_temperature"], h["core_temperature_rate"]),
                      (h["lid_thickness"], h["lid_rate"])]
-        from .._core.layout import P_STAGNANT
-
-        self.stagnant = self.inputs.par[P_STAGNANT] > 0.5
+        self.stagnant = self.inputs.par[k.P_STAGNANT] > 0.5
         switch = h.switch_times.get(SWITCH)
-        self.t_switch = NOT_YET if switch is None else float(switch)
+        self.t_switch = k.NOT_YET if switch is None else float(switch)
 
     def state(self, t: float) -> tuple[float, float, float]:
         """(T_u [K], T_c [K], lid [m]) at model time ``t`` [s]."""
@@ -361,7 +351,6 @@ class Evaluator:
         return float(vals[0]), float(vals[1]), float(max(vals[2], 0.0))
 
     def at(self, t: float) -> InStep:
-        from .._core.layout import C_F, C_TMELT, D_PHI_TOP, N_D
         from .._core.physics import profile_at
 
         tu, tc, lid = self.state(t)
@@ -369,10 +358,10 @@ class Evaluator:
         n = grid.shape[1]
         temp = np.empty(n)
         phi = np.empty(n)
-        diag = np.empty(N_D)
+        diag = np.empty(k.N_D)
         profile_at(float(t), tu, tc, lid, self.t_switch, grid, core, iso, par, law, temp, phi, diag)
-        return InStep(temperature=temp, melt_fraction=phi, regime_melt_fraction=float(diag[D_PHI_TOP]),
-                      centre_freezing_margin_k=float(core[C_TMELT, 0] - tc * core[C_F, 0]))
+        return InStep(temperature=temp, melt_fraction=phi, regime_melt_fraction=float(diag[k.D_PHI_TOP]),
+                      centre_freezing_margin_k=float(core[k.C_TMELT, 0] - tc * core[k.C_F, 0]))
 
 
 SCHEME = Scheme(name="boundary-layer",
