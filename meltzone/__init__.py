@@ -16,7 +16,7 @@ _LAZY = {
     "Interior": ("meltzone.interior", "Interior"),
     "MeltzoneError": ("meltzone.errors", "MeltzoneError"),
     "ConfigError": ("meltzone.errors", "ConfigError"),
-    "evolve": ("meltzone.evolution", "evolve"),
+    "evolve": ("meltzone.pipeline", "evolve"),
     "Result": ("meltzone.results", "Result"),
     "load": ("meltzone.results", "load"),
     "write": ("meltzone.results", "write"),

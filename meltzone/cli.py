@@ -241,8 +241,17 @@ def demo_config_path():
 
 
 # ---------------------------------------------------------------- run, summary, layers, plot
+def _announce_compilation() -> None:
+    """One line on stderr when the numba kernels are not in the cache yet (the first run compiles them)."""
+    from ._core._jit import CACHE_DIR, is_cached
+
+    if not is_cached("meltzone._core.loop", "integrate"):
+        click.echo(f"meltzone: first run: compiling the numba kernels (about 15 s, once; they are cached in "
+                   f"{CACHE_DIR})", err=True)
+
+
 def _progress_callback(end_time_s: float, min_wall_s: float = 1.0):
-    """A progress callback for :func:`meltzone.evolution.evolve` that draws a one-line bar of the model time
+    """A progress callback for :func:`meltzone.evolve` that draws a one-line bar of the model time
     reached (log scale) on stderr, only when stderr is a terminal and the run has lasted ``min_wall_s``.
     Returns (callback or None, finish)."""
     import math
@@ -288,7 +297,7 @@ def run(config, mass, core_fraction, overrides, output, as_json):
 
     from . import report
     from .constants import GYR
-    from .evolution import evolve
+    from .pipeline import evolve
     from .results import write
 
     spec = _spec_from_options(config, mass, core_fraction, overrides)
@@ -297,6 +306,7 @@ def run(config, mass, core_fraction, overrides, output, as_json):
         raise click.BadParameter(f"folder {str(out.parent)!r} does not exist", param_hint="--output")
     if not os.access(out.parent.resolve(), os.W_OK):
         raise click.BadParameter(f"folder {str(out.parent)!r} is not writable", param_hint="--output")
+    _announce_compilation()
     callback, finish = _progress_callback(spec.run.end_time_gyr * GYR)
     try:
         result = evolve(spec, progress=callback)

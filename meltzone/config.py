@@ -152,7 +152,7 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
         "activation_volume_decay_pa": Key(2.0e11, "Pa", "pressure scale over which the activation volume "
                                           "decays, V(P) = V0 exp(-P / P_d); 0 keeps V constant", lo=0.0, hi=1.0e13,
-            source="this model's choice (see evolution.kernel.activation_enthalpy); limit: 10 TPa, twice the "
+            source="this model's choice (see meltzone._core.physics.activation_enthalpy); limit: 10 TPa, twice the "
                    "deepest pressure the melting models evaluate (5 TPa), beyond which V(P) ~ V0 as with 0"),
         "critical_rayleigh": Key(450.0, "1", "critical Rayleigh number", lo=1.0, hi=1.0e5,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),

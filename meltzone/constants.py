@@ -31,7 +31,8 @@ GYR = 1.0e9 * YEAR
 # --- Pressure ---------------------------------------------------------------
 GPA = 1.0e9
 TPA = 1.0e12
-BAR = 1.0e5
+#: Standard atmosphere [Pa] (exact by definition; BIPM SI Brochure 2019).
+STANDARD_ATMOSPHERE = 101325.0
 
 # --- Molar masses [kg/mol] (IUPAC 2013 standard atomic weights) -------------
 MOLAR_MASS_MG = 24.305e-3
@@ -42,12 +43,3 @@ MOLAR_MASS_O = 15.999e-3
 #: cm^3/mol to m^3/mol
 CM3_PER_MOL = 1.0e-6
 
-
-def earth_masses_to_kg(mass_earth: float) -> float:
-    """Convert a mass in Earth masses to kg (IAU 2015 nominal Earth mass)."""
-    return float(mass_earth) * EARTH_MASS
-
-
-def kg_to_earth_masses(mass_kg: float) -> float:
-    """Convert a mass in kg to Earth masses."""
-    return float(mass_kg) / EARTH_MASS

@@ -43,15 +43,7 @@ from .constants import (
     MOLAR_MASS_O,
     MOLAR_MASS_SI,
 )
-
-FORM_VINET = 0
-FORM_BM3 = 1
-FORM_INCOMPRESSIBLE = 2
-FORM_NAMES = {FORM_VINET: "Vinet", FORM_BM3: "Birch-Murnaghan 3rd order", FORM_INCOMPRESSIBLE: "incompressible"}
-
-# Column indices of a material row handed to the numba kernels.
-COL_FORM, COL_RHO0, COL_K0, COL_KP, COL_GAMMA0, COL_Q, COL_CV = range(7)
-N_COLS = 7
+from ._core.layout import FORM_BM3, FORM_INCOMPRESSIBLE, FORM_VINET, MATERIAL_COLUMNS  # noqa: F401
 
 #: Temperature of the cold compression curves [K].
 REFERENCE_TEMPERATURE = 300.0
@@ -72,8 +64,8 @@ class Material:
     cv: float = 0.0  # J/kg/K, Dulong-Petit 3nR/M; 0 switches the thermal pressure off
 
     def row(self) -> np.ndarray:
-        """The material as a float64 row for the kernels (columns COL_*)."""
-        return np.array([self.form, self.rho0, self.k0, self.kp, self.gamma0, self.q, self.cv], dtype=np.float64)
+        """The material as a float64 row for the kernels (columns MAT_* of :mod:`meltzone._core.layout`)."""
+        return np.array([getattr(self, name) for name in MATERIAL_COLUMNS], dtype=np.float64)
 
     def scaled_density(self, factor: float, label: str) -> "Material":
         """Same compression curve with every density multiplied by ``factor``."""

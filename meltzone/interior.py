@@ -7,7 +7,7 @@ Mass continuity and hydrostatic equilibrium with self-consistent gravity,
     dm/dr = 4 pi r^2 rho,     dP/dr = -G m rho / r^2,
 
 are integrated inward from the surface (m = M, P = P_surface) with classical
-RK4 in numba (:mod:`meltzone._structure_kernel`). The core-mantle boundary is
+RK4 in numba (:mod:`meltzone._core.structure`). The core-mantle boundary is
 where the enclosed mass falls to the core mass; mantle phase boundaries are
 where (P, T_ref) crosses a Clapeyron line of :mod:`meltzone.phases`; each is
 located inside its step by bisection so that no step straddles a density
@@ -150,7 +150,7 @@ def solve_structure(mass_kg: float, core_mass_kg: float, *, surface_pressure: fl
     with ``boundaries`` of shape (0, 3) gives a one-phase mantle. A
     ``core_mass_kg`` equal to ``mass_kg`` gives a planet of core material only.
     """
-    from . import _structure_kernel as k
+    from ._core import structure as k
 
     if mantle is None:
         mantle = mantle_materials(0.1)
@@ -167,9 +167,11 @@ def solve_structure(mass_kg: float, core_mass_kg: float, *, surface_pressure: fl
     guess = zeng2016_radius(mass_kg, min(core_mass_kg / mass_kg, 0.8))
     calls = [0]
 
+    scratch = np.empty((1, k.PATH_COLS))
+
     def resid(radius):
         calls[0] += 1
-        return k.residual_at(radius, *args)
+        return k.integrate_inward(radius, *args, scratch, False)[2]  # the same signature as the stored run
 
     # the residual falls with the radius: too small a planet leaves mass at the centre (> 0),
     # too large a one runs out of mass above it (< 0)
@@ -211,7 +213,7 @@ def solve_structure(mass_kg: float, core_mass_kg: float, *, surface_pressure: fl
 
 def _nodes_from_path(path, mass, core_mass, p_surface, t_ref, mantle_nodes, core_nodes, materials, calls,
                      core_row, mantle_rows) -> Interior:
-    from . import _structure_kernel as k
+    from ._core import structure as k
 
     r_all = path[:, k.PATH_R]
     region = path[:, k.PATH_REGION].astype(np.int64)

@@ -1,8 +1,8 @@
 """Melt layers through time: identity by overlap, events with refined times, and the run's summary.
 
-Input: the per-step melt intervals the kernel found (contiguous runs of mantle
-nodes with melt fraction phi > 0; :mod:`meltzone.evolution.kernel`), the
-history and the interior grid.
+Input: the :class:`~meltzone.evolution.contract.History` of a run (wrapped in a Result): its per-step melt
+intervals (contiguous runs of mantle nodes with melt fraction phi > 0), the temperature on every mantle node
+at every step, the mantle grid with its solidus, and its in-step evaluator.
 
 * Edges: a layer's top and bottom lie where T - T_sol crosses zero between its
   last molten node and the solid neighbour (linear interpolation), so layers
@@ -18,9 +18,9 @@ history and the interior grid.
   its isentropic melt fraction at the top passed it again), stagnant-lid-formed,
   inner-core-nucleated and last-melt.
 * Event times of formed, froze, last-melt, magma-ocean-ended, magma-ocean-reformed and
-  inner-core-nucleated are refined inside their step: the state is
-  interpolated by cubic Hermite polynomials (values and rates at both ends),
-  T(r) and phi(r) are rebuilt from it, and the crossing is found with
+  inner-core-nucleated are refined inside their step: the scheme's evaluator
+  (:meth:`History.at`) gives T(r), the regime's melt fraction and the centre's
+  freezing margin at any time, and the crossing is found with
   scipy.optimize.brentq to ``EVENT_TIME_TOLERANCE`` of the step length.
   The other events are given at the end of the step that shows them.
 """
@@ -41,38 +41,26 @@ EVENT_KINDS = ("formed", "froze", "split", "merged", "reached-surface", "reached
                "magma-ocean-reformed", "stagnant-lid-formed", "inner-core-nucleated", "last-melt")
 
 
-def _hermite(t, t0, t1, y0, y1, d0, d1):
-    h = t1 - t0
-    s = (t - t0) / h
-    h00 = 2 * s**3 - 3 * s**2 + 1
-    h10 = s**3 - 2 * s**2 + s
-    h01 = -2 * s**3 + 3 * s**2
-    h11 = s**3 - s**2
-    return h00 * y0 + h10 * h * d0 + h01 * y1 + h11 * h * d1
-
-
-class _Interp:
-    """State between two history steps (cubic Hermite on T_u, T_c and the lid)."""
-
-    def __init__(self, result):
-        self.r = result
-        h = result.history
-        self.t = h["time"]
-        self.cols = [(h["upper_temperature"], h["upper_temperature_rate"]),
-                     (h["core_temperature"], h["core_temperature_rate"]),
-                     (h["lid_thickness"], h["lid_rate"])]
-        self.stagnant = result.spec.convection.regime == "stagnant-lid"
-
-    def state(self, step, t):
-        """(T_u, T_c, lid) at time t inside step ``step`` (between history rows step-1 and step)."""
-        t0, t1 = self.t[step - 1], self.t[step]
-        vals = [_hermite(t, t0, t1, v[step - 1], v[step], d[step - 1], d[step]) for v, d in self.cols]
-        if not self.stagnant:
-            vals[2] = 0.0
-        return vals[0], vals[1], max(vals[2], 0.0)
-
-    def profile(self, step, t, with_diagnostics=False):
-        return self.r.profile_at_state(t, *self.state(step, t), with_diagnostics=with_diagnostics)
+def interval_edges(intervals: dict, temperature: np.ndarray, grid) -> np.ndarray:
+    """Sub-node edges of every melt interval: rows (r_top, P_top, r_bottom, P_bottom) where T - T_sol crosses
+    zero between the interval's end node and its solid neighbour (linear interpolation), the node itself at the
+    surface or the CMB. ``temperature``: the history's (steps, nodes) profiles; ``grid``: its MantleGrid."""
+    n = grid.n
+    step = np.asarray(intervals["step"], dtype=np.int64)
+    out = np.empty((len(step), 4))
+    for side, (key, offset) in enumerate((("top_node", 1), ("bottom_node", -1))):
+        node = np.asarray(intervals[key], dtype=np.int64)
+        nb = node + offset
+        inside = (nb >= 0) & (nb < n)
+        nbc = np.clip(nb, 0, n - 1)
+        e0 = temperature[step, node] - grid.solidus[node]
+        e1 = temperature[step, nbc] - grid.solidus[nbc]
+        cross = inside & (e0 > 0.0) & (e1 <= 0.0)
+        f = np.where(cross, e0 / np.where(cross, e0 - e1, 1.0), 0.0)
+        r, p = grid.radius[node], grid.pressure[node]
+        out[:, 2 * side] = np.where(cross, r + f * (grid.radius[nbc] - r), r)
+        out[:, 2 * side + 1] = np.where(cross, p + f * (grid.pressure[nbc] - p), p)
+    return out
 
 
 def _refine(fn, t0, t1):
@@ -97,13 +85,9 @@ def track(result):
     n_nodes = len(r_nodes)
     radius = it.radius
     h = result.history
-    t = h["time"]
+    t = h.time
     iv = result.intervals
-    interp = _Interp(result)
-    grid = result.kernel_inputs[0]
-    from .evolution import kernel as k
-
-    tsol = grid[k.G_TSOL]
+    tsol = h.grid.solidus
 
     steps = iv["step"]
     bottom_l = iv["bottom_node"].tolist()
@@ -120,18 +104,7 @@ def track(result):
     events = []
     next_id = 0
     prev: list[tuple[int, int, int, float]] = []  # (layer id, bottom node, top node, mass)
-    edges = np.empty((len(iv["step"]), 4))
-    if len(iv["step"]):
-        hist = np.zeros((len(t), k.N_H))
-        hist[:, k.H_T] = t
-        hist[:, k.H_TU] = h["upper_temperature"]
-        hist[:, k.H_TC] = h["core_temperature"]
-        hist[:, k.H_LID] = h["lid_thickness"]
-        ivk = np.zeros((len(iv["step"]), k.N_I))
-        ivk[:, k.I_STEP] = iv["step"]
-        ivk[:, k.I_TOP] = iv["top_node"]
-        ivk[:, k.I_BOTTOM] = iv["bottom_node"]
-        k.interval_edges(hist, ivk, *result.kernel_inputs, edges)
+    edges = interval_edges(iv, h.temperature, h.grid)
     touched_surface: set[int] = set()
     touched_cmb: set[int] = set()
 
@@ -143,8 +116,8 @@ def track(result):
                        "depth": depth_of(node) if node is not None else float("nan"),
                        "pressure": float(p_nodes[node]) if node is not None else float("nan")})
 
-    def excess(step, tt, lo, hi):
-        temp, _ = interp.profile(step, tt)
+    def excess(tt, lo, hi):
+        temp = h.at(tt).temperature
         return float(np.max(temp[lo:hi + 1] - tsol[lo:hi + 1]))
 
     for s in range(len(t)):
@@ -178,13 +151,13 @@ def track(result):
                 when = t[s]
                 if s > 0:
                     lo, hi = max(c[0] - 1, 0), min(c[1] + 1, n_nodes - 1)
-                    when = _refine(lambda tt: excess(s, tt, lo, hi), t[s - 1], t[s])
+                    when = _refine(lambda tt: excess(tt, lo, hi), t[s - 1], t[s])
                 add_event(when, "formed", ids[i], c[1])
         for j, lp in enumerate(links_prev):
             if not lp:
                 b, tp = prev[j][1], prev[j][2]
                 lo, hi = max(b - 1, 0), min(tp + 1, n_nodes - 1)
-                when = _refine(lambda tt: excess(s, tt, lo, hi), t[s - 1], t[s])
+                when = _refine(lambda tt: excess(tt, lo, hi), t[s - 1], t[s])
                 add_event(when, "froze", prev[j][0], tp)
         for i, c in enumerate(cur):
             lid = ids[i]
@@ -198,7 +171,7 @@ def track(result):
             row_layer.append(lid)
         prev = [(ids[i], c[0], c[1], c[2]) for i, c in enumerate(cur)]
 
-    _regime_events(result, interp, add_event, n_nodes)
+    _regime_events(h, add_event, n_nodes)
     events.sort(key=lambda e: (e["time"], EVENT_KINDS.index(e["kind"])))
     sel = np.asarray(row_interval, dtype=np.int64)
     steps_sel = iv["step"][sel].astype(np.int64)
@@ -227,44 +200,30 @@ def track(result):
     return table, events
 
 
-def _regime_events(result, interp, add_event, n_nodes):
-    from .evolution import kernel as k
-
-    h = result.history
-    t = h["time"]
+def _regime_events(h, add_event, n_nodes):
+    t = h.time
     regime = h["regime"]
-    par = result.kernel_inputs[3]
-    phi_c = par[k.P_PHI_C]
+    phi_c = h.critical_melt_fraction
     top = n_nodes - 1
     for s in range(1, len(t)):
         was_magma, is_magma = regime[s - 1] == 0, regime[s] == 0
         if was_magma != is_magma:
-            when = _refine(lambda tt: interp.profile(s, tt, True)[2][k.D_PHI_TOP] - phi_c, t[s - 1], t[s])
+            when = _refine(lambda tt: h.at(tt).regime_melt_fraction - phi_c, t[s - 1], t[s])
             add_event(when, "magma-ocean-ended" if was_magma else "magma-ocean-reformed", -1, top)
         if regime[s] == 2 and regime[s - 1] != 2:
             add_event(t[s], "stagnant-lid-formed", -1, top)
     ric = h["inner_core_radius"]
     if ric[0] <= 0.0 and np.any(ric > 0.0):
         s = int(np.argmax(ric > 0.0))
-        core = result.kernel_inputs[1]
-
-        def centre(tt):
-            tc = interp.state(s, tt)[1]
-            return core[k.C_TMELT, 0] - tc * core[k.C_F, 0]
-
-        add_event(_refine(centre, t[s - 1], t[s]), "inner-core-nucleated", -1, None)
+        add_event(_refine(lambda tt: h.at(tt).centre_freezing_margin_k, t[s - 1], t[s]), "inner-core-nucleated",
+                  -1, None)
     # melt is present while the profile shows some, or while the top of the adiabat is still above the
     # rheological transition (a magma ocean whose shallow melt the upper boundary layer hides)
     melt = np.where(regime == 0, np.inf, h["melt_mass"])
     if melt[-1] <= 0.0 and np.any(melt > 0.0):
         s = int(len(melt) - np.argmax(melt[::-1] > 0.0))  # first step of the final melt-free stretch
-        grid = result.kernel_inputs[0]
-
-        def most(tt):
-            temp, _ = interp.profile(s, tt)
-            return float(np.max(temp - grid[k.G_TSOL]))
-
-        add_event(_refine(most, t[s - 1], t[s]), "last-melt", -1, None)
+        add_event(_refine(lambda tt: float(np.max(h.at(tt).temperature - h.grid.solidus)), t[s - 1], t[s]),
+                  "last-melt", -1, None)
 
 
 #: Largest |relative energy-closure error| a run may end with and still count as closed; a run above it is

@@ -2,7 +2,7 @@
 
 Everything here is NumPy only: importing this module compiles nothing and does
 not import numba. The scalar numba twin of :func:`melt_fraction` lives in
-:mod:`meltzone._melt_kernel`.
+:mod:`meltzone._core.melt`.
 
 Pressures are in Pa and temperatures in K at the interface; the published fits
 are written in GPa and degrees C inside the private curve functions, each with
@@ -580,7 +580,7 @@ def katz_cpx_exhaustion(pressure_pa, solidus_k, liquidus_k):
 
 
 def melt_fraction(temperature_k, solidus_k, liquidus_k, aux1, aux2, law_code: int):
-    """Melt fraction phi in [0, 1] (vectorised twin of :func:`meltzone._melt_kernel.melt_fraction`).
+    """Melt fraction phi in [0, 1] (vectorised twin of :func:`meltzone._core.melt.melt_fraction`).
 
     * ``LAW_LINEAR``: phi = (T - T_sol) / (T_liq - T_sol) (common practice); aux unused.
     * ``LAW_KATZ2003`` (Katz, Spiegelman & Langmuir 2003, G3 4:1073, eqs. 2-7 with
@@ -613,7 +613,7 @@ def node_curves(model: MeltingModel, pressure_pa, law: str = "linear", water_wt_
     Returns a dict with contiguous float64 arrays ``"solidus"`` and ``"liquidus"`` [K]
     (solidus lowered by :func:`water_solidus_depression`), ``"aux1"`` and ``"aux2"`` (Katz
     law: T_cpx-out [K] and F_cpx-out; linear law: zeros) and the int ``"law_code"`` to pass
-    to :func:`meltzone._melt_kernel.melt_fraction`.
+    to :func:`meltzone._core.melt.melt_fraction`.
     """
     code = law_code(law)
     p = np.ascontiguousarray(np.atleast_1d(np.asarray(pressure_pa, dtype=np.float64)))

@@ -28,8 +28,6 @@ MANTLE_PHASES = (
     "ppv-dissociated",
     "oxides",
 )
-#: Phase code of the core nodes in the Interior.
-CORE_PHASE = -1
 
 
 @dataclass(frozen=True)

@@ -135,10 +135,8 @@ def _save(fig, path: Path, fmt: str) -> Path:
 
 
 def _mantle_depth_km(result) -> np.ndarray:
-    """Depth [km] of the mantle nodes (CMB first, as in the kernel grid)."""
-    from .evolution import kernel as k
-
-    return (result.interior.radius - result.kernel_inputs[0][k.G_R]) / 1e3
+    """Depth [km] of the mantle nodes (CMB first, as in the history's mantle grid)."""
+    return (result.interior.radius - result.history.grid.radius) / 1e3
 
 
 def _first_time(result) -> float:
@@ -305,7 +303,6 @@ def profiles(result, path, *, times_yr=None, n: int = 6) -> Path:
         The file written.
     """
     from .constants import YEAR
-    from .evolution import kernel as k
 
     path, fmt = _target(path)
     t_end = result.time[-1]
@@ -317,16 +314,16 @@ def profiles(result, path, *, times_yr=None, n: int = 6) -> Path:
             raise MeltzoneError(f"profile times must lie within the run (0 - {t_end / YEAR:.4g} yr)")
         times = np.minimum(times, t_end)
     depth = _mantle_depth_km(result)
-    grid = result.kernel_inputs[0]
+    grid = result.history.grid
     fig = _new_figure((7.0, 6.0))
     ax = fig.add_subplot()
     for z in result.flags():
         if z["kind"] == "extrapolated-melting":
             ax.axhspan(z["top_depth_m"] / 1e3, z["bottom_depth_m"] / 1e3, color="0.5", alpha=0.12, lw=0)
-    ax.fill_betweenx(depth, grid[k.G_TSOL], grid[k.G_TLIQ], color="tab:orange", alpha=0.15, lw=0,
+    ax.fill_betweenx(depth, grid.solidus, grid.liquidus, color="tab:orange", alpha=0.15, lw=0,
                      label="partial melting")
-    ax.plot(grid[k.G_TSOL], depth, color="tab:blue", lw=2, label="solidus")
-    ax.plot(grid[k.G_TLIQ], depth, color="tab:red", lw=2, label="liquidus")
+    ax.plot(grid.solidus, depth, color="tab:blue", lw=2, label="solidus")
+    ax.plot(grid.liquidus, depth, color="tab:red", lw=2, label="liquidus")
     from matplotlib import colormaps
 
     cmap = colormaps["viridis"]

@@ -6,8 +6,9 @@ per table, each readable with ``xarray.open_dataset(path, engine="h5netcdf", gro
 EOS materials on ``material``), ``history`` (``step``, coordinate ``time`` [s]), ``intervals``
 (``interval``), ``layers`` (``row``), ``events`` (``event``), ``snapshots`` (``snapshot`` x
 ``mantle_node``, coordinates ``snapshot_time`` and ``mantle_radius``), ``flags`` (``flag``) and
-``kernel`` (the evolution kernel's input arrays). Root attributes: the configuration as TOML, the
-sources of the laws used, the meltzone version and the UTC creation time.
+``scheme`` (the arrays the evolution scheme needs to rebuild a state inside a step). The history group also
+holds T and melt fraction on every mantle node at every step and the mantle grid. Root attributes: the
+configuration as TOML, the sources of the laws used, the meltzone version and the UTC creation time.
 
 Results are model estimates, not measurements.
 """
@@ -20,133 +21,57 @@ import numpy as np
 
 from .config import PlanetSpec
 from .errors import MeltzoneError, ResultsFileError
+from .evolution.contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, MantleGrid
+from .h5 import atomic_h5, write_coordinate, write_variable  # noqa: F401 (sweep files import them from here)
 from .interior import Interior
-
-#: History fields: name -> (kernel column name, unit, description).
-HISTORY_FIELDS = {
-    "time": ("H_T", "s", "model time since the start"),
-    "upper_temperature": ("H_TU", "K", "upper-mantle potential temperature"),
-    "core_temperature": ("H_TC", "K", "temperature at the top of the core"),
-    "surface_temperature": ("H_TS", "K", "surface temperature"),
-    "surface_heat_flow": ("H_QS", "W", "heat flow out of the surface"),
-    "cmb_heat_flow": ("H_QC", "W", "heat flow across the core-mantle boundary (out of the core)"),
-    "radiogenic_power": ("H_H", "W", "radiogenic heating of the mantle"),
-    "lid_thickness": ("H_LID", "m", "stagnant-lid thickness (0 when there is none)"),
-    "inner_core_radius": ("H_RIC", "m", "inner-core radius"),
-    "melt_mass": ("H_MELT", "kg", "mass of melt in the mantle"),
-    "regime": ("H_REGIME", "1", "0 magma ocean, 1 mobile lid, 2 stagnant lid"),
-    "top_melt_fraction": ("H_PHI_TOP", "1", "melt fraction at the top of the convecting mantle that sets the "
-                           "regime: batch on the adiabat until it first falls to phi_c, isentropic after"),
-    "upper_boundary_layer": ("H_DELTA_U", "m", "thickness of the upper thermal boundary layer"),
-    "lower_boundary_layer": ("H_DELTA_C", "m", "thickness of the lower thermal boundary layer"),
-    "lid_base_temperature": ("H_TL", "K", "temperature at the base of the lid (= T_u without a lid)"),
-    "stored_energy": ("H_E_STORED", "J", "stored heat of mantle and core (sensible + latent)"),
-    "heat_out_minus_radiogenic": ("H_OUT", "J", "time integral of surface heat flow minus radiogenic power"),
-    "atmosphere_h2o": ("H_ATM_H2O", "kg", "H2O in the atmosphere"),
-    "atmosphere_co2": ("H_ATM_CO2", "kg", "CO2 in the atmosphere"),
-    "upper_temperature_rate": ("H_DTU", "K/s", "dT_u/dt"),
-    "core_temperature_rate": ("H_DTC", "K/s", "dT_c/dt"),
-    "lid_rate": ("H_DLID", "m/s", "d(lid)/dt"),
-}
-
-REGIME_NAMES = {0: "magma ocean", 1: "mobile lid", 2: "stagnant lid"}
-
-#: Interval fields: name -> (kernel column, unit, description). Nodes count from the CMB (0) upward.
-INTERVAL_FIELDS = {
-    "step": ("I_STEP", "1", "history step the interval belongs to"),
-    "top_node": ("I_TOP", "1", "shallowest molten node"),
-    "bottom_node": ("I_BOTTOM", "1", "deepest molten node"),
-    "max_melt_fraction": ("I_MAX_PHI", "1", "largest melt fraction in the interval"),
-    "melt_mass": ("I_MASS", "kg", "melt mass in the interval"),
-    "full_top_node": ("I_FULL_TOP", "1", "shallowest fully molten node (-1: none)"),
-    "full_bottom_node": ("I_FULL_BOTTOM", "1", "deepest fully molten node (-1: none)"),
-    "mean_melt_fraction": ("I_MEAN_PHI", "1", "mass-weighted mean melt fraction"),
-}
-
 
 @dataclass
 class Result:
-    """Everything one run produced (SI units). ``history[name]`` and ``intervals[name]`` are arrays."""
+    """Everything one run produced (SI units): the spec, the interior, the melting model's id and the
+    scheme's :class:`~meltzone.evolution.contract.History`. ``history[name]`` is a series (or ``time``)."""
 
     spec: PlanetSpec
     interior: Interior
     melting_model: str
-    history: dict
-    intervals: dict
-    energy_closure: float
-    n_steps: int
-    n_rejected: int
+    history: History
     wall_time_s: float
-    kernel_inputs: tuple = field(default=(), repr=False)
     sources: tuple = ()
     _cache: dict = field(default_factory=dict, repr=False, compare=False)
-
-    @classmethod
-    def from_kernel(cls, spec, interior, model, grid, core, iso, par, law, hist, iv, state, wall):
-        from .evolution import kernel as k
-
-        history = {name: hist[:, getattr(k, col)].copy() for name, (col, _, _) in HISTORY_FIELDS.items()}
-        history["regime"] = history["regime"].astype(np.int8)
-        intervals = {name: iv[:, getattr(k, col)].copy() for name, (col, _, _) in INTERVAL_FIELDS.items()}
-        for name in ("step", "top_node", "bottom_node", "full_top_node", "full_bottom_node"):
-            intervals[name] = intervals[name].astype(np.int64)
-        de = history["stored_energy"][0] - history["stored_energy"]
-        out = history["heat_out_minus_radiogenic"]
-        scale = max(float(np.max(np.abs(de))), 1.0)
-        history["closure_error"] = (de - out) / scale
-        closure = float(abs(history["closure_error"][-1]))
-        return cls(spec=spec, interior=interior, melting_model=model.id, history=history, intervals=intervals,
-                   energy_closure=closure, n_steps=len(hist) - 1, n_rejected=int(state[8]), wall_time_s=wall,
-                   kernel_inputs=(grid, core, iso, par, law))
 
     # ------------------------------------------------------------------ views
     @property
     def time(self) -> np.ndarray:
-        return self.history["time"]
+        return self.history.time
+
+    @property
+    def intervals(self) -> dict:
+        return self.history.intervals
+
+    @property
+    def energy_closure(self) -> float:
+        return self.history.energy_closure
+
+    @property
+    def n_steps(self) -> int:
+        return self.history.n_steps
+
+    @property
+    def n_rejected(self) -> int:
+        return self.history.n_rejected
 
     def profile(self, step: int):
         """(temperature [K], melt fraction) on the mantle nodes at history step ``step``."""
-        return self.profile_at_state(self.time[step], *self.temperatures(step))
-
-    def temperatures(self, step: int) -> tuple[float, float, float]:
-        """(T_u [K], T_c [K], lid [m]) at history step ``step``."""
-        h = self.history
-        lid = float(h["lid_thickness"][step]) if self.spec.convection.regime == "stagnant-lid" else 0.0
-        return float(h["upper_temperature"][step]), float(h["core_temperature"][step]), lid
-
-    def profile_at_state(self, t: float, tu: float, tc: float, lid: float = 0.0, with_diagnostics=False):
-        """(temperature [K], melt fraction) on the mantle nodes for the given temperatures and lid;
-        with ``with_diagnostics`` also the kernel's diagnostics array (indices kernel.D_*)."""
-        from .evolution import kernel as k
-
-        grid, core, iso, par, law = self.kernel_inputs
-        n = grid.shape[1]
-        temp = np.empty(n)
-        phi = np.empty(n)
-        diag = np.empty(k.N_D)
-        k.profile_at(float(t), float(tu), float(tc), float(lid), grid, core, iso, par, law, temp, phi, diag)
-        return (temp, phi, diag) if with_diagnostics else (temp, phi)
-
-    def state_at(self, t: float) -> tuple[float, float, float]:
-        """(T_u [K], T_c [K], lid [m]) at model time ``t`` [s]: the stored step when ``t`` is one, otherwise
-        the cubic Hermite interpolation between the two steps around it (values and rates at both ends;
-        the interpolant :mod:`meltzone.layers` uses to refine event times)."""
-        times = self.time
-        t = float(t)
-        if not times[0] <= t <= times[-1]:
-            raise ValueError(f"time {t:g} s is outside the run ({times[0]:g} - {times[-1]:g} s)")
-        s = int(np.searchsorted(times, t, side="left"))
-        if times[s] == t:
-            return self.temperatures(s)
-        if "interp" not in self._cache:
-            from .layers import _Interp
-
-            self._cache["interp"] = _Interp(self)
-        return tuple(self._cache["interp"].state(s, t))
+        return self.history.temperature[step], self.history.melt_fraction[step]
 
     def profile_at_time(self, t: float):
-        """(temperature [K], melt fraction) on the mantle nodes at model time ``t`` [s] (see :meth:`state_at`)."""
-        return self.profile_at_state(t, *self.state_at(t))
+        """(temperature [K], melt fraction) on the mantle nodes at model time ``t`` [s]: the recorded profile
+        when ``t`` is a step, otherwise the scheme's state inside the step (:meth:`History.at`)."""
+        times = self.time
+        s = int(np.searchsorted(times, t, side="left"))
+        if s < len(times) and times[s] == t:
+            return self.profile(s)
+        inside = self.history.at(t)
+        return inside.temperature, inside.melt_fraction
 
     def tracked(self):
         """(layer table, events) from :func:`meltzone.layers.track`, computed once (read from the file when
@@ -185,7 +110,7 @@ class Result:
         if times is None and "snapshots" in self._cache:
             return self._cache["snapshots"]
         t = snapshot_times(self) if times is None else np.unique(np.asarray(times, dtype=np.float64))
-        n = self.kernel_inputs[0].shape[1]
+        n = self.history.grid.n
         temp = np.empty((len(t), n))
         phi = np.empty((len(t), n))
         for i, ti in enumerate(t):
@@ -248,139 +173,13 @@ def collect_sources(result) -> tuple[str, ...]:
     return run_sources(result.spec, model, result.interior.materials)
 
 
-# ====================================================================== HDF5 primitives
-# Conventions (netCDF-4 / xarray h5netcdf engine): each coordinate is a 1-D dataset made a
-# dimension scale under its own name; every variable attaches a scale to each axis and carries
-# `units` and `long_name`; a dimension without coordinate values gets the netCDF marker scale.
-# Groups are created with track_order=True; data are gzip + shuffle compressed.
-
-NETCDF_DIM_MARKER = "This is a netCDF dimension but not a netCDF variable."
-
-
-def _compression(data) -> dict:
-    arr = np.asarray(data)
-    if arr.ndim == 0 or arr.size < 16 or arr.dtype.kind in "SUO":
-        return {}
-    return {"compression": "gzip", "compression_opts": 4, "shuffle": True}
-
-
-def write_coordinate(group, name: str, values, units: str, long_name: str, growable: bool = False):
-    """A 1-D coordinate dataset, made a dimension scale named after itself."""
-    values = np.asarray(values)
-    kwargs = _compression(values)
-    if growable:
-        kwargs.update(maxshape=(None,), chunks=(max(min(len(values), 4096), 1),))
-    ds = group.create_dataset(name, data=values, **kwargs)
-    ds.attrs["units"] = units
-    ds.attrs["long_name"] = long_name
-    ds.make_scale(name)
-    return ds
-
-
-def write_dimension(group, name: str, length: int):
-    """A dimension without coordinate values (netCDF marker scale of float32 zeros)."""
-    ds = group.create_dataset(name, shape=(length,), dtype="f4")
-    ds.make_scale(f"{NETCDF_DIM_MARKER}{length:10d}")
-    return ds
-
-
-def write_variable(group, name: str, data, dims: tuple[str, ...], units: str, long_name: str,
-                   growable: bool = False):
-    """A data variable with a scale attached to every axis, in order."""
-    data = np.asarray(data)
-    if data.dtype == bool:
-        data = data.astype(np.int8)
-    if data.dtype.kind == "U":
-        data = data.astype(object)
-        import h5py
-
-        ds = group.create_dataset(name, data=data, dtype=h5py.string_dtype())
-    else:
-        kwargs = _compression(data)
-        if growable and data.ndim >= 1:
-            kwargs.update(maxshape=(None,) + data.shape[1:],
-                          chunks=(max(min(data.shape[0], 4096), 1),) + data.shape[1:])
-        ds = group.create_dataset(name, data=data, **kwargs)
-    if len(dims) != data.ndim:
-        raise ValueError(f"{name}: {data.ndim} axes but dims {dims}")
-    for axis, dim in enumerate(dims):
-        ds.dims[axis].attach_scale(group[dim])
-    ds.attrs["units"] = units
-    ds.attrs["long_name"] = long_name
-    return ds
-
-
-def _remove_stale_temporaries(target: str) -> None:
-    """Remove the temporaries of ``target`` (``.NAME.PID.*.part``) whose writer process is gone (killed
-    while writing); those of a live process are left alone."""
-    import glob
-    import os
-
-    prefix = os.path.join(os.path.dirname(target), "." + os.path.basename(target) + ".")
-    for tmp in glob.glob(glob.escape(prefix) + "*.part"):
-        pid = tmp[len(prefix):].partition(".")[0]
-        if not pid.isdigit():
-            continue
-        try:
-            os.kill(int(pid), 0)
-        except ProcessLookupError:
-            try:
-                os.unlink(tmp)
-            except OSError:
-                pass
-        except OSError:  # alive under another user (EPERM): not ours to remove
-            pass
-
-
-def atomic_h5(path):
-    """Context manager: an h5py.File opened on a temporary name in the target folder, moved into place
-    (os.replace) only when the block succeeds; the temporary is removed on failure. The temporary's name
-    holds the writer's process id, and temporaries of the same target left by a process that is gone are
-    removed first."""
-    import contextlib
-    import os
-    import tempfile
-
-    import h5py
-
-    @contextlib.contextmanager
-    def manager():
-        target = os.path.abspath(os.fspath(path))
-        folder = os.path.dirname(target) or "."
-        _remove_stale_temporaries(target)
-        fd, tmp = tempfile.mkstemp(prefix=f".{os.path.basename(target)}.{os.getpid()}.", suffix=".part",
-                                   dir=folder)
-        os.close(fd)
-        try:
-            with h5py.File(tmp, "w", track_order=True) as f:
-                yield f
-            with open(tmp, "rb+") as fh:  # the bytes reach the disk before the name points at them
-                os.fsync(fh.fileno())
-            umask = os.umask(0)
-            os.umask(umask)
-            os.chmod(tmp, 0o666 & ~umask)  # mkstemp made it 0600; give it the mode a plain open() would
-            os.replace(tmp, target)
-            with contextlib.suppress(OSError):  # and the rename itself survives a crash
-                dir_fd = os.open(folder, os.O_RDONLY)
-                try:
-                    os.fsync(dir_fd)
-                finally:
-                    os.close(dir_fd)
-        except BaseException:
-            with contextlib.suppress(OSError):
-                os.unlink(tmp)
-            raise
-
-    return manager()
-
-
-# ====================================================================== the run file (schema version 1)
+# ====================================================================== the run file
 #: Value of the root attribute ``meltzone_kind`` of a single-run file (sweep files carry "sweep").
 RUN_KIND = "run"
 #: Kinds of meltzone HDF5 files.
 FILE_KINDS = ("run", "sweep")
 #: Version of the run-file layout below; :func:`load` refuses any other.
-SCHEMA_VERSION = 2  # 2: kernel parameters P_NU_A, P_T_SOLID, P_BLEND (43 in all)
+SCHEMA_VERSION = 3  # 3: history T and melt fraction per node, mantle grid, switch times; scheme group
 
 #: structure group, node arrays: file name -> (Interior attribute, unit, long name). Nodes run centre -> surface.
 STRUCTURE_ARRAYS = {
@@ -422,9 +221,19 @@ MATERIAL_FIELDS = {
     "material_cv": ("cv", "J/kg/K", "heat capacity of the thermal pressure (0: none)"),
     "material_source": ("source", "1", "source of the parameters"),
 }
-#: history group extra column (derived from the stored energy).
-CLOSURE_FIELD = ("1", "relative energy-closure error: (stored-energy loss - time-integrated surface heat loss net "
-                 "of radiogenic heating) / largest stored-energy change")
+#: history group: the mantle grid on ``mantle_node``: file name -> (MantleGrid attribute, unit, long name).
+GRID_FIELDS = {
+    "mantle_radius": ("radius", "m", "radius of the mantle node"),
+    "mantle_pressure": ("pressure", "Pa", "pressure at the mantle node"),
+    "mantle_mass": ("mass", "kg", "mass the mantle node stands for"),
+    "solidus": ("solidus", "K", "solidus temperature"),
+    "liquidus": ("liquidus", "K", "liquidus temperature"),
+}
+#: history group: profiles on (step, mantle_node): History attribute -> (unit, long name).
+PROFILE_FIELDS = {
+    "temperature": ("K", "mantle temperature at the end of the step"),
+    "melt_fraction": ("1", "melt fraction at the end of the step"),
+}
 #: layers group (rows of meltzone.layers.track): column -> (unit, long name).
 LAYER_COLUMNS = {
     "layer": ("1", "layer id, kept through time by node overlap"),
@@ -462,22 +271,10 @@ FLAG_COLUMNS = {
     "source": ("source", "1", "source of the boundary, curve or data limit"),
     "confidence": ("confidence", "1", "confidence word: high (measured), medium (shock data), low (ab initio only)"),
 }
-#: Root attributes that hold the Result's scalars.
-_RESULT_ATTRS = ("melting_model", "energy_closure", "n_steps", "n_rejected", "wall_time_s")
+#: Root attributes that hold the Result's scalars (the first two are read back, the others follow the history).
+_RESULT_ATTRS = ("melting_model", "wall_time_s", "energy_closure", "n_steps", "n_rejected")
 #: Note stored in the file and printed with every report.
 MODEL_NOTE = "Results are model estimates, not measurements."
-
-
-def _kernel_names(prefix: str, n: int) -> list[str]:
-    """Names of the kernel's index constants ``prefix*`` (row i -> name), e.g. G_R, G_P, ... for the grid."""
-    from .evolution import kernel as k
-
-    names = [""] * n
-    for attr in dir(k):
-        value = getattr(k, attr)
-        if attr.startswith(prefix) and isinstance(value, int) and 0 <= value < n:
-            names[value] = attr
-    return names
 
 
 def _write_table(group, dim: str, n: int, columns: dict, fields: dict, dim_long_name: str, aux=()):
@@ -523,53 +320,79 @@ def _write_structure(g, it: Interior):
 
 
 def _write_snapshots(g, result, snaps):
-    it = result.interior
-    grid = result.kernel_inputs[0]
-    from .evolution import kernel as k
-
+    grid = result.history.grid
     g.attrs["description"] = ("temperature and melt fraction on the mantle nodes (CMB -> surface) at chosen model "
                               "times: log-spaced and at every event; between steps the state is interpolated")
     n_snap, n_node = snaps["temperature"].shape
     write_coordinate(g, "snapshot", np.arange(n_snap, dtype=np.int64), "1", "snapshot index")
-    write_coordinate(g, "mantle_node", np.arange(n_node, dtype=np.int64), "1", "mantle node index, CMB (0) to surface")
+    _write_mantle_grid(g, grid, result.interior.radius)
     write_variable(g, "snapshot_time", snaps["time"], ("snapshot",), "s", "model time of the snapshot")
     write_variable(g, "snapshot_label", np.asarray(snaps["label"], dtype=str), ("snapshot",), "1",
                    "why the snapshot was taken: initial, final, log-spaced or the events at that time")
-    write_variable(g, "mantle_radius", grid[k.G_R], ("mantle_node",), "m", "radius of the mantle node")
-    write_variable(g, "mantle_depth", it.radius - grid[k.G_R], ("mantle_node",), "m", "depth of the mantle node")
-    write_variable(g, "mantle_pressure", grid[k.G_P], ("mantle_node",), "Pa", "pressure at the mantle node")
-    aux_node = "mantle_radius mantle_depth mantle_pressure"
-    for name, row, long_name in (("solidus", k.G_TSOL, "solidus temperature"),
-                                 ("liquidus", k.G_TLIQ, "liquidus temperature")):
-        write_variable(g, name, grid[row], ("mantle_node",), "K", long_name).attrs["coordinates"] = aux_node
     for name, unit, long_name in (("temperature", "K", "mantle temperature"),
                                   ("melt_fraction", "1", "melt fraction")):
         ds = write_variable(g, name, snaps[name], ("snapshot", "mantle_node"), unit, long_name)
-        ds.attrs["coordinates"] = "snapshot_time snapshot_label " + aux_node
+        ds.attrs["coordinates"] = "snapshot_time snapshot_label " + _MANTLE_AUX
 
 
-def _write_kernel(g, result):
-    grid, core, iso, par, law = result.kernel_inputs
-    g.attrs["description"] = ("the evolution kernel's input arrays (meltzone.evolution.kernel), so that a loaded "
-                              "run can rebuild T(r) and melt fraction at any state; rows named by *_name")
-    mixed = "mixed SI (see the row names)"
-    for dim, n, prefix, long_name in (("grid_row", grid.shape[0], "G_", "mantle grid row"),
-                                      ("core_row", core.shape[0], "C_", "core grid row"),
-                                      ("parameter", len(par), "P_", "kernel parameter")):
-        write_coordinate(g, dim, np.arange(n, dtype=np.int64), "1", long_name)
-        write_variable(g, f"{dim}_name", np.array(_kernel_names(prefix, n), dtype=str), (dim,), "1",
-                       f"{long_name} name (kernel index constant)")
-    write_coordinate(g, "mantle_node", np.arange(grid.shape[1], dtype=np.int64), "1", "mantle node, CMB (0) up")
-    write_coordinate(g, "core_node", np.arange(core.shape[1], dtype=np.int64), "1", "core node, centre (0) up")
-    write_coordinate(g, "isotope", np.arange(iso.shape[0], dtype=np.int64), "1",
-                     "radiogenic isotope (U-238, U-235, Th-232, K-40)")
-    write_coordinate(g, "isotope_column", np.arange(iso.shape[1], dtype=np.int64), "1",
-                     "0: heat production today [W/kg of mantle], 1: decay constant [1/s]")
-    write_variable(g, "grid", grid, ("grid_row", "mantle_node"), mixed, "mantle grid (kernel G_* rows)")
-    write_variable(g, "core", core, ("core_row", "core_node"), mixed, "core grid (kernel C_* rows)")
-    write_variable(g, "iso", iso, ("isotope", "isotope_column"), mixed, "isotope table")
-    write_variable(g, "par", par, ("parameter",), mixed, "scalar parameters (kernel P_* indices)")
-    write_variable(g, "law", np.int64(law), (), "1", "melt-fraction law code")
+_MANTLE_AUX = "mantle_radius mantle_depth mantle_pressure"
+
+
+def _write_mantle_grid(g, grid: MantleGrid, radius: float):
+    """The ``mantle_node`` dimension and the grid on it (GRID_FIELDS plus the depth)."""
+    write_coordinate(g, "mantle_node", np.arange(grid.n, dtype=np.int64), "1", "mantle node index, CMB (0) to surface")
+    for name, (attr, unit, long_name) in GRID_FIELDS.items():
+        ds = write_variable(g, name, getattr(grid, attr), ("mantle_node",), unit, long_name)
+        if name in ("solidus", "liquidus", "mantle_mass"):
+            ds.attrs["coordinates"] = _MANTLE_AUX
+        if name == "mantle_radius":
+            write_variable(g, "mantle_depth", radius - grid.radius, ("mantle_node",), "m", "depth of the mantle node")
+
+
+def _write_history(g, h: History, radius: float):
+    g.attrs["critical_melt_fraction"] = h.critical_melt_fraction
+    g.attrs["n_rejected"] = np.int64(h.n_rejected)
+    for name, when in h.switch_times.items():  # NaN: the switch never happened
+        g.attrs[f"switch_time_{name}"] = np.nan if when is None else float(when)
+    columns = {"time": h.time, **h.series}
+    fields = {"time": ("s", "model time since the start")}
+    fields.update({name: (unit, long) for name, (unit, long, _) in SERIES.items() if name in h.series})
+    _write_table(g, "step", len(h.time), columns, fields, "history step", aux=("time",))
+    _write_mantle_grid(g, h.grid, radius)
+    for name, (unit, long_name) in PROFILE_FIELDS.items():
+        ds = write_variable(g, name, getattr(h, name), ("step", "mantle_node"), unit, long_name)
+        ds.attrs["coordinates"] = "time " + _MANTLE_AUX
+
+
+def _read_history(f) -> History:
+    g = f["history"]
+    series = {name: _read(g[name]) for name in SERIES if name in g}
+    grid = MantleGrid(**{attr: _read(g[name]) for name, (attr, _, _) in GRID_FIELDS.items()})
+    prefix = "switch_time_"
+    switch = {k[len(prefix):]: (None if np.isnan(v) else float(v)) for k, v in g.attrs.items()
+              if k.startswith(prefix)}
+    intervals = {name: _read(f["intervals"][name]) for name in INTERVAL_FIELDS}
+    for name in INTEGER_INTERVAL_FIELDS:
+        intervals[name] = intervals[name].astype(np.int64)
+    s = f["scheme"]
+    data = {str(name): _read(s[name]) for name in s.attrs["data_names"]}
+    return History(scheme=str(s.attrs["scheme"]), time=_read(g["time"]), series=series,
+                   temperature=_read(g["temperature"]), melt_fraction=_read(g["melt_fraction"]),
+                   intervals=intervals, grid=grid, critical_melt_fraction=float(g.attrs["critical_melt_fraction"]),
+                   switch_times=switch, n_rejected=int(g.attrs["n_rejected"]), scheme_data=data)
+
+
+def _write_scheme(g, h: History):
+    g.attrs["scheme"] = h.scheme
+    g.attrs["description"] = (f"the arrays the {h.scheme} scheme needs to rebuild the state inside a step (their "
+                              "meaning is the scheme's own); each axis is an index dimension <name>_dim<axis>")
+    g.attrs["data_names"] = np.array(list(h.scheme_data), dtype=object)
+    for name, values in h.scheme_data.items():
+        values = np.asarray(values)
+        dims = tuple(f"{name}_dim{axis}" for axis in range(values.ndim))
+        for dim, n in zip(dims, values.shape):
+            write_coordinate(g, dim, np.arange(n, dtype=np.int64), "1", f"index of {name}, axis {dim[-1]}")
+        write_variable(g, name, values, dims, "mixed SI", f"{h.scheme} scheme data {name!r}")
 
 
 def write(result: Result, path, snapshot_times=None):
@@ -577,7 +400,7 @@ def write(result: Result, path, snapshot_times=None):
 
     Groups (each opens with ``xarray.open_dataset(path, engine="h5netcdf", group=NAME)``):
     ``structure``, ``history``, ``intervals``, ``layers``, ``events``, ``snapshots``, ``flags``,
-    ``kernel``; the root attributes hold the configuration as TOML, the sources of the laws,
+    ``scheme``; the root attributes hold the configuration as TOML, the sources of the laws,
     the meltzone version and the schema version. ``snapshot_times`` [s] replace the default
     snapshot times (:func:`snapshot_times`). Returns the path written.
     """
@@ -613,13 +436,10 @@ def write(result: Result, path, snapshot_times=None):
                 return g
 
             _write_structure(group("structure", ""), result.interior)
-            h = result.history
-            fields = {name: (unit, long) for name, (_, unit, long) in HISTORY_FIELDS.items()}
-            fields["closure_error"] = CLOSURE_FIELD
-            _write_table(group("history", "time series, one row per accepted step"), "step", len(h["time"]),
-                         {name: h[name] for name in fields}, fields, "history step", aux=("time",))
+            _write_history(group("history", "time series, one row per accepted step, with T and melt fraction "
+                                 "on every mantle node"), result.history, result.interior.radius)
             iv = result.intervals
-            fields = {name: (unit, long) for name, (_, unit, long) in INTERVAL_FIELDS.items()}
+            fields = INTERVAL_FIELDS
             _write_table(group("intervals", "contiguous runs of mantle nodes with melt fraction > 0 at each step "
                                "(nodes counted from the CMB)"), "interval", len(iv["step"]), iv, fields,
                          "melt interval")
@@ -637,7 +457,7 @@ def write(result: Result, path, snapshot_times=None):
             _write_table(group("flags", "mantle depths that rest on theory or extrapolated laws"), "flag",
                          len(zones), {name: cols[key] for key, (name, _, _) in FLAG_COLUMNS.items()}, fields,
                          "flagged zone")
-            _write_kernel(group("kernel", ""), result)
+            _write_scheme(group("scheme", ""), result.history)
     except OSError as exc:
         raise ResultsFileError(f"cannot write results file {str(path)!r}: {exc.strerror or exc}") from None
     return path
@@ -721,11 +541,7 @@ def load(path) -> Result:
             values["materials"] = tuple(Material(**{attr: _scalar(cols[attr][i]) for attr in cols})
                                         for i in range(len(cols["name"])))
             interior = Interior(**values)
-            history = {name: _read(f["history"][name]) for name in [*HISTORY_FIELDS, "closure_error"]}
-            intervals = {name: _read(f["intervals"][name]) for name in INTERVAL_FIELDS}
-            g = f["kernel"]
-            kernel_inputs = (_read(g["grid"]), _read(g["core"]), _read(g["iso"]), _read(g["par"]),
-                             int(_read(g["law"])))
+            history = _read_history(f)
             table = {name: _read(f["layers"][name]) for name in LAYER_COLUMNS if name in f["layers"]}
             ev = {name: _read(f["events"][name]) for name in EVENT_COLUMNS}
             events = [{"time": float(ev["time"][i]), "kind": str(ev["kind"][i]), "layer": int(ev["layer"][i]),
@@ -737,13 +553,18 @@ def load(path) -> Result:
             g = f["snapshots"]
             snaps = {"time": _read(g["snapshot_time"]), "label": _read(g["snapshot_label"]).astype(str),
                      "temperature": _read(g["temperature"]), "melt_fraction": _read(g["melt_fraction"])}
-            scalars = {name: _scalar(f.attrs[name]) for name in _RESULT_ATTRS}
+            scalars = {name: _scalar(f.attrs[name]) for name in _RESULT_ATTRS[:2]}
             sources = tuple(str(s) for s in f.attrs["sources"])
         except MeltzoneError as exc:
             raise ResultsFileError(f"{str(path)!r}: the stored configuration does not load: {exc}") from None
         except (KeyError, ValueError, TypeError, OSError) as exc:
             raise ResultsFileError(f"{str(path)!r} is a damaged or incomplete meltzone run file ({exc})") from None
-    result = Result(spec=spec, interior=interior, history=history, intervals=intervals,
-                    kernel_inputs=kernel_inputs, sources=sources, **scalars)
+    from .evolution.schemes import get_scheme
+
+    try:
+        history.evaluator = get_scheme(history.scheme).evaluator(history)
+    except MeltzoneError as exc:
+        raise ResultsFileError(f"{str(path)!r}: {exc}") from None
+    result = Result(spec=spec, interior=interior, history=history, sources=sources, **scalars)
     result._cache.update(tracked=(table, events), flags=zones, snapshots=snaps)
     return result

@@ -256,7 +256,7 @@ def test_mass_limit_covers_the_default_melting_model_at_any_core_fraction():
 def test_melting_range_error_names_mass_and_model():
     """A melting model whose range ends below the mantle's pressure (katz2003: 10 GPa; an Earth's CMB is
     ~136 GPa, PREM) is refused before any evolution, naming planet.mass_earth and melting.model."""
-    from meltzone.evolution import evolve
+    from meltzone import evolve
     from meltzone.interior import build_interior
 
     spec = PlanetSpec(model="katz2003")

@@ -9,9 +9,9 @@ import pytest
 
 from meltzone.config import PlanetSpec
 from meltzone.constants import GYR, YEAR
-from meltzone.evolution import evolve
 from meltzone.evolution.heating import BSE_MASS, radiogenic_power
 from meltzone.layers import summarize
+from meltzone.pipeline import evolve
 
 
 # ------------------------------------------------------------------ radiogenic heating
@@ -114,14 +114,14 @@ def test_weak_scaling_stage_never_turns_back_into_a_magma_ocean(earth_weak):
     """The warming mantle of the plate-tectonic stage peaks above the potential temperature at which its adiabat
     is 40% molten at the surface (batch), but stays solid-state convection: the regime follows the isentropic
     melt fraction once the top has been below phi_c (McKenzie & Bickle 1988 batch isentropic melting)."""
-    from meltzone.evolution import kernel as k
+    from meltzone.melting import melt_fraction
 
     h = earth_weak.history
-    grid, _, _, par, law = earth_weak.kernel_inputs[:5]
-    top = grid.shape[1] - 1
+    grid = h.grid
     after = _after_magma_ocean(h)
     peak = float(np.max(h["upper_temperature"][after:]))
-    assert k.node_melt(peak * grid[k.G_F, top], grid, top, law) > par[k.P_PHI_C]
+    top_of_adiabat = peak * earth_weak.interior.adiabat[-1]
+    assert melt_fraction(top_of_adiabat, grid.solidus[-1], grid.liquidus[-1], 0.0, 0.0, 0) > h.critical_melt_fraction
     assert not np.any(h["regime"][after:] == 0)
 
 
@@ -152,27 +152,26 @@ def test_weak_scaling_mantle_warms_then_cools(earth_weak):
 
 
 def test_switch_lands_on_the_crossing_whatever_the_step():
-    """The solidification switch (P_T_SOLID) is located on the first phi_c crossing, so it and the final state do
-    not depend on the temperature-step bound (measured: 204.50-204.56 kyr and 1334.16 C at 10, 2 and 0.5 K)."""
-    from meltzone.evolution import kernel as k
-
+    """The solidification switch (History.switch_times["rheological_switch"]) is located on the first phi_c
+    crossing, so it and the final state do not depend on the temperature-step bound (measured: 204.50-204.56 kyr
+    and 1334.16 C at 10, 2 and 0.5 K)."""
     runs = [evolve(PlanetSpec(mass_earth=1.0, end_time_gyr=4.5, max_temperature_step_k=dt, **WEAK)) for dt in (10, 1)]
-    t_solid = [r.kernel_inputs[3][k.P_T_SOLID] for r in runs]
+    t_solid = [r.history.switch_times["rheological_switch"] for r in runs]
     assert t_solid[0] == pytest.approx(t_solid[1], rel=1e-3)
     assert runs[0].history["upper_temperature"][-1] == pytest.approx(runs[1].history["upper_temperature"][-1],
                                                                       abs=0.1)
 
 
 def test_switch_row_matches_its_rebuilt_profile(earth_weak):
-    """The history row at the switch holds the solidified mantle's diagnostics, the same as a rebuild from the
-    stored state (post-processing re-evaluates the kernel at recorded times)."""
-    from meltzone.evolution import kernel as k
-
+    """The history row at the switch holds the solidified mantle's state, the same as the scheme's rebuild at that
+    time (post-processing re-evaluates the scheme at recorded times): profile and regime melt fraction to 1e-9."""
     h = earth_weak.history
-    s = int(np.argmin(np.abs(h["time"] - earth_weak.kernel_inputs[3][k.P_T_SOLID])))
-    _, _, diag = earth_weak.profile_at_state(h["time"][s], *earth_weak.temperatures(s), with_diagnostics=True)
-    assert diag[k.D_DELTA_U] == pytest.approx(h["upper_boundary_layer"][s], rel=1e-9)
-    assert diag[k.D_PHI_TOP] == pytest.approx(h["top_melt_fraction"][s], rel=1e-9, abs=1e-12)
+    switch = h.switch_times["rheological_switch"]
+    s = int(np.argmin(np.abs(h.time - switch)))
+    assert h.time[s] == switch
+    inside = h.at(h.time[s])
+    assert np.allclose(inside.temperature, h.temperature[s], rtol=1e-9, atol=0.0)
+    assert inside.regime_melt_fraction == pytest.approx(h["top_melt_fraction"][s], rel=1e-9, abs=1e-12)
 
 
 def test_magma_ocean_forms_again_when_the_solid_law_cannot_carry_the_heat():
@@ -284,15 +283,13 @@ def test_lid_growth_integral_solution(lid_run):
     lid follows it within 3% (T_u drifts by a few K over the run)."""
     r = lid_run
     h = r.history
-    par = r.kernel_inputs[3]
-    from meltzone.evolution import kernel as k
-
-    rho_c = par[k.P_RHO_TOP] * par[k.P_CM]
+    cv = r.spec.convection
+    rho_c = r.interior.rho[-1] * cv.mantle_heat_capacity
     t = h["time"]
     sel = t > 1e6 * YEAR
     dt_lid = h["lid_base_temperature"] - h["surface_temperature"]
-    dt_mean = h["upper_temperature"] - 0.5 * (par[k.P_T_EQ] + h["lid_base_temperature"])
-    rate = 2 * par[k.P_K] * dt_lid / (rho_c * dt_mean)
+    dt_mean = h["upper_temperature"] - 0.5 * (r.spec.surface.equilibrium_temperature_k + h["lid_base_temperature"])
+    rate = 2 * cv.thermal_conductivity * dt_lid / (rho_c * dt_mean)
     d2 = 1e3**2 + np.concatenate([[0.0], np.cumsum(0.5 * (rate[1:] + rate[:-1]) * np.diff(t))])
     assert np.allclose(h["lid_thickness"][sel], np.sqrt(d2[sel]), rtol=0.03)
 
@@ -303,15 +300,13 @@ def test_lid_heat_flow_half_space(lid_run):
     integral method is ~3-12% off the error function, Goodman 1958)."""
     r = lid_run
     h = r.history
-    par = r.kernel_inputs[3]
-    from meltzone.evolution import kernel as k
-
-    kappa = par[k.P_K] / (par[k.P_RHO_TOP] * par[k.P_CM])
-    area = 4 * math.pi * par[k.P_RADIUS] ** 2
+    cv = r.spec.convection
+    kappa = cv.thermal_conductivity / (r.interior.rho[-1] * cv.mantle_heat_capacity)
+    area = 4 * math.pi * r.interior.radius ** 2
     t = h["time"]
     sel = t > 5e6 * YEAR
     q_model = h["surface_heat_flow"][sel] / area
-    q_half = par[k.P_K] * (h["lid_base_temperature"][sel] - h["surface_temperature"][sel]) / np.sqrt(
+    q_half = cv.thermal_conductivity * (h["lid_base_temperature"][sel] - h["surface_temperature"][sel]) / np.sqrt(
         math.pi * kappa * t[sel])
     assert np.allclose(q_model, q_half, rtol=0.15)
 
@@ -361,16 +356,19 @@ def test_recorded_budget_balances(earth):
 def test_growing_buffers_do_not_change_the_run():
     """Regression: when the interval buffer filled, the step was resumed from the advanced state under the old
     time. A run that grows tiny buffers many times must equal one that never fills them, bit for bit."""
-    from meltzone.evolution import build_arrays, initial_state, run_kernel
+    from meltzone import melting
+    from meltzone.evolution import boundary_layer
     from meltzone.interior import build_interior
 
     spec = PlanetSpec(mass_earth=1.0, end_time_gyr=0.5, mantle_nodes=64)
-    grid, core, iso, par, law, _ = build_arrays(spec, build_interior(spec))
-    y0, tu, tc = initial_state(spec, grid, core, par, law)
-    big = run_kernel(grid, core, iso, par, law, y0, (tu, tc), 10**6, history_rows=100000, interval_rows=100000)
-    small = run_kernel(grid, core, iso, par, law, y0, (tu, tc), 10**6, history_rows=8, interval_rows=8)
-    assert np.array_equal(big[0], small[0])
-    assert np.array_equal(big[1], small[1])
+    interior = build_interior(spec)
+    curves = melting.node_curves(melting.get_model(spec.melting.model), interior.P[interior.mantle])
+    big = boundary_layer.run(spec, interior, curves, history_rows=100000, interval_rows=100000)
+    small = boundary_layer.run(spec, interior, curves, history_rows=8, interval_rows=8)
+    assert np.array_equal(big.time, small.time)
+    assert all(np.array_equal(big.series[k], small.series[k]) for k in big.series)
+    assert np.array_equal(big.temperature, small.temperature)
+    assert all(np.array_equal(big.intervals[k], small.intervals[k]) for k in big.intervals)
 
 
 def test_coreless_planet_evolves():
@@ -379,3 +377,39 @@ def test_coreless_planet_evolves():
     assert np.all(r.history["cmb_heat_flow"] == 0.0)
     assert np.all(np.isfinite(r.history["upper_temperature"]))
     assert r.energy_closure <= 1e-4
+
+
+def test_history_keeps_the_contract(earth):
+    """The boundary-layer History fulfils the evolution contract (meltzone.evolution.contract: required series,
+    shapes, interval fields; History.check raises otherwise) and its recorded melt fraction is the melt law of
+    its recorded temperature on the mantle grid (meltzone.melting.melt_fraction, linear law; tolerance 1e-12)."""
+    from meltzone.melting import melt_fraction
+
+    h = earth.history
+    h.check()
+    assert h.temperature.shape == (len(h.time), h.grid.n)
+    phi = melt_fraction(h.temperature, h.grid.solidus, h.grid.liquidus, 0.0, 0.0, 0)
+    assert np.allclose(phi, h.melt_fraction, rtol=0.0, atol=1e-12)
+    assert h.switch_times["rheological_switch"] is not None
+
+
+def test_history_check_rejects_a_broken_history(earth):
+    """History.check names what breaks the contract: a missing required series and a profile of the wrong shape
+    (common practice: a validator that cannot fail is a defect)."""
+    import dataclasses
+
+    h = earth.history
+    broken = dataclasses.replace(h, series={k: v for k, v in h.series.items() if k != "core_temperature"})
+    with pytest.raises(ValueError, match="core_temperature"):
+        broken.check()
+    with pytest.raises(ValueError, match="profiles"):
+        dataclasses.replace(h, temperature=h.temperature[:, 1:]).check()
+
+
+def test_solid_start_has_its_switch_at_the_start():
+    """A run that starts below the rheological transition has its switch time at the start (t = 0); a run that
+    never reaches it reports None (the contract's "nothing happened")."""
+    solid = evolve(mass_earth=1.0, end_time_gyr=0.01, upper_temperature_k=1700.0)
+    assert solid.history.switch_times["rheological_switch"] == 0.0
+    molten = evolve(mass_earth=1.0, end_time_gyr=1e-6)
+    assert molten.history.switch_times["rheological_switch"] is None

@@ -1,44 +1,63 @@
-"""The numba boundary: nothing compiles or imports numba at `import meltzone`; the cache falls back when
-the package folder is read-only (STYLE pitfalls: "no locator available")."""
+"""The numba boundary: nothing compiles or imports numba at `import meltzone`; the numba cache never goes inside
+the installed package (STYLE pitfalls: a __pycache__ written into site-packages outlives the install)."""
 
 import os
 import subprocess
 import sys
+from pathlib import Path
+
+import meltzone
 
 
-def _python(code, **env):
-    full = dict(os.environ)
-    full.update(env)
-    return subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, env=full, check=True)
+def _python(code, env=None):
+    return subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          env=dict(os.environ) if env is None else env, check=True)
+
+
+def _without_cache_dir(tmp_path, **extra):
+    env = {k: v for k, v in os.environ.items() if k not in ("NUMBA_CACHE_DIR", "XDG_CACHE_HOME")}
+    env["HOME"] = str(tmp_path / "home")
+    env.update(extra)
+    return env
 
 
 def test_import_does_not_load_numba():
-    out = _python("import sys, meltzone, meltzone.cli, meltzone.config, meltzone.melting; "
+    out = _python("import sys, meltzone, meltzone.cli, meltzone.config, meltzone.melting, meltzone._core.layout; "
                   "print('numba' in sys.modules)").stdout.strip()
     assert out == "False"
 
 
 def test_kernel_import_compiles_nothing():
     """Importing the kernels defines dispatchers only (no signatures until the first call)."""
-    code = ("from meltzone.evolution import kernel as k; from meltzone import _structure_kernel as s; "
-            "print(len(k.integrate.signatures) + len(s.integrate_inward.signatures))")
+    code = ("from meltzone._core import loop, structure, physics; "
+            "print(len(loop.integrate.signatures) + len(structure.integrate_inward.signatures)"
+            " + len(physics.profile_at.signatures))")
     assert _python(code).stdout.strip() == "0"
 
 
-def test_cache_dir_fallback_when_package_is_read_only(tmp_path):
-    """With NUMBA_CACHE_DIR unset and the package folder not writable, _jit picks a writable folder."""
-    code = (
-        "import os\n"
-        "os.environ.pop('NUMBA_CACHE_DIR', None)\n"
-        "real = os.access\n"
-        "import meltzone\n"
-        "pkg = os.path.dirname(meltzone.__file__)\n"
-        "os.access = lambda p, m: False if os.path.abspath(p) == pkg else real(p, m)\n"
-        "import meltzone._jit as j\n"
-        "d = os.environ['NUMBA_CACHE_DIR']\n"
-        "print(d != pkg and real(d, os.W_OK))\n"
-    )
-    env = {k: v for k, v in os.environ.items() if k != "NUMBA_CACHE_DIR"}
-    env["HOME"] = str(tmp_path)
-    res = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, env=env, check=True)
-    assert res.stdout.strip() == "True"
+def test_cache_goes_to_the_per_user_folder_never_into_the_package(tmp_path):
+    """With NUMBA_CACHE_DIR unset, a small run writes its cache under $XDG_CACHE_HOME/meltzone/numba-<version>
+    and no *.nbi / *.nbc anywhere under the package folder."""
+    package = Path(meltzone.__file__).parent
+    before = {p for p in package.rglob("*.nb[ic]")}
+    cache = tmp_path / "xdg"
+    code = ("import meltzone; r = meltzone.evolve(mass_earth=1.0, end_time_gyr=1e-6, mantle_nodes=32, "
+            "integration_steps=200); import os; print(os.environ['NUMBA_CACHE_DIR'])")
+    out = _python(code, _without_cache_dir(tmp_path, XDG_CACHE_HOME=str(cache))).stdout.strip()
+    assert out == str(cache / "meltzone" / f"numba-{meltzone.__version__}")
+    assert {p for p in package.rglob("*.nb[ic]")} == before == set()
+    assert any(Path(out).rglob("loop.integrate-*.nbi"))
+    assert any(Path(out).rglob("*.nbc"))
+
+
+def test_cache_folder_without_xdg_and_when_unwritable(tmp_path):
+    """Without XDG_CACHE_HOME the cache goes to ~/.cache/meltzone/numba-<version>; when that cannot be made
+    (HOME is a file), to a temporary folder; never the package."""
+    code = "import meltzone._core._jit as j; print(j.CACHE_DIR)"
+    home = _python(code, _without_cache_dir(tmp_path)).stdout.strip()
+    assert home == str(tmp_path / "home" / ".cache" / "meltzone" / f"numba-{meltzone.__version__}")
+    blocked = tmp_path / "file"
+    blocked.write_text("")
+    temp = _python(code, _without_cache_dir(tmp_path, HOME=str(blocked))).stdout.strip()
+    assert not temp.startswith(str(blocked)) and os.access(temp, os.W_OK)
+    assert not temp.startswith(str(Path(meltzone.__file__).parent))

@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 from meltzone.constants import MYR, YEAR
-from meltzone.evolution import evolve
+from meltzone.pipeline import evolve
 from meltzone.layers import EVENT_KINDS, summarize, track
 
 PULSE = dict(mass_earth=1.0, regime="stagnant-lid", upper_temperature_k=1500.0, core_temperature_k=2500.0,

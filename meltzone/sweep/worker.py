@@ -4,7 +4,7 @@ This module is what a worker process (local process pool or Dask worker)
 imports. It stays light at import (numpy and the standard library only); the
 interior solver and the numba kernels are imported at the first case, and the
 kernels come from numba's on-disk cache (``NUMBA_CACHE_DIR``, inherited from
-the client's environment; see :mod:`meltzone._jit`), so a worker compiles
+the client's environment; see :mod:`meltzone._core._jit`), so a worker compiles
 nothing that another process has already compiled. The kernels live in
 importable modules, never in ``__main__``, so every worker finds them in the
 cache. The evolution is called only through the public ``meltzone.evolve``.

@@ -12,9 +12,9 @@ when a kernel compiles; numba's cache does not notice edits there, so clear
 
 from __future__ import annotations
 
-from meltzone._jit import njit
+from ._jit import njit
 
-from .melting import KATZ_BETA1, KATZ_BETA2, LAW_KATZ2003, LAW_LINEAR
+from ..melting import KATZ_BETA1, KATZ_BETA2, LAW_KATZ2003, LAW_LINEAR
 
 
 @njit

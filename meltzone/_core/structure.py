@@ -1,8 +1,9 @@
 """numba kernels of the interior solver: EOS evaluation and the inward RK4 integration.
 
-Plain floats and float64 arrays only. Material rows follow the column layout
-of :mod:`meltzone.eos` (form, rho0, K0, K0', gamma0, q, c_v); boundary rows are
-(P0, T0, slope) as in :func:`meltzone.phases.boundary_table`.
+Plain floats and float64 arrays only. Material rows follow the columns MAT_* of
+:mod:`meltzone._core.layout` (form, rho0, K0, K0', gamma0, q, c_v; built by
+:meth:`meltzone.eos.Material.row`); boundary rows are (P0, T0, slope) as in
+:func:`meltzone.phases.boundary_table`.
 
 State integrated inward from the surface, y = (m, P, T, I):
 
@@ -19,33 +20,28 @@ import math
 
 import numpy as np
 
+from ..constants import G
 from ._jit import njit
+from .layout import (BLEW_UP, EMPTIED, FORM_INCOMPRESSIBLE, FORM_VINET, MAT_CV, MAT_FORM, MAT_GAMMA0, MAT_K0,
+                     MAT_KP, MAT_Q, MAT_RHO0, OUT_OF_ROOM, PATH_COLS, PATH_I, PATH_M, PATH_P, PATH_R, PATH_REGION,
+                     PATH_RHO, PATH_T, REACHED_CENTRE)
 
-G = 6.67430e-11  # CODATA 2018; duplicated from constants.G as a literal so numba sees a constant
 FOUR_PI = 4.0 * math.pi
 EIGHT_PI_THIRD = 8.0 * math.pi / 3.0
-
-# Status codes returned by integrate_inward
-REACHED_CENTRE = 0
-EMPTIED = 1
-BLEW_UP = 2
-OUT_OF_ROOM = 3
-
-# Columns of the stored path
-PATH_R, PATH_M, PATH_P, PATH_T, PATH_I, PATH_RHO, PATH_REGION = range(7)
-PATH_COLS = 7
+#: temperature of the cold compression curves [K] (eos.REFERENCE_TEMPERATURE)
+T_COLD = 300.0
 
 
 @njit
 def cold_pressure(rho, mat):
     """Pressure of the 300 K compression curve [Pa]."""
-    form = int(mat[0])
-    rho0 = mat[1]
-    k0 = mat[2]
-    kp = mat[3]
-    if form == 2:
+    form = int(mat[MAT_FORM])
+    rho0 = mat[MAT_RHO0]
+    k0 = mat[MAT_K0]
+    kp = mat[MAT_KP]
+    if form == FORM_INCOMPRESSIBLE:
         return 0.0
-    if form == 0:
+    if form == FORM_VINET:
         x = (rho0 / rho) ** (1.0 / 3.0)
         return 3.0 * k0 * (1.0 - x) / (x * x) * math.exp(1.5 * (kp - 1.0) * (1.0 - x))
     y = (rho / rho0) ** (1.0 / 3.0)
@@ -57,13 +53,13 @@ def cold_pressure(rho, mat):
 @njit
 def cold_bulk_modulus(rho, mat):
     """Isothermal bulk modulus K = rho dP/drho [Pa] of the 300 K curve."""
-    form = int(mat[0])
-    rho0 = mat[1]
-    k0 = mat[2]
-    kp = mat[3]
-    if form == 2:
+    form = int(mat[MAT_FORM])
+    rho0 = mat[MAT_RHO0]
+    k0 = mat[MAT_K0]
+    kp = mat[MAT_KP]
+    if form == FORM_INCOMPRESSIBLE:
         return 1.0e300
-    if form == 0:
+    if form == FORM_VINET:
         x = (rho0 / rho) ** (1.0 / 3.0)
         eta = 1.5 * (kp - 1.0)
         return k0 / (x * x) * math.exp(eta * (1.0 - x)) * (2.0 - x + eta * x * (1.0 - x))
@@ -81,7 +77,7 @@ def thermal_pressure(rho, t, mat):
     P_th = gamma(rho) rho c_v (T - 300 K), c_v = 3 n R / M (common practice; valid above the
     Debye temperature, ~1000 K for mantle silicates). Zero when the material row has c_v = 0.
     """
-    return grueneisen(rho, mat) * rho * mat[6] * (t - 300.0)
+    return grueneisen(rho, mat) * rho * mat[MAT_CV] * (t - T_COLD)
 
 
 @njit
@@ -92,7 +88,7 @@ def eos_pressure(rho, t, mat):
 @njit
 def eos_bulk_modulus(rho, t, mat):
     """Isothermal bulk modulus [Pa] at (rho, T): cold part plus (1 - q) P_th."""
-    return cold_bulk_modulus(rho, mat) + (1.0 - mat[5]) * thermal_pressure(rho, t, mat)
+    return cold_bulk_modulus(rho, mat) + (1.0 - mat[MAT_Q]) * thermal_pressure(rho, t, mat)
 
 
 @njit
@@ -102,8 +98,8 @@ def eos_density(p, t, mat, guess):
     NaN when the pressure lies above the curve's maximum (Birch-Murnaghan with K0' < 4 turns over at
     extreme compression); the caller treats that as a failed trial.
     """
-    rho0 = mat[1]
-    if int(mat[0]) == 2:
+    rho0 = mat[MAT_RHO0]
+    if int(mat[MAT_FORM]) == FORM_INCOMPRESSIBLE:
         return rho0
     # fast path: a few plain Newton steps from the caller's guess (the previous node's density)
     if guess > 0.5 * rho0:
@@ -151,7 +147,7 @@ def eos_density(p, t, mat, guess):
 
 @njit
 def grueneisen(rho, mat):
-    return mat[4] * (mat[1] / rho) ** mat[5]
+    return mat[MAT_GAMMA0] * (mat[MAT_RHO0] / rho) ** mat[MAT_Q]
 
 
 @njit
@@ -207,6 +203,18 @@ def _event_value(kind, y, m_core, bounds, idx):
 
 
 @njit
+def _store(path, n, r, y, rho, region):
+    """Row n of the stored path (columns PATH_*): radius, the state y = (m, P, T, I), density and region."""
+    path[n, PATH_R] = r
+    path[n, PATH_M] = y[0]
+    path[n, PATH_P] = y[1]
+    path[n, PATH_T] = y[2]
+    path[n, PATH_I] = y[3]
+    path[n, PATH_RHO] = rho
+    path[n, PATH_REGION] = region
+
+
+@njit
 def integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, core_mat, mantle_mats, bounds,
                      path, store):
     """Integrate from the surface to the centre; return (status, n_stored, residual).
@@ -236,13 +244,10 @@ def integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, cor
     else:
         region = min(mantle_phase(p_surface, t_surface, bounds), n_phase - 1)
     mat = core_mat if region < 0 else mantle_mats[region]
-    rho = eos_density(p_surface, t_surface, mat, mat[1])
-    n = 0
+    rho = eos_density(p_surface, t_surface, mat, mat[MAT_RHO0])
+    n = np.int64(0)  # typed, not a literal: one specialization of _store
     if store:
-        path[0, 0] = r
-        path[0, 1:5] = y
-        path[0, 5] = rho
-        path[0, 6] = region
+        _store(path, n, r, y, rho, region)
         n = 1
     cap = path.shape[0]
     while r > r_stop:
@@ -280,16 +285,13 @@ def integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, cor
         if kind == 0:
             rho = eos_density(y[1], y[2], mat, rho)
             if not math.isfinite(rho):
-                rho = mat[1]
+                rho = mat[MAT_RHO0]
             return EMPTIED, n, -(FOUR_PI / 3.0) * r ** 3 * rho / mass
         if kind >= 1 and store:
             # the boundary radius is stored on both sides: first as the bottom of the shallower region
             if n >= cap:
                 return OUT_OF_ROOM, n, 0.0
-            path[n, 0] = r
-            path[n, 1:5] = y
-            path[n, 5] = eos_density(y[1], y[2], mat, rho)
-            path[n, 6] = region
+            _store(path, n, r, y, eos_density(y[1], y[2], mat, rho), region)
             n += 1
         if kind == 1:
             y[0] = core_mass
@@ -302,21 +304,10 @@ def integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, cor
         if store:
             if n >= cap:
                 return OUT_OF_ROOM, n, 0.0
-            path[n, 0] = r
-            path[n, 1:5] = y
-            path[n, 5] = rho
-            path[n, 6] = region
+            _store(path, n, r, y, rho, region)
             n += 1
     if not math.isfinite(rho):
         # the centre lies beyond the rising branch of the curve: far too much mass left, radius too small
         return BLEW_UP, n, y[0] / mass
     residual = (y[0] - (FOUR_PI / 3.0) * r ** 3 * rho) / mass
     return REACHED_CENTRE, n, residual
-
-
-@njit
-def residual_at(radius, mass, core_mass, p_surface, t_surface, n_steps, core_mat, mantle_mats, bounds):
-    path = np.empty((1, PATH_COLS))
-    status, n, res = integrate_inward(radius, mass, core_mass, p_surface, t_surface, n_steps, core_mat,
-                                      mantle_mats, bounds, path, False)
-    return res

@@ -1,0 +1,80 @@
+"""The one place that decides numba's jit options and where its cache lives.
+
+Import ``njit`` from here (never ``numba`` directly) in the core modules::
+
+    from ._jit import njit
+
+* ``cache=True`` on every kernel; nothing compiles at import (kernels compile at their first call and are
+  then read from the cache).
+* ``MELTZONE_FASTMATH=1`` turns on ``fastmath`` (off by default: it changes results in the last digits). The
+  option is not part of numba's cache key, so clear the cache when switching it.
+* The cache never goes inside the installed package (a ``__pycache__`` written into site-packages outlives
+  the install and can shadow a later editable install): ``NUMBA_CACHE_DIR`` if set; else a per-user folder,
+  ``$XDG_CACHE_HOME/meltzone/numba-<version>`` (``~/.cache`` without XDG_CACHE_HOME); else a temporary folder.
+"""
+
+from __future__ import annotations
+
+import glob
+import os
+import sys
+import tempfile
+
+
+def _writable(folder: str) -> bool:
+    try:
+        os.makedirs(folder, exist_ok=True)
+    except OSError:
+        return False
+    return os.access(folder, os.W_OK)
+
+
+def cache_dir() -> str:
+    """The numba cache folder this process uses (chosen as the module docstring says; set at import)."""
+    chosen = os.environ.get("NUMBA_CACHE_DIR")
+    if chosen:
+        return chosen
+    from .. import __version__
+
+    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
+    uid = os.getuid() if hasattr(os, "getuid") else 0
+    for candidate in (os.path.join(base, "meltzone", f"numba-{__version__}"),
+                      os.path.join(tempfile.gettempdir(), f"meltzone-numba-{uid}-{__version__}")):
+        if _writable(candidate):
+            return candidate
+    return tempfile.mkdtemp(prefix="meltzone-numba-")
+
+
+CACHE_DIR = cache_dir()
+os.environ["NUMBA_CACHE_DIR"] = CACHE_DIR
+
+import numba  # noqa: E402  (after the cache folder is settled)
+
+if numba.config.CACHE_DIR != CACHE_DIR:  # numba was imported before meltzone: it read the variable already
+    numba.config.CACHE_DIR = CACHE_DIR
+
+FASTMATH = os.environ.get("MELTZONE_FASTMATH", "0").strip().lower() in ("1", "true", "yes")
+
+
+def njit(*args, **kwargs):
+    """``numba.njit`` with the project's options (cache on, fastmath by environment, no GIL)."""
+    kwargs.setdefault("cache", True)
+    kwargs.setdefault("fastmath", FASTMATH)
+    kwargs.setdefault("nogil", True)
+    if args and callable(args[0]) and len(args) == 1:
+        return numba.njit(**kwargs)(args[0])
+    return numba.njit(*args, **kwargs)
+
+
+def is_cached(module: str, function: str) -> bool:
+    """True when the cache folder holds an index for ``function`` of the module named ``module`` (numba names
+    the index ``<file stem>.<function>-<line>.py<version>.nbi`` in a sub-folder named after the source folder).
+    The module is located, not imported."""
+    from importlib.util import find_spec
+
+    origin = find_spec(module).origin
+    stem = os.path.splitext(os.path.basename(origin))[0]
+    folder = os.path.basename(os.path.dirname(os.path.abspath(origin)))
+    pattern = os.path.join(CACHE_DIR, f"{folder}_*", f"{stem}.{function}-*.py{sys.version_info[0]}"
+                           f"{sys.version_info[1]}.nbi")
+    return bool(glob.glob(pattern))

@@ -1,0 +1,544 @@
+"""Physics of the boundary-layer scheme: viscosity, stored heat, surface balance, diagnostics, dy/dt, T(r).
+
+The equations, their sources and ranges are described in :mod:`meltzone.evolution.boundary_layer` (the
+scheme's friendly layer) and at each function. State ``y`` (SI, indices Y_*): stored heat of mantle and core
+[J], stagnant-lid thickness [m] and the time integral of (surface heat loss - radiogenic heating) [J]. The
+temperatures (upper-mantle potential temperature T_u, core temperature T_c) are recovered by inverting the
+monotone stored-heat functions.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ..constants import GAS_CONSTANT, STANDARD_ATMOSPHERE, STEFAN_BOLTZMANN, YEAR
+from ._jit import njit
+from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DELTA_C, D_DELTA_U, D_DLID, D_EPS,
+                     D_ETA_C, D_ETA_U, D_H, D_PHI_SURF, D_PHI_TOP, D_QC, D_QS, D_QU, D_REGIME, D_RIC, D_TB, D_TL,
+                     D_TS, G_AUX1, G_AUX2, G_F, G_R, G_TLIQ, G_TSOL, G_W, ISO_DECAY, ISO_HEAT, P_A_RH, P_A_VISC,
+                     P_ALPHA, P_ATMOSPHERE, P_BETA, P_BLEND, P_CC, P_CM, P_CO2_TOTAL, P_CORE_RADIUS, P_E_ACT, P_EG,
+                     P_ETA_LIQ, P_G_CMB, P_G_SURF, P_H2O_TOTAL, P_K, P_KAPPA, P_LATENT, P_LC, P_LID_MIN,
+                     P_MANTLE_MASS, P_MELT_WEAK, P_NU_A, P_P_CMB, P_P_TOP, P_PHI_C, P_RA_CR, P_RADIUS,
+                     P_RHO_MANTLE, P_RHO_TOP,
+                     P_STAGNANT, P_START_AGE, P_T_EQ, P_V_ACT, P_V_DECAY, REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID,
+                     REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
+from .melt import melt_fraction
+from .roots import bisect
+
+# Flags and indices passed between kernels as typed values, not literals: numba compiles one specialization per
+# literal argument value, so ``f(0)`` and ``f(1)`` would compile ``f`` twice (the cold start's cost)
+MANTLE, CORE = np.int64(0), np.int64(1)
+BOTTOM = np.int64(0)
+NO, YES = np.bool_(False), np.bool_(True)
+
+#: Temperature bracket of the stored-heat inversion [K]
+T_MIN, T_MAX = 10.0, 2.0e5
+#: Absolute tolerance of the isentropic melt fraction's bisection
+PHI_XTOL = 1e-13
+#: Time over which a lid thins back to its minimum where the top is molten [s] (this model's choice)
+LID_RELAX_TIME = 1.0e3 * YEAR
+
+
+@njit
+def smoothstep(x):
+    if x <= 0.0:
+        return 0.0
+    if x >= 1.0:
+        return 1.0
+    return x * x * (3.0 - 2.0 * x)
+
+
+@njit
+def activation_enthalpy(p, par):
+    """E + integral of V(P) dP with V(P) = V0 exp(-P / P_d) [J/mol]; E + P V0 when P_d = 0.
+
+    A decaying activation volume keeps the deep mantles of super-Earths from the astronomically
+    high viscosities of a constant V (Stamenkovic et al. 2012, ApJ 748:41; Tackley et al. 2013,
+    Icarus 225:50 discuss the pressure dependence; the exponential form and P_d here are this
+    model's choice, not fitted to those papers)."""
+    pd = par[P_V_DECAY]
+    if pd <= 0.0:
+        return par[P_E_ACT] + p * par[P_V_ACT]
+    return par[P_E_ACT] + par[P_V_ACT] * pd * (1.0 - math.exp(-p / pd))
+
+
+@njit
+def viscosity(t, p, phi, par):
+    """Effective viscosity [Pa s] at temperature t [K], pressure p [Pa] and melt fraction phi."""
+    solid = math.log(par[P_A_VISC]) + activation_enthalpy(p, par) / (GAS_CONSTANT * t) - par[P_MELT_WEAK] * phi
+    w = smoothstep((phi - par[P_PHI_C]) / par[P_BLEND])
+    if w <= 0.0:
+        return math.exp(min(solid, 700.0))
+    phi_m = 1.0 - par[P_PHI_C]  # maximum packing of crystals
+    x = min((1.0 - phi) / phi_m, 0.999)
+    susp = math.log(par[P_ETA_LIQ]) - 2.5 * math.log(1.0 - x)
+    return math.exp(min(w * susp + (1.0 - w) * solid, 700.0))
+
+
+@njit
+def node_melt(t, grid, i, law):
+    return melt_fraction(t, grid[G_TSOL, i], grid[G_TLIQ, i], grid[G_AUX1, i], grid[G_AUX2, i], law)
+
+
+@njit
+def _isentropic_residual(x, args):
+    t, lc, tsol, tliq, aux1, aux2, law = args
+    return x - melt_fraction(t - lc * x, tsol, tliq, aux1, aux2, law)
+
+
+@njit
+def isentropic_melt(t, grid, i, law, par):
+    """Melt fraction phi = phi_eq(t - (L / c_p) phi) at node i: the batch melt of a parcel that rose
+    adiabatically from below its solidus and paid the latent heat of its melt (the batch limit of
+    isentropic decompression melting, McKenzie & Bickle 1988, J. Petrol. 29:625; from memory). It ignores
+    the steeper adiabat of a melting parcel. Bisection: phi - phi_eq(t - L phi / c) rises with phi."""
+    lc = par[P_LATENT] / par[P_CM]
+    hi = node_melt(t, grid, i, law)
+    if hi <= 0.0 or lc <= 0.0:
+        return hi
+    # plain floats in the tuple: no reference counting in the hot loop
+    args = (t, lc, grid[G_TSOL, i], grid[G_TLIQ, i], grid[G_AUX1, i], grid[G_AUX2, i], law)
+    return bisect(_isentropic_residual, args, 0.0, hi, PHI_XTOL, 0.0, 60)
+
+
+@njit
+def lid_mass(d, par):
+    r = par[P_RADIUS]
+    ri = max(r - d, 0.0)
+    return par[P_RHO_TOP] * (4.0 * math.pi / 3.0) * (r ** 3 - ri ** 3)
+
+
+@njit
+def lid_base_temperature(tu, par):
+    """T_l = T_u - a_rh R T_u^2 / E (stagnant lid), at least 1 K above the equilibrium temperature."""
+    return max(tu - par[P_A_RH] * GAS_CONSTANT * tu * tu / par[P_E_ACT], par[P_T_EQ] + 1.0)
+
+
+@njit
+def mantle_energy(tu, d, grid, par, law):
+    """Stored heat of the mantle [J] relative to 0 K: adiabat sensible + latent, lid corrected."""
+    cm = par[P_CM]
+    e = 0.0
+    n = grid.shape[1]
+    for i in range(n):
+        ti = tu * grid[G_F, i]
+        e += grid[G_W, i] * (cm * ti + par[P_LATENT] * node_melt(ti, grid, i, law))
+    if par[P_STAGNANT] > 0.5 and d > 0.0:
+        ml = lid_mass(d, par)
+        e += ml * cm * (0.5 * (par[P_T_EQ] + lid_base_temperature(tu, par)) - tu)
+    return e
+
+
+@njit
+def inner_core(tc, core):
+    """Inner-core radius [m] and mass [kg]: where the core adiabat T_c f(r) falls below the melting curve."""
+    n = core.shape[1]
+    g_prev = tc * core[C_F, 0] - core[C_TMELT, 0]
+    if g_prev >= 0.0:
+        return 0.0, 0.0
+    for j in range(1, n):
+        g = tc * core[C_F, j] - core[C_TMELT, j]
+        if g >= 0.0:
+            s = g_prev / (g_prev - g)
+            r = core[C_R, j - 1] + s * (core[C_R, j] - core[C_R, j - 1])
+            m = core[C_MCUM, j - 1] + s * (core[C_MCUM, j] - core[C_MCUM, j - 1])
+            return r, m
+        g_prev = g
+    return core[C_R, n - 1], core[C_MCUM, n - 1]
+
+
+@njit
+def core_energy(tc, core, par):
+    """Stored heat of the core [J]: sensible heat on the core adiabat minus latent + gravitational
+    energy already released by the inner core."""
+    e = 0.0
+    for j in range(core.shape[1]):
+        e += core[C_W, j] * par[P_CC] * tc * core[C_F, j]
+    r_ic, m_ic = inner_core(tc, core)
+    return e - (par[P_LC] + par[P_EG]) * m_ic
+
+
+@njit
+def radiogenic_power(t, iso, par):
+    """Radiogenic heating of the mantle [W] at model time t [s]: sum_i H_i,today exp(lambda_i (age0 - t))."""
+    h = 0.0
+    for i in range(iso.shape[0]):
+        h += iso[i, ISO_HEAT] * math.exp(iso[i, ISO_DECAY] * (par[P_START_AGE] - t))
+    return h * par[P_MANTLE_MASS]
+
+
+@njit
+def _dissolved_residual(m_atm, args):
+    total, melt_mass, coeff, expo, g, area = args
+    p = m_atm * g / area
+    return m_atm + coeff * p ** expo * melt_mass - total
+
+
+@njit
+def atmosphere_mass(total, melt_mass, par, coeff, expo):
+    """Atmospheric mass [kg] of a volatile in solubility equilibrium with the melt.
+
+    Mass balance M_total = M_atm + X(P) M_melt, P = M_atm g / (4 pi R^2), X = coeff P^expo
+    (mass fraction); solved by bisection (monotone in M_atm)."""
+    if total <= 0.0:
+        return 0.0
+    if melt_mass <= 0.0:
+        return total
+    area = 4.0 * math.pi * par[P_RADIUS] ** 2
+    args = (total, melt_mass, coeff, expo, par[P_G_SURF], area)
+    return bisect(_dissolved_residual, args, 0.0, total, 1e-12 * total, 0.0, 60)
+
+
+@njit
+def melt_mass_adiabat(tu, grid, law):
+    m = 0.0
+    for i in range(grid.shape[1]):
+        m += grid[G_W, i] * node_melt(tu * grid[G_F, i], grid, i, law)
+    return m
+
+
+@njit
+def _stored_heat_residual(t, args):
+    kind, e, d, grid, core, par, law = args
+    return (mantle_energy(t, d, grid, par, law) if kind == 0 else core_energy(t, core, par)) - e
+
+
+@njit
+def _invert(kind, e, d, grid, core, par, law, guess, slope):
+    """Temperature [K] whose stored heat is ``e``, and the last slope dE/dT: mantle (kind 0, lid d) or
+    core (kind 1).
+
+    Newton's first step with the caller's slope (the previous call's, > 0) or a centred difference, then
+    secant steps; bisection on [T_MIN, T_MAX] if that fails. Both stored-heat functions rise monotonically
+    with temperature."""
+    t0 = min(max(guess, T_MIN), T_MAX)
+    f0 = (mantle_energy(t0, d, grid, par, law) if kind == 0 else core_energy(t0, core, par)) - e
+    s = slope
+    if not s > 0.0:
+        hh = 1e-3 * max(1.0, 1e-4 * t0)
+        if kind == 0:
+            s = (mantle_energy(t0 + hh, d, grid, par, law) - mantle_energy(t0 - hh, d, grid, par, law)) / (2 * hh)
+        else:
+            s = (core_energy(t0 + hh, core, par) - core_energy(t0 - hh, core, par)) / (2 * hh)
+    scale = abs(e) + 1.0
+    for _ in range(40):
+        if abs(f0) <= 1e-14 * scale:
+            return t0, s
+        if not s > 0.0:
+            break
+        t1 = t0 - f0 / s
+        if not (T_MIN <= t1 <= T_MAX):
+            break
+        f1 = (mantle_energy(t1, d, grid, par, law) if kind == 0 else core_energy(t1, core, par)) - e
+        if f1 != f0 and t1 != t0:
+            s_new = (f1 - f0) / (t1 - t0)
+            if s_new > 0.0:
+                s = s_new
+        if abs(t1 - t0) <= 1e-12 * t0:
+            return t1, s
+        t0 = t1
+        f0 = f1
+    return bisect(_stored_heat_residual, (kind, e, d, grid, core, par, law), T_MIN, T_MAX, 0.0, 1e-12, 200), 0.0
+
+
+@njit
+def temperatures(y, grid, core, par, law, work):
+    """(T_u, T_c) of the energy state y; ``work`` = (T_u, T_c, dE_m/dT_u, dE_c/dT_c) of the last solution,
+    the starting point of the next (a slope <= 0 asks for a fresh centred difference)."""
+    d = max(y[Y_LID], 0.0) if par[P_STAGNANT] > 0.5 else 0.0
+    tu, work[2] = _invert(MANTLE, y[Y_EM], d, grid, core, par, law, work[0], work[2])
+    if core[C_W].sum() > 0.0:
+        tc, work[3] = _invert(CORE, y[Y_EC], 0.0, grid, core, par, law, work[1], work[3])
+    else:
+        tc = work[1]
+    work[0] = tu
+    work[1] = tc
+    return tu, tc
+
+
+@njit
+def energy_state(tu, tc, d_lid, out, grid, core, par, law, y):
+    """Fill y from temperatures (the inverse of :func:`temperatures`); ``out`` is Y_OUT."""
+    y[Y_EM] = mantle_energy(tu, max(d_lid, 0.0) if par[P_STAGNANT] > 0.5 else 0.0, grid, par, law)
+    y[Y_EC] = core_energy(tc, core, par)
+    y[Y_LID] = d_lid
+    y[Y_OUT] = out
+
+
+@njit
+def temperature_rates(tu, tc, d_lid, dy, grid, core, par, law):
+    """(dT_u/dt, dT_c/dt) from the energy rates dy (for the step control, history and interpolation)."""
+    d = max(d_lid, 0.0) if par[P_STAGNANT] > 0.5 else 0.0
+    h_t = 1e-3 * max(1.0, 1e-4 * tu)
+    dem_dtu = (mantle_energy(tu + h_t, d, grid, par, law) - mantle_energy(tu - h_t, d, grid, par, law)) / (2 * h_t)
+    dem_dd = 0.0
+    if par[P_STAGNANT] > 0.5 and d_lid > 0.0:
+        dml = par[P_RHO_TOP] * 4.0 * math.pi * (par[P_RADIUS] - d_lid) ** 2
+        dem_dd = dml * par[P_CM] * (0.5 * (par[P_T_EQ] + lid_base_temperature(tu, par)) - tu)
+    dtu = (dy[Y_EM] - dem_dd * dy[Y_LID]) / dem_dtu
+    h_c = 1e-3 * max(1.0, 1e-4 * tc)
+    dec = (core_energy(tc + h_c, core, par) - core_energy(tc - h_c, core, par)) / (2 * h_c)
+    dtc = dy[Y_EC] / dec if dec > 0.0 else 0.0
+    return dtu, dtc
+
+
+@njit
+def top_layer_thickness(d_conv, ra, solid, par):
+    """Upper thermal boundary layer [m]: delta = D (Ra_cr / Ra)^beta / a, i.e. Nu = a (Ra / Ra_cr)^beta,
+    capped at the convecting depth D. ``solid``: the configured (a, beta) of the solid mantle, which
+    applies once the top has first reached the rheological transition; otherwise (the magma ocean, and
+    the solid branch of the blend before that) the classical form a = 1, beta = 1/3 (Stevenson et al. 1983;
+    soft turbulence in the magma ocean)."""
+    if solid:
+        return min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA] / par[P_NU_A], d_conv)
+    return min(d_conv * (par[P_RA_CR] / ra) ** (1.0 / 3.0), d_conv)
+
+
+@njit
+def _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par):
+    """Conductive flux through the top layer minus radiated flux at surface temperature ts [W/m^2]."""
+    if stagnant:
+        q_cond = par[P_K] * (tl - ts) / d_lid
+    else:
+        ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
+        delta_u = top_layer_thickness(d_conv, ra, solid, par)
+        q_cond = par[P_K] * (tu - ts) / delta_u
+    return q_cond - eps * STEFAN_BOLTZMANN * (ts ** 4 - par[P_T_EQ] ** 4)
+
+
+@njit
+def _top_boundary(stagnant, solid, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
+    """(T_s, q_surface, q_u, delta_u) at the top: the surface temperature balances the conductive flux through
+    the top layer (boundary layer, or lid over the boundary layer) with eps sigma (T_s^4 - T_eq^4).
+
+    delta_u = D_conv (Ra_cr / Ra)^beta with Ra = alpha rho g dT D_conv^3 / (kappa eta_u) and dT the
+    temperature contrast driving convection (top layer plus the CMB excess); Illinois root finding on T_s."""
+    t_eq = par[P_T_EQ]
+    t_top = tl if stagnant else tu
+    lo = t_eq
+    hi = max(t_top, t_eq)
+    delta_u = d_conv
+    ts = 0.5 * (lo + hi)
+    base = par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_SURF] * d_conv ** 3 / (par[P_KAPPA] * eta_u)
+    if stagnant:
+        ra = base * max(tu - tl + max(dtc, 0.0), 1e-6)
+        delta_u = top_layer_thickness(d_conv, ra, solid, par)
+    # Illinois (modified regula falsi) on g(T_s) = q_cond - q_rad, which falls monotonically from
+    # g(T_eq) >= 0 to g(T_top) <= 0
+    g_lo = _surface_balance(stagnant, solid, lo, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+    g_hi = _surface_balance(stagnant, solid, hi, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+    side = 0
+    ts = lo
+    prev = -1.0
+    for _ in range(100):
+        if g_lo <= 0.0:
+            ts = lo
+            break
+        if g_hi >= 0.0:
+            ts = hi
+            break
+        ts = (lo * g_hi - hi * g_lo) / (g_hi - g_lo)
+        if not (lo < ts < hi):
+            ts = 0.5 * (lo + hi)
+        g = _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+        if g > 0.0:
+            lo, g_lo = ts, g
+            if side == -1:
+                g_hi *= 0.5
+            side = -1
+        else:
+            hi, g_hi = ts, g
+            if side == 1:
+                g_lo *= 0.5
+            side = 1
+        if hi - lo < 1e-11 * hi or g == 0.0 or abs(ts - prev) < 1e-12 * ts:
+            break
+        prev = ts
+    if stagnant:
+        return ts, par[P_K] * (tl - ts) / d_lid, par[P_K] * (tu - tl) / delta_u, delta_u
+    ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
+    delta_u = top_layer_thickness(d_conv, ra, solid, par)
+    q = par[P_K] * (tu - ts) / delta_u
+    return ts, q, q, delta_u
+
+
+@njit
+def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
+    """Fluxes, boundary layers, surface temperature and regime at (T_u, T_c, lid) and time t; fills ``diag``
+    (D_*). ``t_switch``: when the top of the mantle first reached the rheological transition (NOT_YET before)."""
+    tu = max(tu, 1.0)
+    tc = max(tc, 1.0)
+    d_lid = max(d_lid, 0.0)
+    n = grid.shape[1]
+    top = n - 1
+    depth = par[P_RADIUS] - par[P_CORE_RADIUS]
+    law_i = law
+    # the regime follows the melt fraction at the top of the convecting mantle: on the adiabat (batch) while
+    # the surface magma ocean is above the rheological transition; once the top has first reached it
+    # (t >= t_switch), the isentropic value of a solid mantle that melts as it rises, so that a solid
+    # mantle does not turn back into a magma ocean as soon as its adiabat crosses phi_c at the surface
+    phi_surf = node_melt(tu * grid[G_F, top], grid, top, law_i)
+    solidified = t >= t_switch
+    phi_top = isentropic_melt(tu * grid[G_F, top], grid, top, law_i, par) if solidified else phi_surf
+    magma = phi_top > par[P_PHI_C]
+    stagnant = par[P_STAGNANT] > 0.5 and not magma
+    # magma-ocean branch: the suspension viscosity of the same melt fraction that sets the regime, so that
+    # both branches meet at phi_c
+    eta_u = viscosity(tu, par[P_P_TOP], phi_top, par)
+    # the solid-mantle branch of a solidified mantle: melt weakening, but no suspension, up to phi_c
+    eta_s = viscosity(tu, par[P_P_TOP], min(phi_surf, par[P_PHI_C]), par) if solidified else eta_u
+    tb = tu * grid[G_F, 0]
+    dtc = tc - tb
+    # bottom boundary layer (local critical Rayleigh number)
+    t_mean_c = 0.5 * (tc + tb)
+    phi_c = node_melt(t_mean_c, grid, BOTTOM, law_i)
+    eta_c = viscosity(t_mean_c, par[P_P_CMB], phi_c, par)
+    if abs(dtc) > 1e-9 and par[P_G_CMB] > 0.0:
+        delta_c = (par[P_KAPPA] * eta_c * par[P_RA_CR] / (par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_CMB]
+                                                            * abs(dtc))) ** (1.0 / 3.0)
+        delta_c = min(delta_c, 0.5 * depth)
+        qc = par[P_K] * dtc / delta_c
+    else:
+        delta_c = 0.5 * depth
+        qc = 0.0
+    # grey atmosphere
+    eps = 1.0
+    m_h2o = 0.0
+    m_co2 = 0.0
+    if par[P_ATMOSPHERE] > 0.5:
+        m_melt = melt_mass_adiabat(tu, grid, law_i)
+        # solubilities (mass fraction, P in Pa): H2O 6.8e-8 P^0.7, CO2 4.4e-12 P (as used by Lebrun et al. 2013)
+        m_h2o = atmosphere_mass(par[P_H2O_TOTAL], m_melt, par, 6.8e-8, 0.7)
+        m_co2 = atmosphere_mass(par[P_CO2_TOTAL], m_melt, par, 4.4e-12, 1.0)
+        area = 4.0 * math.pi * par[P_RADIUS] ** 2
+        # grey optical depth tau_i = (3 M_i / (8 pi R^2)) sqrt(kappa_i g / (3 P0)), P0 = 1 atm,
+        # kappa_H2O = 0.01, kappa_CO2 = 0.001 m^2/kg (Abe & Matsui 1985; Elkins-Tanton 2008)
+        tau = 0.0
+        tau += 3.0 * m_h2o / (2.0 * area) * math.sqrt(0.01 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
+        tau += 3.0 * m_co2 / (2.0 * area) * math.sqrt(0.001 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
+        eps = 2.0 / (tau + 2.0)
+    # top boundary: the magma ocean (soft-turbulence law) and the solid mantle (the configured law: mobile
+    # lid, or the lid over its sublayer in stagnant-lid mode); across the rheological transition
+    # (phi_c < phi_top < phi_c + P_BLEND) the two are blended with the same weight as the viscosity,
+    # so that the fluxes are continuous in T_u
+    w_mo = smoothstep((phi_top - par[P_PHI_C]) / par[P_BLEND])
+    ts_m, qs_m, qu_m, du_m = 0.0, 0.0, 0.0, 0.0
+    if w_mo > 0.0:
+        ts_m, qs_m, qu_m, du_m = _top_boundary(NO, NO, tu, tu, 0.0, depth, dtc, eta_u, eps, par)
+    tl = tu
+    ddl_sl = 0.0
+    ts_s, qs_s, qu_s, du_s = ts_m, qs_m, qu_m, du_m
+    if w_mo < 1.0:
+        if par[P_STAGNANT] > 0.5:
+            tl = lid_base_temperature(tu, par)
+            d_eff = max(d_lid, par[P_LID_MIN])
+            d_conv = max(depth - d_eff, 0.05 * depth)
+            ts_s, qs_s, qu_s, du_s = _top_boundary(YES, solidified, tu, tl, d_eff, d_conv, dtc, eta_s,
+                                                    eps, par)
+            # rho c (T_u - T_lid,mean) dD/dt = q_lid - q_u: new lid material is cooled from T_u to the mean of
+            # the linear lid profile, the same bookkeeping as mantle_energy (with it, the convecting mantle
+            # loses exactly q_u at the lid base)
+            t_lid_mean = 0.5 * (par[P_T_EQ] + tl)
+            ddl_sl = (qs_s - qu_s) / (par[P_RHO_TOP] * par[P_CM] * max(tu - t_lid_mean, 1.0))
+        else:
+            ts_s, qs_s, qu_s, du_s = _top_boundary(NO, solidified, tu, tu, 0.0, depth, dtc, eta_s, eps, par)
+    if w_mo <= 0.0:
+        ts_m, qs_m, qu_m, du_m = ts_s, qs_s, qu_s, du_s
+    qs = w_mo * qs_m + (1.0 - w_mo) * qs_s
+    qu = w_mo * qu_m + (1.0 - w_mo) * qu_s
+    ts = w_mo * ts_m + (1.0 - w_mo) * ts_s
+    delta_u = du_m if magma else du_s
+    # lid: grows by the stagnant-lid law, thins back to its minimum over ~1 kyr where the top is molten
+    diag[D_DLID] = (1.0 - w_mo) * ddl_sl + w_mo * (par[P_LID_MIN] - d_lid) / LID_RELAX_TIME
+    r_ic, m_ic = inner_core(tc, core)
+    diag[D_QS] = qs
+    diag[D_QU] = qu
+    diag[D_QC] = qc
+    diag[D_TS] = ts
+    diag[D_DELTA_U] = delta_u
+    diag[D_DELTA_C] = delta_c
+    diag[D_TL] = tl
+    diag[D_H] = radiogenic_power(t, iso, par)
+    if magma:
+        diag[D_REGIME] = REGIME_MAGMA_OCEAN
+    elif stagnant:
+        diag[D_REGIME] = REGIME_STAGNANT_LID
+    else:
+        diag[D_REGIME] = REGIME_MOBILE_LID
+    diag[D_PHI_TOP] = phi_top
+    diag[D_PHI_SURF] = phi_surf
+    diag[D_RIC] = r_ic
+    diag[D_ETA_U] = eta_u if magma else eta_s
+    diag[D_ETA_C] = eta_c
+    diag[D_TB] = tb
+    diag[D_EPS] = eps
+    diag[D_ATM_H2O] = m_h2o
+    diag[D_ATM_CO2] = m_co2
+
+
+@njit
+def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
+    """dy/dt at (t, y); also fills ``diag`` and leaves (T_u, T_c) in ``work``."""
+    tu, tc = temperatures(y, grid, core, par, law, work)
+    d_lid = y[Y_LID]
+    diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag)
+    area_s = 4.0 * math.pi * par[P_RADIUS] ** 2
+    area_c = 4.0 * math.pi * par[P_CORE_RADIUS] ** 2
+    q_surf = diag[D_QS] * area_s
+    q_cmb = diag[D_QC] * area_c if core[C_W].sum() > 0.0 else 0.0
+    heat = diag[D_H]
+    ddl = diag[D_DLID] if par[P_STAGNANT] > 0.5 else 0.0
+    dy[Y_EM] = -q_surf + q_cmb + heat
+    dy[Y_EC] = -q_cmb
+    dy[Y_LID] = ddl
+    dy[Y_OUT] = q_surf - heat
+
+
+@njit(inline="always")
+def rhs_packed(t, y, args, dy):
+    """:func:`rhs` with its inputs in one tuple (t_switch, grid, core, iso, par, law, work, diag), the form the
+    stepper of :mod:`meltzone._core.dopri` calls."""
+    t_switch, grid, core, iso, par, law, work, diag = args
+    rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy)
+
+
+@njit
+def profile(tu, tc, d_lid, diag, grid, par, law, temp, phi):
+    """Temperature T(r) and melt fraction on the mantle nodes (CMB -> surface).
+
+    Adiabat T_u f(r) between a top layer (linear from T_s to the adiabat over delta_u, below the
+    conductive lid in stagnant-lid mode) and a bottom layer (linear from T_c over delta_c)."""
+    n = grid.shape[1]
+    ts = diag[D_TS]
+    tl = diag[D_TL]
+    du = max(diag[D_DELTA_U], 1e-6)
+    dc = max(diag[D_DELTA_C], 1e-6)
+    stagnant = diag[D_REGIME] == REGIME_STAGNANT_LID
+    d_lid = max(d_lid, par[P_LID_MIN]) if stagnant else 0.0
+    r_top = par[P_RADIUS]
+    r_c = par[P_CORE_RADIUS]
+    for i in range(n):
+        t_ad = tu * grid[G_F, i]
+        z = r_top - grid[G_R, i]
+        if stagnant and z < d_lid:
+            t = ts + (tl - ts) * z / d_lid
+        elif stagnant and z < d_lid + du:
+            t = tl + (t_ad - tl) * (z - d_lid) / du
+        elif z < du:
+            t = ts + (t_ad - ts) * z / du
+        else:
+            t = t_ad
+        h = grid[G_R, i] - r_c
+        if h < dc:
+            t = tc + (t - tc) * h / dc
+        temp[i] = t
+        phi[i] = node_melt(t, grid, i, law)
+
+
+@njit
+def profile_at(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, temp, phi, diag):
+    """T(r), phi(r) and diagnostics at given temperatures (snapshots and event refinement)."""
+    diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag)
+    profile(tu, tc, d_lid, diag, grid, par, law, temp, phi)

@@ -1,0 +1,369 @@
+"""The boundary-layer scheme: one potential temperature for the convecting mantle, thermal boundary layers
+at its top and bottom, an adiabatic core (``convection.scheme = "boundary-layer"``).
+
+:func:`run` builds the numba core's inputs (:class:`meltzone._core.layout.KernelInputs`) from the spec, the
+interior and the melting curves evaluated on the mantle nodes, runs the integrator of :mod:`meltzone._core.loop`
+(growing its buffers when they fill) and returns a :class:`~meltzone.evolution.contract.History`;
+:class:`Evaluator` rebuilds the state inside a step. Nothing outside this module and :mod:`meltzone._core`
+sees the packed arrays.
+
+Parameter defaults follow Tosi et al. 2017 (A&A 605:A71, Table 1; checked):
+A = 6.127e10 Pa s, E = 335 kJ/mol, V = 4 cm^3/mol, Ra_cr = 450, k = 4 W/m/K,
+kappa = 1e-6 m^2/s, alpha = 2e-5 1/K, c_mantle = 1100 and c_core = 800 J/kg/K,
+latent heat 6e5 J/kg, initial CMB excess 200 K.
+
+State ``y`` (SI): ``Y_EM`` stored heat of the mantle [J], ``Y_EC`` stored heat
+of the core [J], ``Y_LID`` stagnant-lid thickness [m], ``Y_OUT`` cumulative
+(surface heat loss - radiogenic heating) [J]. The temperatures (upper-mantle
+potential temperature T_u and core temperature T_c) are recovered from the
+energies by inverting the monotone stored-heat functions. Integrating the
+energies themselves (a conservative formulation) makes the budget close to
+round-off: any Runge-Kutta method preserves the linear invariant
+E_m + E_c + Y_OUT, whatever the kinks of the melt-fraction law.
+
+Physics (each law with its source and range; radiogenic data in :mod:`meltzone.evolution.heating`;
+the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
+
+* boundary-layer scaling q = a k dT / D (Ra / Ra_cr)^beta for the upper layer
+  of the solid mantle (Stevenson, Spohn & Schubert 1983, Icarus 54:466: a = 1,
+  beta = 1/3 and Ra_cr ~ 500; Ra_cr = 450 as in Tosi et al. 2017, A&A 605:A71),
+  valid for Ra >> Ra_cr. beta and a are configurable: weaker exponents
+  (beta ~ 0-0.15) stand for plate-bending or dehydration-limited plate
+  tectonics (Christensen 1985, JGR 90:2995; Korenaga 2008, Rev. Geophys.
+  46:RG2007; from memory) and need a > 1 for Earth-like heat flow. The magma
+  ocean always keeps a = 1, beta = 1/3 (below), and so does the solid mantle
+  until the top first reaches the rheological transition. The bottom layer from the local critical Rayleigh number,
+  delta_c = (kappa eta_c Ra_cr / (alpha rho g_c dT_c))^(1/3) (same source),
+  capped at half the mantle depth;
+* Arrhenius viscosity eta = A exp[H(P)/(R T)] exp(-alpha_phi phi), H = E + int V dP
+  (form and A, E, V of Tosi et al. 2017, Table 1; melt weakening alpha_phi ~ 26,
+  Mei et al. 2002, EPSL 201:491, from memory), below the rheological transition
+  at phi_c ~ 0.4 (Abe 1997; Solomatov 2015, Treatise on Geophysics 9.04); above
+  it the Einstein-Roscoe suspension eta_liq (1 - phi_x / phi_m)^-2.5 with
+  phi_m = 1 - phi_c (Roscoe 1952, Br. J. Appl. Phys. 3:267; < 10x rise up to 40 vol%
+  crystals, Lejeune & Richet 1995, JGR 100:4215) and a liquid viscosity of
+  ~0.01-0.1 Pa s (Karki & Stixrude 2010, Science 328:740; from memory); the two
+  are blended in log eta over a melt-fraction width (convection.rheology_blend_width,
+  default 0.05; this model's choice,
+  so that the heat flow is continuous across the transition);
+* magma ocean: the same boundary-layer law with the suspension viscosity
+  (soft turbulence, Nu ~ Ra^(1/3); the prefactor Ra_cr^(-1/3) = 0.13 against 0.089
+  in Solomatov's form, from memory);
+* stagnant lid: rheological temperature scale dT_rh = a_rh R T_u^2 / E
+  (Solomatov & Moresi 2000, JGR 105:21795; a_rh ~ 2.2-2.5, Grasset & Parmentier
+  1998, JGR 103:18171; Thiriet et al. 2019, PEPI 286:138 show several (a_rh, beta)
+  pairs fit equally), lid growth rho c (T_u - T_lm) dD/dt = -q_u + k (T_l - T_s) / D
+  with T_lm the lid's mean temperature (the usual form, e.g. Schubert & Spohn 1990,
+  has T_l; T_lm keeps the lid's heat content in the budget); blended with the
+  magma-ocean top over the same melt-fraction width;
+* surface: the surface temperature balances the flux through the top layer
+  with eps sigma (T_s^4 - T_eq^4), eps = 2 / (tau + 2) (Abe & Matsui 1985;
+  Elkins-Tanton 2008, EPSL 271:181), tau_i = (3 M_i / (8 pi R^2)) sqrt(kappa_i g / (3 P0))
+  with kappa = 0.01 (H2O) and 0.001 (CO2) m^2/kg at P0 = 1 atm (from memory), the
+  atmospheric masses in solubility equilibrium with the melt, X_H2O = 6.8e-8 P^0.7
+  and X_CO2 = 4.4e-12 P (mass fractions, P in Pa; as used by Lebrun et al. 2013,
+  JGR Planets 118; from memory). No condensation: water stays in the atmosphere
+  after the magma ocean (an upper bound on the blanketing);
+* core: adiabatic core of temperature T_c f_core(r), an inner core where it falls
+  below the iron-alloy melting curve, releasing latent and gravitational energy
+  (Stevenson et al. 1983; Labrosse 2015, PEPI 247:36);
+* energy: the stored heat (sensible heat on the adiabat, latent heat of the
+  melt, the lid's conductive profile, core sensible heat less the inner core's
+  latent and gravitational energy) is one function of (T_u, lid) for the mantle
+  and of T_c for the core: dE_m/dt = -Q_surface + Q_cmb + H, dE_c/dt = -Q_cmb.
+
+* regime: a magma ocean while the melt fraction at the top of the convecting mantle
+  exceeds phi_c. Until the top first reaches phi_c this is the batch melt of the
+  adiabat at the surface; from then on it is the isentropic value of a solid mantle
+  that melts as it rises and pays the latent heat (batch limit of McKenzie & Bickle
+  1988, J. Petrol. 29:625; from memory), so a solidified mantle that warms again does
+  not turn back into a magma ocean until about phi_c L / c_p (~220 K) hotter; the
+  magma-ocean branch's suspension then follows that same melt fraction. The solid branch
+  of a solidified mantle has melt weakening up to phi_c but no suspension viscosity. The
+  integrator lands the step that first crosses phi_c on the crossing (to PHI_TOL = 1e-8 in
+  melt fraction). A solid law that cannot carry the heat (weak scalings away from their
+  calibration) lets the mantle warm to that threshold, where the magma-ocean branch then
+  holds it.
+
+Known limitations: with beta = 1/3 the mantle equilibrates with its heating within
+~1 Gyr, so an Earth hindcast gives a present heat flow of ~31 TW (46 TW observed)
+and a Urey ratio ~0.6 (Korenaga 2008, Rev. Geophys. 46:RG2007 discuss this paradox).
+A weak scaling (beta = 0.015, a = 40, a calibration of this project for Earth's mobile
+lid) lands the present Earth inside the published ranges (tests/test_evolution.py). The
+configured (a, beta) apply once the top first reaches phi_c (the heat flow jumps there
+when they differ from the classical law); before that, the classical law. Applied from
+the start, a weak law could not end the magma ocean while the young Earth's radiogenic
+heating exceeds its solid-state heat flow at phi_c (measured: ~1.4 Gyr): the model has no
+melt extraction to vent that heat.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from .. import melting
+from .._core import layout as k
+from ..constants import GYR, MYR, YEAR
+from ..errors import ConvergenceError
+from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid, Scheme
+
+#: Lid thickness [m] below which a stagnant lid is not resolved (its starting value).
+LID_MIN = 1.0e3
+#: Model-time interval of the progress callback, in accepted steps.
+PROGRESS_STEPS = 100
+#: The History's switch-time key of the first time the top reached the rheological transition.
+SWITCH = "rheological_switch"
+
+
+def _node_weights(r: np.ndarray, m: np.ndarray, m_bottom: float, m_top: float) -> np.ndarray:
+    """Mass of the shell each node stands for (midpoint rule on the enclosed mass)."""
+    mid = 0.5 * (r[1:] + r[:-1])
+    m_mid = np.interp(mid, r, m)
+    edges = np.concatenate([[m_bottom], m_mid, [m_top]])
+    return np.diff(edges)
+
+
+def build_inputs(spec, interior, curves):
+    """The core's inputs (:class:`~meltzone._core.layout.KernelInputs`) for a spec, its interior and the
+    melting curves on the mantle nodes (:func:`meltzone.melting.node_curves`)."""
+    from .heating import isotope_table
+
+    it = interior
+    ms = it.mantle
+    r = it.r[ms]
+    grid = np.zeros((k.N_G, len(r)))
+    grid[k.G_R] = r
+    grid[k.G_P] = it.P[ms]
+    grid[k.G_F] = it.adiabat[ms]
+    grid[k.G_W] = _node_weights(r, it.m[ms], it.core_mass, it.mass)
+    grid[k.G_TSOL] = curves["solidus"]
+    grid[k.G_TLIQ] = curves["liquidus"]
+    grid[k.G_AUX1] = curves["aux1"]
+    grid[k.G_AUX2] = curves["aux2"]
+
+    cs = it.core
+    nc = it.cmb_index
+    core = np.zeros((k.N_C, max(nc, 2)))
+    if nc >= 2:
+        core[k.C_R] = it.r[cs]
+        core[k.C_F] = it.adiabat[cs]
+        core[k.C_W] = _node_weights(it.r[cs], it.m[cs], 0.0, it.core_mass)
+        core[k.C_TMELT] = melting.iron_melting_temperature(it.P[cs], spec.melting.core_melting_depression_k)
+        core[k.C_MCUM] = it.m[cs]
+    else:  # coreless planet: a dummy core without heat capacity that never freezes
+        core[k.C_F] = 1.0
+        core[k.C_W] = 0.0
+        core[k.C_TMELT] = 0.0
+
+    cv = spec.convection
+    par = np.zeros(k.N_PAR)
+    par[k.P_RADIUS] = it.radius
+    par[k.P_CORE_RADIUS] = max(it.core_radius, 1.0)
+    par[k.P_G_SURF] = it.surface_gravity
+    par[k.P_G_CMB] = it.g[it.cmb_index] if nc else 0.0
+    mantle_volume = 4.0 / 3.0 * math.pi * (it.radius ** 3 - it.core_radius ** 3)
+    par[k.P_RHO_MANTLE] = it.mantle_mass / mantle_volume
+    par[k.P_RHO_TOP] = it.rho[-1]
+    par[k.P_K] = cv.thermal_conductivity
+    par[k.P_KAPPA] = cv.thermal_diffusivity
+    par[k.P_ALPHA] = cv.thermal_expansivity
+    par[k.P_CM] = cv.mantle_heat_capacity
+    par[k.P_LATENT] = cv.latent_heat
+    par[k.P_A_VISC] = cv.viscosity_prefactor_pa_s
+    par[k.P_E_ACT] = cv.activation_energy_j_mol
+    par[k.P_V_ACT] = cv.activation_volume_m3_mol
+    par[k.P_V_DECAY] = cv.activation_volume_decay_pa
+    par[k.P_RA_CR] = cv.critical_rayleigh
+    par[k.P_BETA] = cv.beta
+    par[k.P_NU_A] = cv.nusselt_prefactor
+    par[k.P_BLEND] = cv.rheology_blend_width
+    par[k.P_A_RH] = cv.rheology_a
+    par[k.P_MELT_WEAK] = cv.melt_weakening
+    par[k.P_ETA_LIQ] = cv.liquid_viscosity_pa_s
+    par[k.P_PHI_C] = cv.critical_melt_fraction
+    par[k.P_CC] = spec.core.core_heat_capacity
+    par[k.P_LC] = spec.core.core_latent_heat
+    par[k.P_EG] = spec.core.gravitational_energy
+    par[k.P_T_EQ] = spec.surface.equilibrium_temperature_k
+    par[k.P_ATMOSPHERE] = 1.0 if spec.surface.atmosphere == "grey" else 0.0
+    par[k.P_H2O_TOTAL] = spec.surface.water_inventory_kg
+    par[k.P_CO2_TOTAL] = spec.surface.co2_inventory_kg
+    par[k.P_STAGNANT] = 1.0 if cv.regime == "stagnant-lid" else 0.0
+    par[k.P_P_CMB] = it.cmb_pressure
+    par[k.P_START_AGE] = spec.heating.start_age_gyr * GYR
+    par[k.P_DT_MAX] = spec.run.max_temperature_step_k
+    par[k.P_RTOL] = spec.run.rtol
+    par[k.P_ATOL] = spec.run.atol_k
+    par[k.P_T_END] = spec.run.end_time_gyr * GYR
+    par[k.P_H_MAX] = spec.run.max_step_myr * MYR
+    par[k.P_LID_MIN] = LID_MIN
+    par[k.P_P_TOP] = it.surface_pressure
+    par[k.P_MANTLE_MASS] = it.mantle_mass
+    iso = isotope_table(spec.heating.radiogenic_scale)
+    return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
+
+
+def initial_temperatures(spec, inputs) -> tuple[float, float]:
+    """(T_u, T_c) at the start: by default 50 K above the liquidus at every mantle node (fully molten),
+    and the core the mantle adiabat at the CMB plus ``initial.initial_cmb_jump_k``."""
+    grid = inputs.grid
+    tu = spec.initial.upper_temperature_k
+    if tu <= 0.0:
+        tu = float(np.max(grid[k.G_TLIQ] / grid[k.G_F])) + 50.0
+    tc = spec.initial.core_temperature_k
+    if tc <= 0.0:
+        tc = tu * grid[k.G_F, 0] + spec.initial.initial_cmb_jump_k
+    return float(tu), float(tc)
+
+
+def initial_state(spec, inputs) -> np.ndarray:
+    """The integrator's state at the start (S_* of :mod:`meltzone._core.layout`): energies of the initial
+    temperatures, the minimal lid in stagnant-lid mode, a first step of 1 s, no rheological switch yet."""
+    from .._core.physics import energy_state  # numba: imported when a run starts
+
+    tu, tc = initial_temperatures(spec, inputs)
+    state = np.zeros(k.N_STATE)
+    lid = LID_MIN if inputs.par[k.P_STAGNANT] > 0.5 else 0.0
+    y = np.zeros(k.N_Y)
+    energy_state(tu, tc, lid, 0.0, inputs.grid, inputs.core, inputs.par, inputs.law, y)
+    state[k.S_Y:k.S_Y + k.N_Y] = y
+    state[k.S_H] = 1.0  # [s]; the controller grows it
+    state[k.S_TU] = tu
+    state[k.S_TC] = tc
+    state[k.S_T_SWITCH] = k.NOT_YET
+    return state
+
+
+def integrate(spec, inputs, progress=None, history_rows=4096, interval_rows=8192):
+    """Run the integrator from :func:`initial_state` to the end time, growing the buffers (initial sizes
+    ``history_rows``, ``interval_rows``) when they fill. Returns (hist, temps, phis, iv, state), trimmed (the
+    profiles as views of their buffers: copying them costs more than the rest of the wrapper)."""
+    from .._core.loop import integrate as step_all
+
+    n = inputs.grid.shape[1]
+    hist = np.zeros((history_rows, k.N_H))
+    temps = np.zeros((history_rows, n))
+    phis = np.zeros((history_rows, n))
+    iv = np.zeros((interval_rows, k.N_I))
+    state = initial_state(spec, inputs)
+    max_steps = spec.run.max_steps
+    chunk = PROGRESS_STEPS if progress is not None else max_steps
+    while True:
+        done = int(state[k.S_N_H]) - 1
+        status = step_all(state, *inputs, hist, temps, phis, iv, min(chunk, max_steps - max(done, 0)))
+        done = int(state[k.S_N_H]) - 1
+        if progress is not None:
+            progress(state[k.S_T])
+        if status == k.STATUS_DONE:
+            break
+        if status == k.STATUS_HISTORY_FULL:
+            hist, temps, phis = (np.concatenate([a, np.zeros_like(a)]) for a in (hist, temps, phis))
+        elif status == k.STATUS_INTERVALS_FULL:
+            iv = np.concatenate([iv, np.zeros_like(iv)])
+        elif status == k.STATUS_MAX_STEPS:
+            if done >= max_steps:
+                raise ConvergenceError(
+                    f"{spec.planet.name}: the evolution reached run.max_steps = {max_steps} at model time "
+                    f"{state[k.S_T] / GYR:.4g} Gyr; raise run.max_steps or run.max_temperature_step_k")
+        elif status == k.STATUS_STEP_TOO_SMALL:
+            raise ConvergenceError(
+                f"{spec.planet.name}: the time step collapsed at model time {state[k.S_T] / YEAR:.4g} yr "
+                f"(T_u = {state[k.S_TU]:.1f} K, T_c = {state[k.S_TC]:.1f} K); raise run.rtol or run.atol_k")
+    n_h = int(state[k.S_N_H])
+    n_iv = int(state[k.S_N_IV])
+    return hist[:n_h].copy(), temps[:n_h], phis[:n_h], iv[:n_iv].copy(), state
+
+
+def run(spec, interior, curves, progress=None, *, history_rows=4096, interval_rows=8192) -> History:
+    """Evolve one planet with the boundary-layer scheme and return its :class:`History`.
+
+    ``curves``: :func:`meltzone.melting.node_curves` on the interior's mantle nodes. ``progress``, if given, is
+    called with the model time reached [s] every PROGRESS_STEPS accepted steps."""
+    inputs = build_inputs(spec, interior, curves)
+    hist, temps, phis, iv, state = integrate(spec, inputs, progress, history_rows, interval_rows)
+    column = {name: j for j, name in enumerate(k.HISTORY_COLUMNS)}
+    series = {name: hist[:, column[name]].copy() for name in SERIES if name in column}
+    series["regime"] = series["regime"].astype(np.int8)
+    # closure: stored-energy loss against the time-integrated (surface heat loss - radiogenic heating)
+    de = series["stored_energy"][0] - series["stored_energy"]
+    scale = max(float(np.max(np.abs(de))), 1.0)
+    series["closure_error"] = (de - series["heat_out_minus_radiogenic"]) / scale
+    intervals = {name: iv[:, k.INTERVAL_COLUMNS.index(name)].copy() for name in INTERVAL_FIELDS}
+    for name in INTEGER_INTERVAL_FIELDS:
+        intervals[name] = intervals[name].astype(np.int64)
+    grid = inputs.grid
+    t_switch = float(state[k.S_T_SWITCH])
+    history = History(
+        scheme=SCHEME.name, time=hist[:, k.H_T].copy(), series=series, temperature=temps, melt_fraction=phis,
+        intervals=intervals,
+        grid=MantleGrid(radius=grid[k.G_R].copy(), pressure=grid[k.G_P].copy(), mass=grid[k.G_W].copy(),
+                        solidus=grid[k.G_TSOL].copy(), liquidus=grid[k.G_TLIQ].copy()),
+        critical_melt_fraction=float(inputs.par[k.P_PHI_C]),
+        switch_times={SWITCH: None if t_switch >= k.NOT_YET else t_switch},
+        n_rejected=int(state[k.S_N_REJ]),
+        scheme_data={"grid": grid, "core": inputs.core, "iso": inputs.iso, "par": inputs.par,
+                     "law": np.int64(inputs.law)})
+    history.evaluator = Evaluator(history)
+    return history
+
+
+def _hermite(t, t0, t1, y0, y1, d0, d1):
+    h = t1 - t0
+    s = (t - t0) / h
+    h00 = 2 * s**3 - 3 * s**2 + 1
+    h10 = s**3 - 2 * s**2 + s
+    h01 = -2 * s**3 + 3 * s**2
+    h11 = s**3 - s**2
+    return h00 * y0 + h10 * h * d0 + h01 * y1 + h11 * h * d1
+
+
+class Evaluator:
+    """The state inside a step: T_u, T_c and the lid by cubic Hermite interpolation (values and rates at both
+    ends of the step), then the core's diagnostics and profile at that state and time."""
+
+    def __init__(self, history: History):
+        d = history.scheme_data
+        self.inputs = k.KernelInputs(*(np.ascontiguousarray(d[name], dtype=np.float64)
+                                     for name in ("grid", "core", "iso", "par")), int(d["law"]))
+        h = history
+        self.t = h.time
+        self.cols = [(h["upper_temperature"], h["upper_temperature_rate"]),
+                     (h["core_temperature"], h["core_temperature_rate"]),
+                     (h["lid_thickness"], h["lid_rate"])]
+        self.stagnant = self.inputs.par[k.P_STAGNANT] > 0.5
+        switch = h.switch_times.get(SWITCH)
+        self.t_switch = k.NOT_YET if switch is None else float(switch)
+
+    def state(self, t: float) -> tuple[float, float, float]:
+        """(T_u [K], T_c [K], lid [m]) at model time ``t`` [s]."""
+        times = self.t
+        if not times[0] <= t <= times[-1]:
+            raise ValueError(f"time {t:g} s is outside the run ({times[0]:g} - {times[-1]:g} s)")
+        s = max(int(np.searchsorted(times, t, side="left")), 1)
+        if len(times) == 1:
+            vals = [float(v[0]) for v, _ in self.cols]
+        else:
+            vals = [_hermite(t, times[s - 1], times[s], v[s - 1], v[s], d[s - 1], d[s]) for v, d in self.cols]
+        if not self.stagnant:
+            vals[2] = 0.0
+        return float(vals[0]), float(vals[1]), float(max(vals[2], 0.0))
+
+    def at(self, t: float) -> InStep:
+        from .._core.physics import profile_at
+
+        tu, tc, lid = self.state(t)
+        grid, core, iso, par, law = self.inputs
+        n = grid.shape[1]
+        temp = np.empty(n)
+        phi = np.empty(n)
+        diag = np.empty(k.N_D)
+        profile_at(float(t), tu, tc, lid, self.t_switch, grid, core, iso, par, law, temp, phi, diag)
+        return InStep(temperature=temp, melt_fraction=phi, regime_melt_fraction=float(diag[k.D_PHI_TOP]),
+                      centre_freezing_margin_k=float(core[k.C_TMELT, 0] - tc * core[k.C_F, 0]))
+
+
+SCHEME = Scheme(name="boundary-layer",
+                description="one potential temperature with thermal boundary layers (fast; parameter studies)",
+                run=run, evaluator=Evaluator)
