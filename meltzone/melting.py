@@ -107,19 +107,6 @@ HIGH_PRESSURE_MODEL_MAX_PA = 5.0 * TPA
 #: Science 329:1516; Andrault et al. 2011, EPSL 304:251: diamond cell to ~140 GPa).
 WHOLE_MANTLE_VALIDATED_PA = 140.0 * GPA
 
-# ----------------------------------------------------------------- iron (core) melting
-#: Anzellini et al. 2013, Science 340:464: Simon-Glatzel branches (T0 [K], P0 [GPa], a [GPa], c);
-#: the fit is from memory but reproduces the checked 6230 +- 500 K at 330 GPa. Branch 1 from the
-#: delta-gamma-liquid triple point (5.2 GPa, 1991 K) to the gamma-epsilon-liquid triple point
-#: (98.5 GPa, 3712 K); branch 2 above. The two meet within 1 K.
-ANZELLINI2013_BRANCHES = ((1991.0, 5.2, 27.39, 2.38), (3712.0, 98.5, 161.2, 1.72))
-#: Pressure of the gamma-epsilon-liquid triple point of iron [GPa] (Anzellini et al. 2013).
-ANZELLINI2013_TRIPLE_POINT_GPA = 98.5
-#: Top of the static experiments on iron melting [Pa] (Anzellini et al. 2013: to ~330 GPa);
-#: laser-shock points to ~1 TPa agree (Kraus et al. 2022, Science; from memory).
-IRON_VALIDATED_MAX_PA = 330.0 * GPA
-
-
 # ============================================================================ published curves
 def _quadratic_c(p_gpa, c0, c1, c2):
     """Quadratic in P [GPa] with coefficients in degrees C, returned in K."""
@@ -150,7 +137,7 @@ def _katz2003_liquidus(p_gpa):
     return _quadratic_c(p_gpa, 1780.0, 45.0, -2.0)
 
 
-def _simon_glatzel(p_gpa, t0, p0, a, c):
+def simon_glatzel(p_gpa, t0, p0, a, c):
     """Simon-Glatzel law T = T0 ((P - P0) / a + 1)^(1/c) (Simon & Glatzel 1929, Z. anorg. allg. Chem. 178:309)."""
     return t0 * ((p_gpa - p0) / a + 1.0) ** (1.0 / c)
 
@@ -172,8 +159,8 @@ def _branch_crossing(branches, lo=MONTEUX2016_BRANCH_GPA, hi=MONTEUX2016_BRANCH_
     < 1 K (derived).
     """
     def gap(p):
-        return (_simon_glatzel(p, branches[0][0], 0.0, *branches[0][1:])
-                - _simon_glatzel(p, branches[1][0], 0.0, *branches[1][1:]))
+        return (simon_glatzel(p, branches[0][0], 0.0, *branches[0][1:])
+                - simon_glatzel(p, branches[1][0], 0.0, *branches[1][1:]))
 
     if gap(lo) * gap(hi) > 0.0:
         return MONTEUX2016_BRANCH_GPA
@@ -196,8 +183,8 @@ def _monteux2016(p_gpa, curve):
     The branches switch where they meet near 20 GPa (see :func:`_branch_crossing`).
     """
     ((t_lo, a_lo, c_lo), (t_hi, a_hi, c_hi)), switch_gpa = curve
-    low = _simon_glatzel(p_gpa, t_lo, 0.0, a_lo, c_lo)
-    high = _simon_glatzel(p_gpa, t_hi, 0.0, a_hi, c_hi)
+    low = simon_glatzel(p_gpa, t_lo, 0.0, a_lo, c_lo)
+    high = simon_glatzel(p_gpa, t_hi, 0.0, a_hi, c_hi)
     return np.where(p_gpa <= switch_gpa, low, high)
 
 
@@ -219,7 +206,7 @@ def _whole_mantle(p_gpa, curve):
     """Monteux et al. 2016 up to the tangent join, then T(P_j) (P/P_j)^0.48 (Stixrude 2014 form)."""
     t_high, a_high, c_high = curve[0][1]
     p_join = _tangent_power_law_join(curve[0][1])
-    t_join = _simon_glatzel(p_join, t_high, 0.0, a_high, c_high)
+    t_join = simon_glatzel(p_join, t_high, 0.0, a_high, c_high)
     # np.maximum keeps the unused branch of np.where finite at P = 0
     continued = t_join * (np.maximum(p_gpa, 1e-30) / p_join) ** STIXRUDE_EXPONENT
     return np.where(p_gpa <= p_join, _monteux2016(p_gpa, curve), continued)
@@ -639,34 +626,3 @@ def melt_fraction_at(model: MeltingModel, pressure_pa, temperature_k, law: str =
     phi = melt_fraction(t.ravel(), c["solidus"], c["liquidus"], c["aux1"], c["aux2"], c["law_code"])
     phi = np.reshape(phi, p.shape)
     return phi[()] if phi.ndim == 0 else phi
-
-
-# ============================================================================ iron alloy (core)
-def iron_melting_temperature(pressure_pa, depression_k: float = 0.0):
-    """Melting temperature [K] of the core alloy: pure iron (Anzellini et al. 2013) minus a depression.
-
-    Simon-Glatzel branches of Anzellini et al. 2013, Science 340:464 (6230 +- 500 K at
-    330 GPa, checked; fit coefficients from memory): T = 1991 ((P - 5.2)/27.39 + 1)^(1/2.38)
-    up to the triple point at 98.5 GPa / 3712 K, then 3712 ((P - 98.5)/161.2 + 1)^(1/1.72).
-    Validated to ~330 GPa (static experiments); laser-shock points to ~1 TPa agree (Kraus et
-    al. 2022, Science). Beyond, the fit is extrapolated (a monotone power law). Below 5.2 GPa
-    the first branch is used down to 0 GPa (1822 K at 1 bar against 1811 K measured for iron).
-
-    Parameters
-    ----------
-    pressure_pa : array_like
-        Pressure [Pa], >= 0.
-    depression_k : float
-        Lowering by light elements [K], >= 0 (``melting.core_melting_depression_k``).
-    """
-    p_gpa = np.asarray(pressure_pa, dtype=float) / GPA
-    if not np.all(np.isfinite(p_gpa)) or np.any(p_gpa < 0.0):
-        raise ModelError(f"iron melting: pressure must be finite and >= 0, got {pressure_pa!r}")
-    if not math.isfinite(depression_k) or depression_k < 0.0:
-        raise ModelError(f"iron melting: depression must be a finite number >= 0 K, got {depression_k!r}")
-    low, high = ANZELLINI2013_BRANCHES
-    t = np.where(p_gpa <= ANZELLINI2013_TRIPLE_POINT_GPA, _simon_glatzel(p_gpa, *low),
-                 _simon_glatzel(np.maximum(p_gpa, high[1]), *high)) - depression_k
-    if np.any(t <= 0.0):
-        raise ModelError(f"iron melting: a depression of {depression_k:g} K leaves no positive melting temperature")
-    return t[()] if t.ndim == 0 else t

@@ -233,10 +233,10 @@ IRON_SHOCK_DATA_LIMIT_PA = 1.0 * TPA
 
 def core_flags(depth_m, pressure_pa) -> list[dict]:
     """High-pressure flags of the core: depths where the iron melting curve (which sets the inner core) is used
-    beyond its static experiments (:data:`meltzone.melting.IRON_VALIDATED_MAX_PA`, ~330 GPa; Anzellini et al.
+    beyond its static experiments (:data:`meltzone.iron.IRON_VALIDATED_MAX_PA`, ~330 GPa; Anzellini et al.
     2013, Science 340:464). Kind ``extrapolated-iron-melting``; confidence ``medium`` up to the laser-shock
     data (:data:`IRON_SHOCK_DATA_LIMIT_PA`), ``low`` above. Same zone dicts as :func:`flags`."""
-    from .melting import IRON_VALIDATED_MAX_PA
+    from .iron import IRON_VALIDATED_MAX_PA
 
     order = np.argsort(np.asarray(depth_m, dtype=float), kind="stable")
     depth = np.asarray(depth_m, dtype=float)[order]

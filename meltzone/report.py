@@ -307,7 +307,7 @@ def sweep_summary_lines(s: dict) -> list[str]:
 def print_sweep_summary(path, as_json: bool = False) -> None:
     """Print the summary of the sweep file at ``path`` as a table or, with ``as_json``, as one JSON object
     (SI units, times in years). ResultsFileError naming the file when it is not a readable sweep file."""
-    from .sweep.stats import summary_dict
+    from .sweep import summary_dict
 
     s = summary_dict(path)
     print(json.dumps(s, indent=2, allow_nan=False) if as_json else "\n".join(sweep_summary_lines(s)))

@@ -45,6 +45,7 @@ from scipy.optimize import brentq
 from meltzone import melting
 from meltzone.evolution.heating import ISOTOPES
 from meltzone.interior import build_interior
+from meltzone.iron import iron_melting_temperature
 
 #: Molar gas constant [J/mol/K] (CODATA 2018).
 R_GAS = 8.314462618
@@ -185,7 +186,7 @@ def build_inputs(spec, interior=None):
         enclosed = np.array([shell_mass(0.0, x, r_c, rho_c) if x > 0 else 0.0 for x in r_c])
         core = CoreNodes(r=r_c, adiabat=it.adiabat[:nc], mass=node_masses(r_c, rho_c, it.core_mass),
                          enclosed=enclosed * (it.core_mass / enclosed[-1]),
-                         melting=melting.iron_melting_temperature(it.P[:nc], spec.melting.core_melting_depression_k))
+                         melting=iron_melting_temperature(it.P[:nc], spec.melting.core_melting_depression_k))
     cv, sf = spec.convection, spec.surface
     scale = spec.heating.radiogenic_scale
     phys = Physics(

@@ -15,7 +15,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.optimize import brentq
 
-from meltzone import melting
+from meltzone import iron, melting
 from meltzone.errors import ModelError
 
 GPA = 1e9
@@ -481,34 +481,34 @@ def test_missing_table_file(tmp_path):
 # ------------------------------------------------------------------ iron
 def test_anzellini2013_iron_at_330_gpa():
     """Anzellini et al. 2013, Science 340:464 (checked): 6230 +- 500 K at 330 GPa (inner-core boundary)."""
-    assert melting.iron_melting_temperature(330 * GPA) == pytest.approx(6230.0, abs=500.0)
+    assert iron.iron_melting_temperature(330 * GPA) == pytest.approx(6230.0, abs=500.0)
 
 
 def test_anzellini2013_triple_point():
     """Anzellini et al. 2013 (fit from memory): both branches pass the gamma-epsilon-liquid triple point
     98.5 GPa / 3712 K; tol 1 K on each side."""
     for p in (98.5 - 1e-9, 98.5 + 1e-9):
-        assert melting.iron_melting_temperature(p * GPA) == pytest.approx(3712.0, abs=1.0)
+        assert iron.iron_melting_temperature(p * GPA) == pytest.approx(3712.0, abs=1.0)
 
 
 def test_iron_melting_against_laser_shock_points():
     """Kraus et al. 2022, Science (from memory): solid at 991 GPa / 10766 K (the curve must lie above it);
     liquid at 556 GPa / 8085 K (the curve within 2% of it, inside their temperature uncertainty)."""
-    assert melting.iron_melting_temperature(991 * GPA) > 10766.0
-    assert melting.iron_melting_temperature(556 * GPA) == pytest.approx(8085.0, rel=0.02)
+    assert iron.iron_melting_temperature(991 * GPA) > 10766.0
+    assert iron.iron_melting_temperature(556 * GPA) == pytest.approx(8085.0, rel=0.02)
 
 
 def test_iron_melting_one_bar_and_depression():
     """Iron melts at 1811 K at 1 bar (common practice); the fit's low branch gives it within 15 K.
     A light-element depression subtracts exactly; bad input raises ModelError."""
-    assert melting.iron_melting_temperature(1e5) == pytest.approx(1811.0, abs=15.0)
+    assert iron.iron_melting_temperature(1e5) == pytest.approx(1811.0, abs=15.0)
     p = np.array([100.0, 330.0, 1000.0]) * GPA
-    np.testing.assert_allclose(melting.iron_melting_temperature(p) - melting.iron_melting_temperature(p, 700.0),
+    np.testing.assert_allclose(iron.iron_melting_temperature(p) - iron.iron_melting_temperature(p, 700.0),
                                700.0, rtol=1e-12)
     with pytest.raises(ModelError):
-        melting.iron_melting_temperature(-1.0)
+        iron.iron_melting_temperature(-1.0)
     with pytest.raises(ModelError):
-        melting.iron_melting_temperature(1e9, -5.0)
+        iron.iron_melting_temperature(1e9, -5.0)
 
 
 def test_peridotite_mantle_composite_follows_its_sources():

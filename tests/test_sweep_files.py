@@ -229,6 +229,6 @@ def test_import_is_light_and_the_public_names_stay():
 
     assert sweep.infer_core_fraction is meltzone.interior.infer_core_fraction
     assert meltzone.run_sweep is sweep.run_sweep
-    for name in ("load_spec", "read_sweep", "summary_dict", "print_summary", "plot_sweep", "binomial_estimate",
+    for name in ("load_spec", "read_sweep", "summary_dict", "plot_sweep", "binomial_estimate",
                  "progress_path", "EXAMPLE_SPEC", "SweepIncomplete", "SweepSpec"):
         assert name in sweep.__all__ and getattr(sweep, name) is not None, name

@@ -20,7 +20,7 @@ from click.testing import CliRunner
 from meltzone.cli import main
 from meltzone.constants import EARTH_RADIUS
 from meltzone.errors import MeltzoneError
-from meltzone.sweep import (FAILED, OK, REJECTED, plot_sweep, print_summary, progress_path, read_sweep,
+from meltzone.sweep import (FAILED, OK, REJECTED, plot_sweep, progress_path, read_sweep,
                             run_sweep, summary_dict)
 
 TINY = {"interior": {"mantle_nodes": 64}, "run": {"end_time_gyr": 0.05}}
@@ -438,6 +438,8 @@ def test_keep_detail_writes_run_files(tmp_path):
 
 
 def test_print_summary_json_and_table(serial_file, capsys):
+    from meltzone.report import print_sweep_summary as print_summary
+
     print_summary(serial_file, as_json=True)
     data = json.loads(capsys.readouterr().out)
     assert data["n_cases"] == 8 and data["n_ok"] == 8 and data["mode"] == "latin-hypercube"

@@ -107,7 +107,9 @@ from .. import melting
 from .._core import layout as k
 from ..constants import GYR, MYR, YEAR
 from ..errors import ConvergenceError
-from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid, Scheme
+from ..iron import iron_melting_temperature
+from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid
+from .schemes import Scheme
 
 #: Lid thickness [m] below which a stagnant lid is not resolved (its starting value).
 LID_MIN = 1.0e3
@@ -150,7 +152,7 @@ def build_inputs(spec, interior, curves):
         core[k.C_R] = it.r[cs]
         core[k.C_F] = it.adiabat[cs]
         core[k.C_W] = _node_weights(it.r[cs], it.m[cs], 0.0, it.core_mass)
-        core[k.C_TMELT] = melting.iron_melting_temperature(it.P[cs], spec.melting.core_melting_depression_k)
+        core[k.C_TMELT] = iron_melting_temperature(it.P[cs], spec.melting.core_melting_depression_k)
         core[k.C_MCUM] = it.m[cs]
     else:  # coreless planet: a dummy core without heat capacity that never freezes
         core[k.C_F] = 1.0

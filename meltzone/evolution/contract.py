@@ -1,7 +1,8 @@
 """The evolution contract: what every scheme returns, and how a scheme is found.
 
-A scheme is a function ``run(spec, interior, curves, progress=None) -> History``
-registered in :mod:`meltzone.evolution.schemes` under the name the user gives
+A scheme (:class:`meltzone.evolution.schemes.Scheme`) is a function
+``run(spec, interior, curves, progress=None) -> History`` registered in
+:mod:`meltzone.evolution.schemes` under the name the user gives
 in ``convection.scheme``. Everything below the scheme (layers, results files,
 reports, figures, sweeps) sees only :class:`History` (wrapped in a
 ``meltzone.results.Result``): no kernel module, no index constants, no packed
@@ -13,7 +14,7 @@ Units are SI throughout (time in seconds); conversions happen at the edges.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Callable, Protocol
+from typing import Protocol
 
 import numpy as np
 
@@ -158,14 +159,3 @@ class History:
             raise ValueError(f"profiles must be {shape}")
         if set(self.intervals) != set(INTERVAL_FIELDS):
             raise ValueError("intervals must have the fields of INTERVAL_FIELDS")
-
-
-@dataclass(frozen=True)
-class Scheme:
-    """An evolution scheme: its name (the value of ``convection.scheme``), how to run it, and how to rebuild
-    its in-step evaluator from a History (after a file is read)."""
-
-    name: str
-    description: str
-    run: Callable  #: (spec, interior, curves, progress=None) -> History
-    evaluator: Callable  #: (History) -> Evaluator

@@ -1,4 +1,4 @@
-"""The table of evolution schemes: ``convection.scheme`` -> :class:`~meltzone.evolution.contract.Scheme`.
+"""The table of evolution schemes: ``convection.scheme`` -> :class:`Scheme`.
 
 Each entry names the module that defines the scheme's ``SCHEME`` object; the module is imported only when
 the scheme is used, so that choosing one scheme never compiles another's kernels. A new scheme plugs in by
@@ -8,10 +8,23 @@ nothing downstream of :class:`~meltzone.evolution.contract.History` changes.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from importlib import import_module
+from typing import Callable
 
 from ..errors import ConfigError
-from .contract import Scheme
+
+
+@dataclass(frozen=True)
+class Scheme:
+    """An evolution scheme: its name (the value of ``convection.scheme``), how to run it, and how to rebuild
+    its in-step evaluator from a History (after a file is read)."""
+
+    name: str
+    description: str
+    run: Callable  #: (spec, interior, curves, progress=None) -> History
+    evaluator: Callable  #: (History) -> Evaluator
+
 
 #: scheme name -> module that defines ``SCHEME``
 TABLE = {

@@ -24,24 +24,25 @@ from .file import read_sweep, write_sweep_file
 from .plot import SWEEP_FIGURES, plot_sweep
 from .run import SweepIncomplete, SweepReport, run_sweep
 from .spec import MODES, SWEEP_SCHEMA_VERSION, Observed, Parameter, SweepSpec, load_spec, lognormal_parameters
-from .stats import binomial_estimate, observed_probabilities, summary_dict
+from .stats import binomial_estimate, observed_probabilities, summarize_sweep
 from .worker import AGE_FLAGS, FAILED, FLAGS, METRICS, OK, REJECTED, STATUS_MEANINGS
 
-__all__ = ["SweepSpec", "load_spec", "run_sweep", "infer_core_fraction", "print_summary", "summary_dict",
+__all__ = ["SweepSpec", "load_spec", "run_sweep", "infer_core_fraction", "summary_dict",
            "plot_sweep", "read_sweep", "binomial_estimate", "progress_path", "EXAMPLE_SPEC", "SweepIncomplete",
            "SweepReport", "write_sweep_file", "observed_probabilities", "detail_path", "lognormal_parameters",
            "Parameter", "Observed", "MODES", "SWEEP_SCHEMA_VERSION", "SWEEP_FIGURES", "METRICS", "FLAGS",
            "AGE_FLAGS", "OK", "FAILED", "REJECTED", "STATUS_MEANINGS"]
 
 
+def summary_dict(path) -> dict:
+    """Compact statistics of the sweep file at ``path`` (:func:`.stats.summarize_sweep` of its content)."""
+    return summarize_sweep(read_sweep(path), path)
+
+
 def __getattr__(name: str):
-    # loaded on first use: meltzone.interior imports scipy, meltzone.report is the text side
+    # loaded on first use: meltzone.interior imports scipy
     if name == "infer_core_fraction":
         from ..interior import infer_core_fraction
 
         return infer_core_fraction
-    if name == "print_summary":
-        from ..report import print_sweep_summary
-
-        return print_sweep_summary
     raise AttributeError(f"module 'meltzone.sweep' has no attribute {name!r}")

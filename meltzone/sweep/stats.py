@@ -68,13 +68,10 @@ def _stats(values: np.ndarray) -> dict:
     return {"n": int(len(v)), "min": float(np.min(v)), "median": float(np.median(v)), "max": float(np.max(v))}
 
 
-def summary_dict(path) -> dict:
-    """Compact statistics of a sweep file: counts, failures, inputs and metrics (min/median/max over the
-    cases that ran), yes/no outcome fractions with binomial standard errors, and the observed-mode
-    probabilities."""
-    from .file import read_sweep
-
-    data = read_sweep(path)
+def summarize_sweep(data: dict, path) -> dict:
+    """Compact statistics of a sweep file's content ``data`` (:func:`meltzone.sweep.read_sweep` of ``path``):
+    counts, failures, inputs and metrics (min/median/max over the cases that ran), yes/no outcome fractions
+    with binomial standard errors, and the observed-mode probabilities."""
     a = data["attrs"]
     c = data["cases"]
     status = c["status"]
