@@ -255,6 +255,8 @@ def summarize(result, table=None, events=None) -> dict:
     basal = basal_layer(result, table, events, after_s=0.0 if not at_start else mo_end_s)
     n_layers = int(len(np.unique(table["layer"]))) if len(table["layer"]) else 0
     closure = float(result.energy_closure)
+    rheo = rheological_transition(result)
+    per_step = np.bincount(np.asarray(result.intervals["step"], dtype=np.int64), minlength=len(h["time"]))
     return {
         "planet": result.spec.planet.name,
         "mass_kg": it.mass,
@@ -266,6 +268,9 @@ def summarize(result, table=None, events=None) -> dict:
         "last_melt_yr": last_melt,
         "melt_at_end": still,
         "basal_layer": basal,
+        "rheological_transition_yr": None if rheo is None else rheo / YEAR,
+        "first_crystal_depth_m": first_crystal_depth(result),
+        "max_simultaneous_layers": int(per_step.max()) if len(per_step) else 0,
         "final_upper_temperature_k": float(h["upper_temperature"][-1]),
         "final_surface_heat_flow_w": float(h["surface_heat_flow"][-1]),
         "final_cmb_heat_flow_w": float(h["cmb_heat_flow"][-1]),
@@ -280,6 +285,39 @@ def summarize(result, table=None, events=None) -> dict:
                     "depth_m": None if math.isnan(e["depth"]) else e["depth"],
                     "pressure_pa": None if math.isnan(e["pressure"]) else e["pressure"]} for e in events],
     }
+
+
+def rheological_transition(result):
+    """Model time [s] at which no mantle node is above the critical melt fraction any more (the whole mantle
+    has passed the rheological transition; Abe 1997, PEPI 100:27; Solomatov 2015), refined inside its step;
+    None when some node is above it at the end, or when none was at the start (nothing happened)."""
+    h = result.history
+    phi_c = h.critical_melt_fraction
+    above = np.max(h.melt_fraction, axis=1) > phi_c
+    if not above[0] or above[-1]:
+        return None
+    s = int(len(above) - np.argmax(above[::-1]))  # first step of the final stretch with none above
+    t = h.time
+    return _refine(lambda tt: float(np.max(h.at(tt).melt_fraction)) - phi_c, t[s - 1], t[s])
+
+
+def first_crystal_depth(result):
+    """Depth [m] where crystallisation starts: of the mantle nodes fully molten at the start, the one whose
+    melt fraction first falls below 1 (the most crystallised when several do so in the same step); None when no
+    node starts fully molten or none has crystallised by the end."""
+    h = result.history
+    phi = h.melt_fraction
+    molten = phi[0] >= 1.0
+    if not np.any(molten):
+        return None
+    below = (phi < 1.0) & molten
+    steps = np.where(below.any(axis=0), np.argmax(below, axis=0), len(phi))
+    first = int(steps.min())
+    if first >= len(phi):
+        return None
+    candidates = np.flatnonzero(steps == first)
+    node = int(candidates[np.argmin(phi[first, candidates])])
+    return float(result.interior.radius - h.grid.radius[node])
 
 
 def basal_layer(result, table, events, after_s=0.0):

@@ -179,6 +179,16 @@ def _melt_text(s: dict) -> str:
     return f"{text}; deepest melt {km(s['max_melt_depth_m'])} km ({gpa(s['max_melt_pressure_pa'])} GPa)"
 
 
+def _crystallisation_text(s: dict) -> str:
+    depth = s.get("first_crystal_depth_m")
+    rheo = s.get("rheological_transition_yr")
+    first = "none fully molten at the start" if depth is None else f"starts at {km(depth)} km depth"
+    whole = ("the whole mantle below the rheological transition after " + format_years(rheo)) if rheo is not None \
+        else "some of the mantle above the rheological transition at the end" if s["magma_ocean_at_end"] \
+        else "no part above the rheological transition at the start"
+    return f"{first}; {whole}; at most {s.get('max_simultaneous_layers', 0)} melt layers at once"
+
+
 def _basal_text(s: dict) -> str:
     b = s["basal_layer"]
     if b is None:
@@ -204,6 +214,7 @@ def head_lines(result, s: dict) -> list[str]:
         f"({result.wall_time_s:.2g} s), {spec.convection.scheme} scheme, {spec.convection.regime}, melting model "
         f"{result.melting_model}",
         f"magma ocean       {_magma_ocean_text(s)}",
+        f"crystallisation   {_crystallisation_text(s)}",
         f"partial melt      {_melt_text(s)}",
         f"basal melt layer  {_basal_text(s)}",
         f"at the end        T_u {s['final_upper_temperature_k']:,.0f} K, surface heat flow "

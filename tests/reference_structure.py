@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import math
 
-import numpy as np
 from scipy.integrate import solve_ivp
 from scipy.optimize import brentq
 

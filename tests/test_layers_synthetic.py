@@ -131,3 +131,22 @@ def test_two_layers_that_never_touch_keep_their_ids():
     assert not [e for e in events if e["kind"] in ("split", "merged", "froze")]
     for s in range(3):
         assert sorted(table["layer"][table["step"] == s]) == [0, 1]
+
+
+def test_rheological_transition_first_crystal_and_simultaneous_layers():
+    """Outcomes of the profiles alone. Rheological transition: the time the largest melt fraction falls to
+    phi_c = 0.4 (linear in time inside the step here, so T_sol + 400 K is crossed at a known fraction of it);
+    first crystal: the fully molten node that first falls below phi = 1; at most two melt layers at once."""
+    full, partial = SOLIDUS + 1200.0, SOLIDUS + 200.0  # phi = 1 (clipped) and 0.2
+    p0 = _profile((0, N - 1), hot=full)
+    p1 = p0.copy()
+    p1[6] = SOLIDUS + 900.0  # node 6 crystallises first (phi 0.9)
+    p2 = _profile((0, 5), (9, N - 1), hot=SOLIDUS + 600.0)  # two layers, phi 0.6
+    p3 = _profile((0, 5), (9, N - 1), hot=partial)  # phi 0.2 everywhere molten
+    res = _result([p0, p1, p2, p3])
+    t = layers.rheological_transition(res)
+    # max phi falls linearly from 0.6 to 0.2 over the last step (200 s -> 300 s): 0.4 at 250 s
+    assert t == pytest.approx(250.0, rel=1e-9)
+    assert layers.first_crystal_depth(res) == pytest.approx(R_TOP - _grid().radius[6], rel=1e-12)
+    per_step = np.bincount(res.intervals["step"])
+    assert per_step.max() == 2

@@ -26,7 +26,7 @@ from meltzone.errors import ResultsFileError
 
 GROUPS = {  # group -> dimensions it must have (named, as xarray reports them)
     "structure": {"node", "material"},
-    "history": {"step", "mantle_node"},
+    "history": {"time", "mantle_node"},
     "intervals": {"interval"},
     "layers": {"row"},
     "events": {"event"},
@@ -63,12 +63,19 @@ def test_xarray_opens_every_group_with_named_dimensions(run_file, group):
             assert "units" in var.attrs and "long_name" in var.attrs, name
 
 
-def test_xarray_reads_times_as_seconds_and_auxiliary_coordinates(run, run_file):
-    """Times stay float64 seconds (units "s" is not decoded to timedeltas); time and radius are coordinates."""
-    with xr.open_dataset(run_file, engine="h5netcdf", group="history") as ds:
-        assert "time" in ds.coords and ds["time"].dtype == np.float64 and ds["time"].attrs["units"] == "s"
-        np.testing.assert_array_equal(ds["time"].values, run.time)
+def test_xarray_reads_times_as_years_and_auxiliary_coordinates(run, run_file):
+    """Every time axis is model time in years (units "yr", which xarray does not decode to timedeltas, also with
+    decode_timedelta=True); model time is the history's dimension coordinate; radius is a coordinate."""
+    from meltzone.constants import YEAR
+
+    with xr.open_dataset(run_file, engine="h5netcdf", group="history", decode_timedelta=True) as ds:
+        assert ds["time"].dims == ("time",) and ds["time"].dtype == np.float64 and ds["time"].attrs["units"] == "yr"
+        np.testing.assert_allclose(ds["time"].values * YEAR, run.time, rtol=1e-15)
+        assert ds["upper_temperature"].dims == ("time",) and ds["temperature"].dims == ("time", "mantle_node")
         np.testing.assert_array_equal(ds["upper_temperature"].values, run.history["upper_temperature"])
+    for group, name in (("layers", "time"), ("events", "time"), ("snapshots", "snapshot_time")):
+        with xr.open_dataset(run_file, engine="h5netcdf", group=group, decode_timedelta=True) as ds:
+            assert ds[name].dtype == np.float64 and ds[name].attrs["units"] == "yr", group
     with xr.open_dataset(run_file, engine="h5netcdf", group="structure") as ds:
         assert "radius" in ds.coords
         np.testing.assert_array_equal(ds["pressure"].values, run.interior.P)
@@ -136,6 +143,9 @@ def test_round_trip_is_lossless(run, run_file):
         assert set(x) == set(y), group
         for name in x:
             u, v = np.asarray(x[name]), np.asarray(y[name])
+            if name == "time":  # stored in years: seconds come back within a rounding of the conversion
+                assert u.dtype == v.dtype and np.allclose(u, v, rtol=4e-16, atol=0), f"{group}/{name}"
+                continue
             assert u.dtype == v.dtype and np.array_equal(u, v), f"{group}/{name}"
     assert (b.scheme, b.critical_melt_fraction, b.switch_times) == (a.scheme, a.critical_melt_fraction,
                                                                      a.switch_times)
@@ -173,16 +183,30 @@ def test_loaded_layers_events_flags_and_snapshots(run, run_file):
     loaded = meltzone.load(run_file)
     table, events = run.tracked()
     lt, le = loaded.tracked()
-    assert set(lt) == set(table) and all(np.array_equal(lt[k], table[k], equal_nan=True) for k in table)
+    def same(a, b):  # times are stored in years: seconds come back within a rounding of the conversion
+        return np.allclose(a, b, rtol=4e-16, atol=0)
+
+    assert set(lt) == set(table)
+    assert all(np.array_equal(lt[k], table[k], equal_nan=True) for k in table if k != "time")
+    assert same(lt["time"], table["time"])
     assert len(le) == len(events)
     for key in ("time", "kind", "layer", "depth", "pressure"):
-        assert np.array_equal(np.array([e[key] for e in le]), np.array([e[key] for e in events]),
-                              equal_nan=key in ("depth", "pressure")), key
+        a, b = np.array([e[key] for e in le]), np.array([e[key] for e in events])
+        assert same(a, b) if key == "time" else np.array_equal(a, b, equal_nan=key in ("depth", "pressure")), key
     # the file is the record, and it agrees with tracking the loaded run afresh
     fresh_table, fresh_events = layers.track(loaded)
-    assert all(np.array_equal(fresh_table[k], table[k], equal_nan=True) for k in table)
+    assert all(np.allclose(fresh_table[k], table[k], rtol=1e-15, atol=0, equal_nan=True) for k in table)
     assert [e["kind"] for e in fresh_events] == [e["kind"] for e in events]
-    assert loaded.summary() == run.summary()
+    a, b = loaded.summary(), run.summary()
+    assert a.keys() == b.keys()
+    for key in a:
+        if key == "events":
+            assert [{**e, "time_yr": None} for e in a[key]] == [{**e, "time_yr": None} for e in b[key]]
+            assert same([e["time_yr"] for e in a[key]], [e["time_yr"] for e in b[key]])
+        elif isinstance(a[key], float):
+            assert a[key] == pytest.approx(b[key], rel=1e-15), key
+        elif key != "basal_layer":
+            assert a[key] == b[key], key
     assert [z["kind"] for z in loaded.flags()] == [z["kind"] for z in run.flags()]
     snaps = loaded.snapshots()
     np.testing.assert_array_equal(snaps["temperature"], run.snapshots()["temperature"])
@@ -203,8 +227,10 @@ def test_default_snapshots_are_log_spaced_plus_events(run):
 def test_custom_snapshot_times(run, tmp_path):
     times = [run.time[-1] / 3, run.time[-1] / 2]
     path = results.write(run, tmp_path / "custom.h5", snapshot_times=times)
+    from meltzone.constants import YEAR
+
     with xr.open_dataset(path, engine="h5netcdf", group="snapshots") as ds:
-        np.testing.assert_array_equal(ds["snapshot_time"].values, times)
+        np.testing.assert_array_equal(ds["snapshot_time"].values, np.asarray(times) / YEAR)
 
 
 # ---------------------------------------------------------------- kinds and foreign files
@@ -297,7 +323,7 @@ def test_killed_writer_keeps_the_previous_complete_file(run, run_file, tmp_path)
     _kill_writer_midway(target)
     assert _digest(target) == before
     loaded = meltzone.load(target)  # still a complete, readable run
-    assert np.array_equal(loaded.time, run.time)
+    np.testing.assert_allclose(loaded.time, run.time, rtol=4e-16, atol=0)
 
 
 def test_failed_write_removes_its_temporary(run, tmp_path, monkeypatch):
@@ -321,3 +347,25 @@ def test_lazy_public_api():
     from meltzone.pipeline import evolve
 
     assert meltzone.evolve is evolve
+
+
+# ---------------------------------------------------------------- notebook use
+def test_repr_is_short(run):
+    """In a notebook a Result shows one line (common practice: a repr is a summary, not the data)."""
+    text = repr(run)
+    assert len(text) < 300 and "Test-1 b" in text and "boundary-layer" in text
+    assert len(repr(run.history)) < 300
+
+
+def test_to_xarray_groups_with_units(run):
+    """Result.to_xarray(): an xarray DataTree with the history on model time [yr] and every variable's units
+    (xarray is the oracle: its DataTree holds the named dimensions)."""
+    from meltzone.constants import YEAR
+
+    tree = run.to_xarray()
+    hist = tree["history"].to_dataset()
+    assert hist["temperature"].dims == ("time", "mantle_node") and hist["time"].attrs["units"] == "yr"
+    np.testing.assert_allclose(hist["time"].values * YEAR, run.time, rtol=1e-15)
+    assert all("units" in hist[v].attrs for v in hist.data_vars)
+    assert set(tree.children) >= {"history", "layers", "events", "structure", "flags"}
+    assert tree["events"].to_dataset().sizes["event"] == len(run.tracked()[1])

@@ -103,7 +103,6 @@ import math
 
 import numpy as np
 
-from .. import melting
 from .._core import layout as k
 from ..constants import GYR, MYR, YEAR
 from ..errors import ConvergenceError

@@ -123,6 +123,11 @@ class History:
         """Accepted steps (rows less the initial one)."""
         return len(self.time) - 1
 
+    def __repr__(self) -> str:
+        end = f"{self.time[-1]:.4g} s" if len(self.time) else "empty"
+        return (f"History(scheme={self.scheme!r}, steps={self.n_steps}, end={end}, nodes={self.grid.n}, "
+                f"intervals={len(self.intervals.get('step', ()))}, series={len(self.series)})")
+
     @property
     def energy_closure(self) -> float:
         """|relative closure error| at the end of the run."""

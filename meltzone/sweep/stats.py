@@ -14,7 +14,7 @@ import numpy as np
 
 from .worker import AGE_FLAGS, FAILED, FLAGS, METRICS, OK, REJECTED
 
-__all__ = ["binomial_estimate", "flag_names", "observed_probabilities", "input_names", "summary_dict"]
+__all__ = ["binomial_estimate", "flag_names", "observed_probabilities", "input_names", "summarize_sweep"]
 
 
 def binomial_estimate(k: int, n: int, z: float = 1.959963984540054) -> dict:
