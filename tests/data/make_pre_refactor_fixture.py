@@ -1,4 +1,8 @@
-"""Write the pre-refactor regression fixture (history arrays + summary) for three planets."""
+"""Write the pre-refactor regression fixture (history arrays + summary) for three planets.
+
+It uses the API of the code it pins (commit afced0b, before the evolution contract): run it with that checkout,
+`python tests/data/make_pre_refactor_fixture.py tests/data/pre_refactor`.
+"""
 import json, sys
 import numpy as np
 import meltzone
