@@ -25,6 +25,9 @@ RUN_FIGURES = ("meltmap", "profiles", "history")
 THIN_LAYER_FRACTION = 0.05
 #: Minimum drawn thickness of a thin layer, as a fraction of the depth axis.
 MIN_DRAWN_FRACTION = 0.015
+#: Colour map of the melt fraction (cividis: perceptually uniform and readable with colour-vision deficiency;
+#: reversed so that melt is dark on a white, solid background).
+MELT_CMAP = "cividis_r"
 #: Events that concern the whole planet: drawn as vertical lines with a label above the figure.
 PLANET_EVENTS = ("magma-ocean-ended", "magma-ocean-reformed", "stagnant-lid-formed", "inner-core-nucleated",
                  "last-melt")
@@ -163,6 +166,34 @@ def _planet_event_lines(fig, axes, events, t_zero, top_ax):
 
 
 # ---------------------------------------------------------------- the melt map
+def melt_field(result, n_times: int = 240):
+    """(time edges [yr], depth edges [km], melt fraction (n_times, nodes), melt fraction at t = 0) of a melt
+    map: profiles rebuilt at ``n_times`` log-spaced times (:meth:`Result.profile_at_time`), cells centred on
+    the times and the mantle nodes."""
+    from .constants import YEAR
+
+    times = _log_times(result, n_times)
+    phi = np.array([result.profile_at_time(t)[1] for t in times])
+    depth = _mantle_depth_km(result)
+    t_yr = times / YEAR
+    if len(t_yr) > 1:
+        ratio = np.sqrt(t_yr[1:] / t_yr[:-1])
+        t_edges = np.concatenate([[t_yr[0] / ratio[0]], t_yr[:-1] * ratio, [t_yr[-1] * ratio[-1]]])
+    else:
+        t_edges = np.array([t_yr[0] / 1.5, t_yr[0] * 1.5])
+    d_edges = np.clip(np.concatenate([[depth[0]], 0.5 * (depth[1:] + depth[:-1]), [depth[-1]]]), 0.0,
+                      _cmb_depth_km(result))
+    return t_edges, d_edges, phi, result.profile(0)[1]
+
+
+def melt_mesh(ax, t_edges, d_edges, phi, phi0, t_zero):
+    """Draw a melt field (:func:`melt_field`) on ``ax``, with the t = 0 profile as a column at ``t_zero``."""
+    kw = {"cmap": MELT_CMAP, "vmin": 0.0, "vmax": 1.0, "shading": "flat", "rasterized": True}
+    mesh = ax.pcolormesh(t_edges, d_edges, np.ma.masked_less_equal(phi.T, 0.0), **kw)
+    ax.pcolormesh([t_zero / 1.3, t_zero * 1.3], d_edges, np.ma.masked_less_equal(phi0[:, None], 0.0), **kw)
+    return mesh
+
+
 def build_meltmap(result, n_times: int = 240):
     """The matplotlib Figure of :func:`meltmap` (not written)."""
     from matplotlib.lines import Line2D
@@ -170,19 +201,9 @@ def build_meltmap(result, n_times: int = 240):
     from matplotlib.transforms import ScaledTranslation
 
     from .constants import YEAR
-    times = _log_times(result, n_times)
-    phi = np.array([result.profile_at_time(t)[1] for t in times])
-    phi0 = result.profile(0)[1]
-    depth = _mantle_depth_km(result)
+    t_edges, d_edges, phi, phi0 = melt_field(result, n_times)
     cmb = _cmb_depth_km(result)
-    t_yr = times / YEAR
-    t_zero = zero_position(t_yr[0], t_yr[-1])
-    if len(t_yr) > 1:
-        ratio = np.sqrt(t_yr[1:] / t_yr[:-1])
-        t_edges = np.concatenate([[t_yr[0] / ratio[0]], t_yr[:-1] * ratio, [t_yr[-1] * ratio[-1]]])
-    else:
-        t_edges = np.array([t_yr[0] / 1.5, t_yr[0] * 1.5])
-    d_edges = np.clip(np.concatenate([[depth[0]], 0.5 * (depth[1:] + depth[:-1]), [depth[-1]]]), 0.0, cmb)
+    t_zero = zero_position(np.sqrt(t_edges[0] * t_edges[1]), t_edges[-1])
 
     win = zoom_windows(result)
     rows = [k for k in ("surface", "main", "cmb") if k == "main" or win[k] is not None]
@@ -201,10 +222,7 @@ def build_meltmap(result, n_times: int = 240):
     handles = [Line2D([], [], color="0.2", lw=0.9, label="layer outlines (top and bottom)")]
     for name, ax in panels.items():
         lo, hi = (0.0, cmb) if name == "main" else win[name]
-        mesh = ax.pcolormesh(t_edges, d_edges, np.ma.masked_less_equal(phi.T, 0.0), cmap="cividis_r", vmin=0.0,
-                             vmax=1.0, shading="flat", rasterized=True)
-        ax.pcolormesh([t_zero / 1.3, t_zero * 1.3], d_edges, np.ma.masked_less_equal(phi0[:, None], 0.0),
-                      cmap="cividis_r", vmin=0.0, vmax=1.0, shading="flat", rasterized=True)
+        mesh = melt_mesh(ax, t_edges, d_edges, phi, phi0, t_zero)
         log_time_axis(ax, t_zero, t_edges[-1], show_labels=(ax is panels[rows[-1]]))
         ax.set_ylim(hi, lo)
         ax.set_ylabel("depth [km]" if name == "main" else f"depth [km]\n{'near surface' if name == 'surface' else 'above CMB'}")
@@ -445,8 +463,10 @@ def profiles(result, path, *, times_yr=None, n: int = 5):
 
 # ---------------------------------------------------------------- thermal history
 def _has_atmosphere(result) -> bool:
+    """True for a run with an atmosphere model, or any volatile in the atmosphere."""
     h = result.history
-    return any(np.any(h[k] > 0.0) for k in ("atmosphere_h2o", "atmosphere_co2"))
+    return (str(result.spec.surface.atmosphere) != "none"
+            or any(np.any(h[k] > 0.0) for k in ("atmosphere_h2o", "atmosphere_co2")))
 
 
 def build_history(result):
@@ -473,7 +493,8 @@ def build_history(result):
                                              ("inner_core_radius", "inner-core radius", "-")]),
     ]
     if _has_atmosphere(result):
-        panels.append(("atmosphere [kg]", "log", [("atmosphere_h2o", "H2O in the atmosphere", "-"),
+        some = any(np.any(h[k] > 0.0) for k in ("atmosphere_h2o", "atmosphere_co2"))
+        panels.append(("atmosphere [kg]", "log" if some else "linear", [("atmosphere_h2o", "H2O in the atmosphere", "-"),
                                                   ("atmosphere_co2", "CO2 in the atmosphere", "-")]))
     fig = new_figure((9.0, 2.1 * len(panels) + 1.4))
     axes = fig.subplots(len(panels), 1, sharex=True)
