@@ -358,7 +358,8 @@ def layers_command(path, as_json):
 @click.argument("path", type=click.Path(dir_okay=False))
 @click.option("--figure", default="meltmap", show_default=True, metavar="NAME",
               help="Run files: meltmap (melt fraction against time and depth), profiles (temperature profiles) or "
-                   "history (time series). Sweep files: see the sweep documentation.")
+                   "history (time series). Sweep files: lifetime (an outcome metric against an input) or probability "
+                   "(the fraction of cases with a yes/no outcome over two inputs).")
 @click.option("-o", "--output", type=click.Path(dir_okay=False), default=None,
               help="Figure file, .png, .pdf or .svg by its suffix. Default: <FILE stem>-<figure>.png.")
 @click.option("--outcome", default=None, metavar="KEY",

@@ -120,7 +120,7 @@ def stack_labels(fig, texts, step_points: float = 9.0, max_rows: int = 8) -> Non
         for t in sorted(texts, key=lambda a: text_box(a).x0):
             x, y = t.xyann
             for _ in range(max_rows):
-                box = text_box(t).padded(3.0)
+                box = text_box(t).padded(5.0)
                 if not any(box.overlaps(b) for b in placed):
                     break
                 y += step_points

@@ -147,22 +147,29 @@ def _pressure_axis(ax, result):
 
 def _planet_event_lines(fig, axes, events, t_zero, top_ax):
     """Vertical dashed lines at the whole-planet events on every axes, with horizontal labels above
-    ``top_ax`` stacked in rows where they would overlap."""
+    ``top_ax``: events closer than 0.05 decades share one label; labels that would overlap are stacked in rows
+    (a lower row's white box hides the leader lines of the rows above it)."""
     from .constants import YEAR
 
-    labels = []
-    for e in events:
-        if e["kind"] not in PLANET_EVENTS:
-            continue
+    groups = []  # [x, [kinds], when]
+    for e in sorted((e for e in events if e["kind"] in PLANET_EVENTS), key=lambda e: e["time"]):
         x = max(e["time"] / YEAR, t_zero) if e["time"] > 0 else t_zero
+        if groups and abs(np.log10(x / groups[-1][0])) < 0.05:
+            groups[-1][1].append(e["kind"])
+            continue
+        groups.append([x, [e["kind"]], "t = 0" if e["time"] <= 0 else format_years(e["time"] / YEAR)])
+    labels = []
+    for x, kinds, when in groups:
         for ax in axes:
             ax.axvline(x, color="0.2", ls="--", lw=0.8)
-        when = "t = 0" if e["time"] <= 0 else format_years(e["time"] / YEAR)
-        labels.append(top_ax.annotate(f"{e['kind']} ({when})", (x, 1.0), xycoords=("data", "axes fraction"),
+        labels.append(top_ax.annotate(f"{', '.join(kinds)} ({when})", (x, 1.0), xycoords=("data", "axes fraction"),
                                       xytext=(0, 3), textcoords="offset points", ha="center", va="bottom",
                                       fontsize=7, annotation_clip=False,
+                                      bbox={"facecolor": "white", "edgecolor": "none", "pad": 0.5},
                                       arrowprops={"arrowstyle": "-", "color": "0.5", "lw": 0.5}))
     stack_labels(fig, labels)
+    for label in labels:  # lower rows on top
+        label.set_zorder(10.0 - label.xyann[1] / 100.0)
 
 
 # ---------------------------------------------------------------- the melt map
@@ -327,7 +334,7 @@ def profile_times(result, n: int = 5) -> list[tuple[float, str]]:
     from .constants import YEAR
 
     t_end = float(result.time[-1])
-    chosen = [(float(result.time[0]), "start (t = 0)")]
+    chosen = [(float(result.time[0]), "start")]
     names = {"magma-ocean-ended": "magma-ocean end", "magma-ocean-reformed": "magma ocean forms again",
              "last-melt": "last melt"}
     events = result.tracked()[1]
@@ -412,8 +419,8 @@ def build_profiles(result, times_yr=None, n: int = 5):
         t_min, t_max = float(np.min(grid.solidus[inside])), float(np.max(grid.liquidus[inside]))
         for (t, label), style in zip(chosen, styles):
             temp, _ = result.profile_at_time(t)
-            line = ax.plot(temp, depth, label=f"T at {format_years(t / YEAR)}" + (f": {label}" if label else ""),
-                           **style)[0]
+            when = "t = 0" if t == 0.0 else format_years(t / YEAR)
+            line = ax.plot(temp, depth, label=f"T at {when}" + (f": {label}" if label else ""), **style)[0]
             if name == "main":
                 handles.append(line)
             t_min, t_max = min(t_min, float(np.min(temp[inside]))), max(t_max, float(np.max(temp[inside])))

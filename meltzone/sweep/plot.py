@@ -42,8 +42,11 @@ def _choice(kind: str, name: str, allowed) -> str:
 
 
 def _label(data: dict, name: str) -> str:
-    unit = data["units"].get(name, "1")
-    return f"{name} [{unit}]"
+    """``name [unit]``; a column of words (categories) has no unit."""
+    column = data["cases"].get(name)
+    if column is not None and np.asarray(column).dtype.kind not in "fiub":
+        return name
+    return f"{name} [{data['units'].get(name, '1')}]"
 
 
 def plot_sweep(path, figure: str, out, *, x: str | None = None, y: str | None = None,
