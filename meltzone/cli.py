@@ -380,7 +380,8 @@ def plot_command(path, figure, output, outcome, x_key, y_key):
     if results.file_kind(path) == "sweep":
         from .sweep import plot_sweep
 
-        plot_sweep(path, figure, out, x=x_key, y=y_key, outcome=outcome)
+        chosen = {k: v for k, v in (("x", x_key), ("y", y_key), ("outcome", outcome)) if v is not None}
+        plot_sweep(path, figure, out, **chosen)
     else:
         given = [name for name, v in (("--outcome", outcome), ("--x", x_key), ("--y", y_key)) if v is not None]
         if given:

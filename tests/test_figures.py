@@ -270,6 +270,14 @@ def test_sweep_figures_take_any_outcome_and_inputs(sweep_file, tmp_path):
         assert out.stat().st_size > 5000
 
 
+@pytest.mark.parametrize("figure,outcome", [("probability", "basal_layer_formed"),
+                                            ("lifetime", "magma_ocean_end_yr")])
+def test_sweep_figure_hygiene(sweep_file, figure, outcome):
+    from meltzone.sweep.plot import build_sweep_figure
+
+    _check_hygiene(build_sweep_figure(sweep_file, figure, outcome=outcome))
+
+
 @pytest.mark.parametrize("args,words", [
     (["--figure", "probability", "--outcome", "no_such_flag"], ["no_such_flag", "basal_layer_formed"]),
     (["--figure", "lifetime", "--outcome", "basal_layer_formed"], ["basal_layer_formed", "magma_ocean_end_yr"]),

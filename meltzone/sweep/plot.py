@@ -16,7 +16,7 @@ from .file import read_sweep
 from .stats import flag_names, input_names
 from .worker import METRICS, OK
 
-__all__ = ["SWEEP_FIGURES", "plot_sweep"]
+__all__ = ["SWEEP_FIGURES", "build_sweep_figure", "plot_sweep"]
 
 SWEEP_FIGURES = ("lifetime", "probability")
 
@@ -80,17 +80,24 @@ def plot_sweep(path, figure: str, out, *, x: str | None = None, y: str | None = 
     Path
         The file written.
     """
-    from ..figstyle import add_note, figure_format, new_figure, save
+    from ..figstyle import figure_format, save
 
     if figure not in SWEEP_FIGURES:
         raise MeltzoneError(f"figure {figure!r}: a sweep file has figures " + ", ".join(map(repr, SWEEP_FIGURES)))
     figure_format(out)
+    return save(build_sweep_figure(path, figure, x=x, y=y, outcome=outcome, bins=bins), out)
+
+
+def build_sweep_figure(path, figure: str, *, x=None, y=None, outcome=None, bins: int = 8):
+    """The matplotlib Figure of :func:`plot_sweep` (not written); ``figure`` is one of :data:`SWEEP_FIGURES`."""
+    from ..figstyle import add_note, new_figure
+
     data = read_sweep(path)
     fig = new_figure((7.0, 5.0))
     ax = fig.add_subplot()
     (_lifetime if figure == "lifetime" else _probability)(fig, ax, data, x, y, outcome, bins)
     add_note(fig, "model estimates, not measurements")
-    return save(fig, out)
+    return fig
 
 
 def _lifetime(fig, ax, data, x, y, outcome, bins):
