@@ -232,7 +232,8 @@ def build_meltmap(result, n_times: int = 240):
         mesh = melt_mesh(ax, t_edges, d_edges, phi, phi0, t_zero)
         log_time_axis(ax, t_zero, t_edges[-1], show_labels=(ax is panels[rows[-1]]))
         ax.set_ylim(hi, lo)
-        ax.set_ylabel("depth [km]" if name == "main" else f"depth [km]\n{'near surface' if name == 'surface' else 'above CMB'}")
+        where = {"main": "", "surface": "\nnear surface", "cmb": "\nabove CMB"}[name]
+        ax.set_ylabel(f"depth [km]{where}")
         for i, lid in enumerate(np.unique(table["layer"])):
             sel = table["layer"] == lid
             tt = np.where(table["time"][sel] > 0, table["time"][sel] / YEAR, t_zero)
@@ -501,8 +502,9 @@ def build_history(result):
     ]
     if _has_atmosphere(result):
         some = any(np.any(h[k] > 0.0) for k in ("atmosphere_h2o", "atmosphere_co2"))
-        panels.append(("atmosphere [kg]", "log" if some else "linear", [("atmosphere_h2o", "H2O in the atmosphere", "-"),
-                                                  ("atmosphere_co2", "CO2 in the atmosphere", "-")]))
+        panels.append(("atmosphere [kg]", "log" if some else "linear",
+                       [("atmosphere_h2o", "H2O in the atmosphere", "-"),
+                        ("atmosphere_co2", "CO2 in the atmosphere", "-")]))
     fig = new_figure((9.0, 2.1 * len(panels) + 1.4))
     axes = fig.subplots(len(panels), 1, sharex=True)
     for ax, (ylabel, scale, series) in zip(axes, panels):
