@@ -358,11 +358,17 @@ def layers_command(path, as_json):
 @click.argument("path", type=click.Path(dir_okay=False))
 @click.option("--figure", default="meltmap", show_default=True, metavar="NAME",
               help="Run files: meltmap (melt fraction against time and depth), profiles (temperature profiles) or "
-                   "history (time series). Sweep files: see the sweep documentation.")
+                   "history (time series). Sweep files: lifetime (an outcome metric against an input) or probability "
+                   "(the fraction of cases with a yes/no outcome over two inputs).")
 @click.option("-o", "--output", type=click.Path(dir_okay=False), default=None,
               help="Figure file, .png, .pdf or .svg by its suffix. Default: <FILE stem>-<figure>.png.")
+@click.option("--outcome", default=None, metavar="KEY",
+              help="Sweep files: the outcome drawn (probability: a yes/no outcome; lifetime: a metric).")
+@click.option("--x", "x_key", default=None, metavar="KEY", help="Sweep files: the input on the x axis.")
+@click.option("--y", "y_key", default=None, metavar="KEY",
+              help="Sweep files: the input on the y axis (probability) or the colour (lifetime).")
 @_user_errors
-def plot_command(path, figure, output):
+def plot_command(path, figure, output, outcome, x_key, y_key):
     """Draw a figure from a results file."""
     from pathlib import Path
 
@@ -374,8 +380,12 @@ def plot_command(path, figure, output):
     if results.file_kind(path) == "sweep":
         from .sweep import plot_sweep
 
-        plot_sweep(path, figure, out)
+        chosen = {k: v for k, v in (("x", x_key), ("y", y_key), ("outcome", outcome)) if v is not None}
+        plot_sweep(path, figure, out, **chosen)
     else:
+        given = [name for name, v in (("--outcome", outcome), ("--x", x_key), ("--y", y_key)) if v is not None]
+        if given:
+            raise click.UsageError(f"{', '.join(given)}: only for sweep files; {path!r} is a run file")
         if figure not in RUN_FIGURES:
             raise click.BadParameter(f"{figure!r} is not a run figure; choose one of {', '.join(RUN_FIGURES)}",
                                      param_hint="--figure")
@@ -446,6 +456,33 @@ def sweep_command(spec, output, workers, dask_local, dashboard, scheduler, resum
         sys.exit(130)
     click.echo(report.line())
     click.echo(f"summary: meltzone summary {output}")
+
+
+@main.command("compare")
+@click.argument("paths", nargs=-1, required=True, type=click.Path(dir_okay=False))
+@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None,
+              help="Also draw the runs' melt maps and histories on shared axes to this file (.png, .pdf, .svg).")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object (SI, times in years).")
+@_user_errors
+def compare_command(paths, output, as_json):
+    """Compare run files side by side: their outcomes, with differences against the first."""
+    from . import report
+
+    if len(paths) < 2:
+        raise click.UsageError("give two or more run files to compare")
+    if output:
+        from .figstyle import figure_format
+
+        figure_format(output)
+    runs = report.load_runs(paths)
+    if as_json:
+        _echo_json(report.compare_dict(runs, paths))
+    else:
+        click.echo(report.compare_text(runs, paths))
+    if output:
+        from .plot_compare import compare_figure
+
+        click.echo(f"wrote {compare_figure(runs, paths, output)}", err=as_json)
 
 
 if __name__ == "__main__":  # pragma: no cover

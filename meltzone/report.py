@@ -322,3 +322,113 @@ def print_sweep_summary(path, as_json: bool = False) -> None:
 
     s = summary_dict(path)
     print(json.dumps(s, indent=2, allow_nan=False) if as_json else "\n".join(sweep_summary_lines(s)))
+
+
+# ====================================================================== compare
+#: What sets a run apart, shown above the compared outcomes: name -> how to read it from a Result.
+_SETUP = {
+    "planet": lambda r: r.spec.planet.name,
+    "mass_earth": lambda r: float(r.spec.planet.mass_earth),
+    "core_mass_fraction": lambda r: float(r.spec.planet.core_mass_fraction),
+    "scheme": lambda r: r.spec.convection.scheme,
+    "regime": lambda r: r.spec.convection.regime,
+    "melting_model": lambda r: r.melting_model,
+    "atmosphere": lambda r: r.spec.surface.atmosphere,
+    "end_time_gyr": lambda r: float(r.spec.run.end_time_gyr),
+}
+#: Keys of the summary's basal_layer object, flattened to ``basal_layer.<key>`` in the comparison.
+_BASAL_KEYS = ("layer", "start_yr", "end_yr", "max_thickness_m")
+
+
+def load_runs(paths) -> list:
+    """The Results of run files, in order; ResultsFileError naming the file for a sweep file, a foreign or
+    unreadable file (nothing is compared until every file has been read)."""
+    from .errors import ResultsFileError
+    from .results import file_kind, load
+
+    for path in paths:
+        if file_kind(path) != "run":
+            raise ResultsFileError(f"{str(path)!r} is a sweep file; compare takes run files (a sweep has "
+                                   "`meltzone summary` and `meltzone plot --figure probability|lifetime`)")
+    return [load(path) for path in paths]
+
+
+def _flat_outcomes(summary: dict) -> dict:
+    """The scalar outcomes of a run's ``summary --json`` object, the basal layer flattened, plus the counts of
+    its events and flags (their lists are not compared entry by entry)."""
+    out = {}
+    for key, value in summary.items():
+        if key == "basal_layer":
+            for sub in _BASAL_KEYS:
+                out[f"basal_layer.{sub}"] = None if value is None else value.get(sub)
+        elif key in ("events", "flags"):
+            out[f"n_{key}"] = len(value)
+        elif key not in ("planet", "file"):
+            out[key] = value
+    return out
+
+
+def _is_number(v) -> bool:
+    return isinstance(v, (int, float)) and not isinstance(v, bool)
+
+
+def compare_dict(results, paths) -> dict:
+    """The JSON object of ``meltzone compare --json``: each run's file, set-up and ``summary --json`` object,
+    and a table of the outcomes side by side (``values`` in the order of the runs) with their differences
+    against the first run (``difference``: value minus the first value where both are numbers, else null;
+    ``same``: all values equal). Keys a run does not have (another scheme's extras) are null for it."""
+    summaries = [summary_dict(r) for r in results]
+    flat = [_flat_outcomes(s) for s in summaries]
+    keys = list(dict.fromkeys(k for f in flat for k in f))
+    table = []
+    for key in keys:
+        values = [f.get(key) for f in flat]
+        first = values[0]
+        diff = [None] + [v - first if _is_number(v) and _is_number(first) else None for v in values[1:]]
+        table.append({"key": key, "values": values, "difference": diff, "same": all(v == first for v in values)})
+    runs = [{"file": str(p), "setup": {k: get(r) for k, get in _SETUP.items()}, "summary": s}
+            for p, r, s in zip(paths, results, summaries)]
+    return json_safe({"runs": runs, "table": table, "note": MODEL_NOTE})
+
+
+def _cell(key: str, value) -> str:
+    if value is None:
+        return "-"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if key.endswith("_yr") and _is_number(value):
+        return format_years(value)
+    if _is_number(value):
+        return f"{value:.4g}"
+    return str(value)
+
+
+def _difference(key: str, diff) -> str:
+    if diff is None:
+        return ""
+    if diff == 0:
+        return " (=)"
+    if key.endswith("_yr"):
+        return f" ({'+' if diff > 0 else '-'}{format_years(abs(diff))})"
+    return f" ({diff:+.3g})"
+
+
+def compare_text(results, paths) -> str:
+    """The report of ``meltzone compare``: the set-up of each run, then each outcome side by side with the
+    difference against the first run (in parentheses; ``=`` when equal)."""
+    d = compare_dict(results, paths)
+    names = [f"[{i + 1}]" for i in range(len(paths))]
+    rows = [("set-up", names)] + [(f"  {key}", [_cell(key, r["setup"][key]) for r in d["runs"]]) for key in _SETUP]
+    rows += [("", [""] * len(names)), ("outcome", names)]
+    for row in d["table"]:
+        rows.append((f"  {row['key']}", [_cell(row["key"], row["values"][0])]
+                     + [_cell(row["key"], v) + _difference(row["key"], diff)
+                        for v, diff in zip(row["values"][1:], row["difference"][1:])]))
+    width = [max(len(cells[i]) for _, cells in rows) + 2 for i in range(len(names))]
+    lines = [f"compared runs ({len(paths)}); differences against [1] in parentheses"]
+    lines += [f"  {n} {r['file']}" for n, r in zip(names, d["runs"])]
+    lines.append("")
+    lines += [f"{label:<30}" + "".join(f"{c:>{w}}" for c, w in zip(cells, width)) if label else ""
+              for label, cells in rows]
+    lines += ["", d["note"]]
+    return "\n".join(lines)

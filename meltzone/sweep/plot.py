@@ -8,16 +8,15 @@ from __future__ import annotations
 
 import math
 import tomllib
-from pathlib import Path
 
 import numpy as np
 
 from ..errors import MeltzoneError
 from .file import read_sweep
 from .stats import flag_names, input_names
-from .worker import OK
+from .worker import METRICS, OK
 
-__all__ = ["SWEEP_FIGURES", "plot_sweep"]
+__all__ = ["SWEEP_FIGURES", "build_sweep_figure", "plot_sweep"]
 
 SWEEP_FIGURES = ("lifetime", "probability")
 
@@ -33,6 +32,23 @@ def _column_or_base(data: dict, name: str):
     raise MeltzoneError(f"{name!r} is neither an input of this sweep nor a key of its base config")
 
 
+def _choice(kind: str, name: str, allowed) -> str:
+    """``name`` when it is in ``allowed``, else MeltzoneError naming it and listing the valid keys."""
+    allowed = list(allowed)
+    if name not in allowed:
+        raise MeltzoneError(f"{kind} {name!r} is not valid for this sweep; choose one of: "
+                            + (", ".join(allowed) or "(none)"))
+    return name
+
+
+def _label(data: dict, name: str) -> str:
+    """``name [unit]``; a column of words (categories) has no unit."""
+    column = data["cases"].get(name)
+    if column is not None and np.asarray(column).dtype.kind not in "fiub":
+        return name
+    return f"{name} [{data['units'].get(name, '1')}]"
+
+
 def plot_sweep(path, figure: str, out, *, x: str | None = None, y: str | None = None,
                outcome: str | None = None, bins: int = 8):
     """Draw a figure of a sweep file.
@@ -42,16 +58,20 @@ def plot_sweep(path, figure: str, out, *, x: str | None = None, y: str | None = 
     path : str or Path
         The sweep file.
     figure : str
-        ``"lifetime"``: magma-ocean lifetime against planet mass, coloured by core mass fraction
-        (cases whose ocean outlived the run drawn at the run's end as lower bounds);
-        ``"probability"``: the fraction of cases with ``outcome`` in cells of two inputs ``x`` and ``y``.
+        ``"lifetime"``: an outcome metric (default ``magma_ocean_end_yr``) against input ``x`` (default
+        ``mass_earth``), coloured by input ``y`` (default ``core_mass_fraction``); for the magma-ocean lifetime,
+        cases whose ocean outlived the run are drawn at the run's end as lower bounds.
+        ``"probability"``: the fraction of cases with the yes/no ``outcome`` in cells of two inputs ``x`` and
+        ``y``.
     out : str or Path
         Output file (.png, .pdf or .svg).
     x, y : str, optional
-        Inputs of the probability map (variable names in group ``cases``); default: the first two
-        numeric inputs.
+        Inputs (variable names in group ``cases``; for the lifetime figure also ``mass_earth`` and
+        ``core_mass_fraction`` from the base config). Probability default: the first two numeric inputs.
     outcome : str, optional
-        A yes/no outcome (default ``magma_ocean_at_age`` in observed mode, else ``basal_layer_formed``).
+        Lifetime: a metric of the sweep; probability: a yes/no outcome (default ``magma_ocean_at_age`` in
+        observed mode, else ``basal_layer_formed``). A key the sweep does not have raises MeltzoneError
+        listing the valid ones.
     bins : int
         Cells per axis for inputs with more than 12 distinct values (grid values are used as they are).
 
@@ -60,96 +80,107 @@ def plot_sweep(path, figure: str, out, *, x: str | None = None, y: str | None = 
     Path
         The file written.
     """
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
-
-    from ..plot import figure_format
+    from ..figstyle import figure_format, save
 
     if figure not in SWEEP_FIGURES:
         raise MeltzoneError(f"figure {figure!r}: a sweep file has figures " + ", ".join(map(repr, SWEEP_FIGURES)))
-    out = Path(out)
-    fmt = figure_format(out)
+    figure_format(out)
+    return save(build_sweep_figure(path, figure, x=x, y=y, outcome=outcome, bins=bins), out)
+
+
+def build_sweep_figure(path, figure: str, *, x=None, y=None, outcome=None, bins: int = 8):
+    """The matplotlib Figure of :func:`plot_sweep` (not written); ``figure`` is one of :data:`SWEEP_FIGURES`."""
+    from ..figstyle import add_note, new_figure
+
     data = read_sweep(path)
+    fig = new_figure((7.0, 5.0))
+    ax = fig.add_subplot()
+    (_lifetime if figure == "lifetime" else _probability)(fig, ax, data, x, y, outcome, bins)
+    add_note(fig, "model estimates, not measurements")
+    return fig
+
+
+def _lifetime(fig, ax, data, x, y, outcome, bins):
+    """An outcome metric against one input, coloured by another (see :func:`plot_sweep`)."""
     c = data["cases"]
     ok = c["status"] == OK
-    fig = Figure(figsize=(7.0, 5.0), layout="constrained")
-    FigureCanvasAgg(fig)
-    ax = fig.add_subplot()
-    if figure == "lifetime":
-        mass, _ = _column_or_base(data, "mass_earth")
-        cmf, _ = _column_or_base(data, "core_mass_fraction")
-        t = c["magma_ocean_end_yr"]
-        persists = ok & (c["magma_ocean_persists"] == 1)
-        ended = ok & np.isfinite(t) & (t > 0)
-        if not np.any(ended | persists):
-            raise MeltzoneError("no case of this sweep has a magma-ocean lifetime to plot")
-        lo_c, hi_c = np.nanmin(cmf[ok]), np.nanmax(cmf[ok])
-        if hi_c <= lo_c:
-            lo_c, hi_c = lo_c - 0.05, hi_c + 0.05
-        sc = ax.scatter(mass[ended], t[ended], c=cmf[ended], cmap="viridis", vmin=lo_c, vmax=hi_c, s=22,
-                        edgecolors="none", label="magma ocean ended")
-        if np.any(persists):
-            ax.scatter(mass[persists], c["end_time_yr"][persists], c=cmf[persists], cmap="viridis", vmin=lo_c,
-                       vmax=hi_c, marker="^", s=30, edgecolors="k", linewidths=0.4,
-                       label="outlived the run (lower bound)")
+    inputs = list(dict.fromkeys(input_names(data) + ["mass_earth", "core_mass_fraction"]))
+    outcome = _choice("outcome", outcome or "magma_ocean_end_yr", [k for k in METRICS if k in c])
+    x = _choice("input", x or "mass_earth", inputs)
+    y = _choice("input", y or "core_mass_fraction", inputs)
+    xv, _ = _column_or_base(data, x)
+    cv, _ = _column_or_base(data, y)
+    t = np.asarray(c[outcome], dtype=np.float64)
+    persists = ok & (c["magma_ocean_persists"] == 1) if outcome == "magma_ocean_end_yr" else np.zeros_like(ok)
+    has = ok & np.isfinite(t) & np.isfinite(xv) & ((t > 0) if outcome.endswith("_yr") else True)
+    if not np.any(has | persists):
+        raise MeltzoneError(f"no case of this sweep has a value of {outcome!r} to plot")
+    lo_c, hi_c = np.nanmin(cv[ok]), np.nanmax(cv[ok])
+    if hi_c <= lo_c:
+        lo_c, hi_c = lo_c - 0.05, hi_c + 0.05
+    sc = ax.scatter(xv[has], t[has], c=cv[has], cmap="viridis", vmin=lo_c, vmax=hi_c, s=22, edgecolors="none",
+                    label="cases with a value")
+    if np.any(persists):
+        ax.scatter(xv[persists], c["end_time_yr"][persists], c=cv[persists], cmap="viridis", vmin=lo_c, vmax=hi_c,
+                   marker="^", s=30, edgecolors="k", linewidths=0.4, label="outlived the run (lower bound)")
+    shown = np.concatenate([xv[has | persists]])
+    if np.all(shown > 0) and np.nanmax(shown) / np.nanmin(shown) > 3:
         ax.set_xscale("log")
-        ax.set_yscale("log")
         _plain_log_ticks(ax.xaxis)
-        ax.set_xlabel("planet mass [Earth masses]")
-        ax.set_ylabel("magma-ocean lifetime [yr]")
-        fig.colorbar(sc, ax=ax, label="core mass fraction")
-        ax.legend(loc="best", fontsize=8)
-        ax.set_title(f"Magma-ocean lifetime ({int(np.sum(ok))} cases)")
-    else:
-        inputs = input_names(data)
-        if "core_mass_fraction" in c and "core_mass_fraction" not in inputs:
-            inputs.append("core_mass_fraction")
-        x = x or (inputs[0] if inputs else None)
-        y = y or next((k for k in inputs if k != x), None)
-        if x is None or y is None:
-            raise MeltzoneError("the probability map needs two swept inputs; this sweep has "
-                                f"{len(inputs)} ({', '.join(inputs) or 'none'})")
-        for name in (x, y):
-            if name not in inputs:
-                raise MeltzoneError(f"{name!r} is not an input of this sweep; inputs: {', '.join(inputs)}")
-        names = flag_names(data["attrs"].get("sweep_mode", ""))
-        outcome = outcome or ("magma_ocean_at_age" if "magma_ocean_at_age" in c else "basal_layer_formed")
-        if outcome not in names or outcome not in c:
-            raise MeltzoneError(f"outcome {outcome!r}: choose one of {', '.join(k for k in names if k in c)}")
-        xv, xe, xlog, xticks = _axis(c[x], ok, data["meta"].get(x, {}), bins)
-        yv, ye, ylog, yticks = _axis(c[y], ok, data["meta"].get(y, {}), bins)
-        use = ok & np.isfinite(xv) & np.isfinite(yv)
-        yes = c[outcome] == 1
-        n_cell, _, _ = np.histogram2d(xv[use], yv[use], bins=[xe, ye])
-        k_cell, _, _ = np.histogram2d(xv[use & yes], yv[use & yes], bins=[xe, ye])
-        with np.errstate(invalid="ignore", divide="ignore"):
-            p = np.where(n_cell > 0, k_cell / n_cell, np.nan)
-        mesh = ax.pcolormesh(xe, ye, p.T, cmap="magma", vmin=0.0, vmax=1.0, shading="flat")
-        if p.size <= 100:
-            for i in range(len(xe) - 1):
-                for j in range(len(ye) - 1):
-                    if n_cell[i, j] > 0:
-                        xc = math.sqrt(xe[i] * xe[i + 1]) if xlog else 0.5 * (xe[i] + xe[i + 1])
-                        yc = math.sqrt(ye[j] * ye[j + 1]) if ylog else 0.5 * (ye[j] + ye[j + 1])
-                        ax.text(xc, yc, f"{int(k_cell[i, j])}/{int(n_cell[i, j])}", ha="center", va="center",
-                                fontsize=7, color="w" if p[i, j] < 0.5 else "k")
-        if xlog:
-            ax.set_xscale("log")
-            _plain_log_ticks(ax.xaxis)
-        if ylog:
-            ax.set_yscale("log")
-            _plain_log_ticks(ax.yaxis)
-        if xticks is not None:
-            ax.set_xticks(np.arange(len(xticks)), xticks)
-        if yticks is not None:
-            ax.set_yticks(np.arange(len(yticks)), yticks)
-        ax.set_xlabel(f"{x}" + (f" [{data['units'][x]}]" if data["units"].get(x, "1") not in ("", "1") else ""))
-        ax.set_ylabel(f"{y}" + (f" [{data['units'][y]}]" if data["units"].get(y, "1") not in ("", "1") else ""))
-        fig.colorbar(mesh, ax=ax, label=f"fraction of cases: {outcome}")
-        ax.set_title(f"P({outcome}) ({int(np.sum(use))} cases; k/n per cell)")
-    fig.text(0.01, 0.005, "Model estimates, not measurements.", fontsize=7, color="0.4")
-    fig.savefig(out, format=fmt, dpi=150)
-    return out
+    values = t[has]
+    if np.all(values > 0) and np.nanmax(values) / np.nanmin(values) > 30:
+        ax.set_yscale("log")
+    ax.set_xlabel("planet mass [Earth masses]" if x == "mass_earth" else _label(data, x))
+    ax.set_ylabel("magma-ocean lifetime [yr]" if outcome == "magma_ocean_end_yr" else _label(data, outcome))
+    fig.colorbar(sc, ax=ax, label="core mass fraction [1]" if y == "core_mass_fraction" else _label(data, y))
+    ax.legend(loc="best", fontsize=8)
+    ax.set_title(f"{outcome} ({int(np.sum(has | persists))} of {int(np.sum(ok))} cases that ran)", fontsize=10)
+
+
+def _probability(fig, ax, data, x, y, outcome, bins):
+    """The fraction of cases with a yes/no outcome in cells of two inputs (see :func:`plot_sweep`)."""
+    c = data["cases"]
+    ok = c["status"] == OK
+    inputs = input_names(data)
+    if "core_mass_fraction" in c and "core_mass_fraction" not in inputs:
+        inputs.append("core_mass_fraction")
+    names = flag_names(data["attrs"].get("sweep_mode", ""))
+    outcome = _choice("outcome", outcome or ("magma_ocean_at_age" if "magma_ocean_at_age" in c
+                                             else "basal_layer_formed"), [k for k in names if k in c])
+    x = x or (inputs[0] if inputs else None)
+    y = y or next((k for k in inputs if k != x), None)
+    if x is None or y is None:
+        raise MeltzoneError("the probability map needs two swept inputs; this sweep has "
+                            f"{len(inputs)} ({', '.join(inputs) or 'none'})")
+    x, y = _choice("input", x, inputs), _choice("input", y, inputs)
+    xv, xe, xlog, xticks = _axis(c[x], ok, data["meta"].get(x, {}), bins)
+    yv, ye, ylog, yticks = _axis(c[y], ok, data["meta"].get(y, {}), bins)
+    use = ok & np.isfinite(xv) & np.isfinite(yv)
+    yes = c[outcome] == 1
+    n_cell, _, _ = np.histogram2d(xv[use], yv[use], bins=[xe, ye])
+    k_cell, _, _ = np.histogram2d(xv[use & yes], yv[use & yes], bins=[xe, ye])
+    with np.errstate(invalid="ignore", divide="ignore"):
+        p = np.where(n_cell > 0, k_cell / n_cell, np.nan)
+    mesh = ax.pcolormesh(xe, ye, p.T, cmap="cividis", vmin=0.0, vmax=1.0, shading="flat")
+    if p.size <= 100:
+        for i in range(len(xe) - 1):
+            for j in range(len(ye) - 1):
+                if n_cell[i, j] > 0:
+                    xc = math.sqrt(xe[i] * xe[i + 1]) if xlog else 0.5 * (xe[i] + xe[i + 1])
+                    yc = math.sqrt(ye[j] * ye[j + 1]) if ylog else 0.5 * (ye[j] + ye[j + 1])
+                    ax.text(xc, yc, f"{int(k_cell[i, j])}/{int(n_cell[i, j])}", ha="center", va="center",
+                            fontsize=7, color="w" if p[i, j] < 0.5 else "k")
+    for axis, log, ticks, set_scale in ((ax.xaxis, xlog, xticks, ax.set_xscale),
+                                        (ax.yaxis, ylog, yticks, ax.set_yscale)):
+        if log:
+            set_scale("log")
+            _plain_log_ticks(axis)
+        if ticks is not None:
+            axis.set_ticks(np.arange(len(ticks)), ticks)
+    ax.set_xlabel(_label(data, x))
+    ax.set_ylabel(_label(data, y))
+    fig.colorbar(mesh, ax=ax, label=f"fraction of cases [1]: {outcome}")
+    ax.set_title(f"P({outcome}) ({int(np.sum(use))} cases; k/n per cell)", fontsize=10)
 
 
 def _plain_log_ticks(axis) -> None:
