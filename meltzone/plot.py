@@ -413,8 +413,10 @@ def build_profiles(result, times_yr=None, n: int = 5):
         for z in flagged:
             ax.axhspan(z["top_depth_m"] / 1e3, min(z["bottom_depth_m"] / 1e3, cmb), color="0.5", alpha=0.12, lw=0)
         ax.fill_betweenx(depth, grid.solidus, grid.liquidus, color=OKABE_ITO["orange"], alpha=0.18, lw=0)
-        ax.plot(grid.solidus, depth, color=OKABE_ITO["blue"], lw=2.2, label="solidus")
-        ax.plot(grid.liquidus, depth, color=OKABE_ITO["vermillion"], lw=2.2, label="liquidus")
+        curves = [ax.plot(grid.solidus, depth, color=OKABE_ITO["blue"], lw=2.2, label="solidus")[0],
+                  ax.plot(grid.liquidus, depth, color=OKABE_ITO["vermillion"], lw=2.2, label="liquidus")[0]]
+        if name == "main":
+            handles += curves
         spacing = float(np.max(np.abs(np.diff(depth))))
         inside = (depth >= lo - spacing) & (depth <= hi + spacing)
         t_min, t_max = float(np.min(grid.solidus[inside])), float(np.max(grid.liquidus[inside]))
@@ -435,7 +437,7 @@ def build_profiles(result, times_yr=None, n: int = 5):
             ax.set_title("near the surface" if name == "surface" else "above the CMB", fontsize=9)
         ax.set_xlabel("temperature [K]")
         ax.set_ylabel("depth [km]")
-    handles.insert(2, Patch(color=OKABE_ITO["orange"], alpha=0.3, label="partial melting"))
+    handles.insert(2, Patch(color=OKABE_ITO["orange"], alpha=0.3, label="partial melting (solidus to liquidus)"))
     if flagged:
         handles.append(Patch(color="0.5", alpha=0.25, label="melting curves extrapolated"))
     _pressure_axis(axes[0], result)
