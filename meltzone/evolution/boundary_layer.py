@@ -202,6 +202,11 @@ def build_inputs(spec, interior, curves):
     par[k.P_LID_MIN] = LID_MIN
     par[k.P_P_TOP] = it.surface_pressure
     par[k.P_MANTLE_MASS] = it.mantle_mass
+    mt = spec.melting
+    par[k.P_BMO] = 1.0 if mt.basal_magma_ocean == "reservoir" and nc >= 2 else 0.0
+    par[k.P_BMO_DEP] = mt.basal_melt_depression_k
+    par[k.P_BMO_ENRICH] = mt.basal_melt_enrichment_k
+    par[k.P_BMO_MREF] = mt.basal_ocean_reference_fraction * it.mantle_mass
     iso = isotope_table(spec.heating.radiogenic_scale)
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
