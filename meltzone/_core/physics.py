@@ -25,7 +25,7 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
                      P_STAGNANT, P_START_AGE, P_T_EQ, P_V_ACT, P_V_DECAY, REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID,
                      REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
 from .basal import basal_ocean, basal_top_energy
-from .layout import D_MB, D_RB, G_P, P_BMO
+from .layout import D_MB, D_RB, G_P, P_BMO, P_BMO_MREF
 from .melt import melt_fraction
 from .roots import bisect
 
@@ -301,7 +301,7 @@ def temperature_rates(tu, tc, d_lid, dy, grid, core, par, law):
     h_c = 1e-3 * max(1.0, 1e-4 * tc)
     dec = (core_energy(tc + h_c, grid, core, par) - core_energy(tc - h_c, grid, core, par)) / (2 * h_c)
     dtc = dy[Y_EC] / dec if dec > 0.0 else 0.0
-    if mb > 0.0:  # the mantle gains (loses) the crystallised (molten) basal mass at the ocean's top
+    if 0.0 < mb < par[P_BMO_MREF]:  # the mantle gains (loses) the crystallised (molten) mass at the ocean's top
         dmb = (basal_ocean(tc + h_c, grid, par)[1] - basal_ocean(tc - h_c, grid, par)[1]) / (2 * h_c)
         dtu = (dy[Y_EM] - dem_dd * dy[Y_LID] + basal_top_energy(tu, mb, grid, par, law) * dmb * dtc) / dem_dtu
     else:
@@ -528,7 +528,7 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     heat = diag[D_H]
     ddl = diag[D_DLID] if par[P_STAGNANT] > 0.5 else 0.0
     mb = diag[D_MB]
-    if mb > 0.0:
+    if 0.0 < mb < par[P_BMO_MREF]:  # (at its cap, M_ref, the ocean's mass does not change with T_c)
         # the ocean's top moves with T_c: mass that crystallises (melts) there leaves (joins) the core + ocean
         # reservoir with the heat per kg the mantle function counts for it, e_top; the rest of its heat (latent,
         # and sensible above the adiabat) stays in the reservoir. dE_c/dt = -Q_b + e_top dM_b/dT_c dT_c/dt with
