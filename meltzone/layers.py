@@ -343,8 +343,8 @@ BASAL_SERIES = "basal_ocean_thickness"
 def _basal_from_series(result, table, after_s):
     """The basal layer from the scheme's own basal-ocean thickness series (see :func:`basal_layer`): it starts at
     the first step with a thickness > 0 and ends at the first step of the final stretch without one (None if it
-    outlives the run); ``layer`` is the melt layer of the layer table on the CMB at the step of its largest
-    thickness (None if the table has none there)."""
+    outlives the run); ``layer`` is the melt layer of the layer table on the CMB at its first step at or after
+    ``after_s`` (None if the table has none there: the mantle's melt law does not know the ocean's enrichment)."""
     h = result.history
     th = np.asarray(h[BASAL_SERIES], dtype=float)
     t = h.time
@@ -355,12 +355,12 @@ def _basal_from_series(result, table, after_s):
     end = None
     if not alive[-1]:
         end = float(t[int(len(alive) - np.argmax(alive[::-1]))])
-    s_max = int(np.argmax(th))
+    own = int(np.argmax(alive & (t >= after_s)))  # first step of the ocean once the surface ocean has ended
     cmb_depth = result.interior.radius - result.interior.core_radius
-    rows = (np.asarray(table["step"]) == s_max) & np.isclose(table["bottom_depth"], cmb_depth, rtol=0, atol=1.0)
+    rows = (np.asarray(table["step"]) == own) & np.isclose(table["bottom_depth"], cmb_depth, rtol=0, atol=1.0)
     return {"layer": int(table["layer"][int(np.argmax(rows))]) if rows.any() else None,
             "start_yr": float(t[first] / YEAR), "end_yr": None if end is None else end / YEAR,
-            "max_thickness_m": float(th[s_max])}
+            "max_thickness_m": float(th.max())}
 
 
 def basal_layer(result, table, events, after_s=0.0):
