@@ -178,3 +178,15 @@ def test_ocean_melting_curve_sets_a_continuous_thickness():
     spacing = grid[k.G_R, 1] - grid[k.G_R, 0]
     assert r_b[-1] > r_b[0] + spacing  # it crosses nodes
     assert np.max(np.abs(np.diff(r_b))) < 0.1 * spacing
+
+
+def test_run_file_keeps_the_thickness_history(five, tmp_path):
+    """The run file holds the ocean's thickness history: written and read back exactly (common practice: a
+    round trip), with its unit; the summary of the loaded run reports the same basal layer."""
+    from meltzone.results.runfile import load, write
+
+    path = tmp_path / "five.h5"
+    write(five[256], path)
+    back = load(path)
+    np.testing.assert_array_equal(back.history["basal_ocean_thickness"], five[256].history["basal_ocean_thickness"])
+    assert back.summary()["basal_layer"] == five[256].summary()["basal_layer"]
