@@ -78,8 +78,21 @@ REGISTRY = {
     "labrosse2015": Citation("inner-core latent and gravitational energy", "Labrosse 2015, PEPI 247:36", MEMORY),
     "anzellini2013": Citation("iron melting curve (Simon-Glatzel fit; 6230 +- 500 K at 330 GPa checked)",
                               "Anzellini et al. 2013, Science 340:464", MEMORY),
+    "kraus2022": Citation("iron melting measured to 1000 GPa by laser shock (range checked in the abstract; the points "
+                          "the Anzellini fit is held to, 556 GPa / 8085 K and 991 GPa / 10766 K, from memory)",
+                          "Kraus et al. 2022, Science 375:202", MEMORY),
     "alfe2002": Citation("light-element depression of the core's melting curve (~700 K)",
                          "Alfe et al. 2002, EPSL 195:91", MEMORY),
+    # basal magma ocean (boundary-layer scheme)
+    "labrosse2007": Citation("basal magma ocean: a well-mixed, iron-enriched melt layer on the core that crystallises "
+                             "from its top as the core cools", "Labrosse, Hernlund & Coltice 2007, Nature 450:866",
+                             MEMORY),
+    "blanc2020": Citation("parameterised basal magma ocean cooling with the core (top at the melt's liquidus)",
+                          "Blanc, Stegman & Ziegler 2020, EPSL 534", MEMORY),
+    "orourke2020": Citation("parameterised basal magma ocean (Venus)", "O'Rourke 2020, GRL 47", MEMORY),
+    "basal_ocean_melting": Citation("the basal ocean's melting curve: mantle solidus - depression - enrichment x "
+                                    "(1 - M/M_ref), capped at M_ref", "melting.basal_melt_depression_k, "
+                                    "basal_melt_enrichment_k, basal_ocean_reference_fraction", CHOICE),
     "turcotte_schubert": Citation("radiogenic heat production and half-lives (Table 4.2)",
                                   "Turcotte & Schubert, Geodynamics (2nd ed. 2002, Cambridge)", CHECKED),
     "mcdonough1995": Citation("bulk-silicate-Earth U, Th, K abundances", "McDonough & Sun 1995, Chem. Geol. "
@@ -109,6 +122,9 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
         keys += ["solomatov2000", "grasset1998", "thiriet2019", "schubert1990"]
     if spec.surface.atmosphere == "grey":
         keys += ["abe1985", "elkins_tanton2008", "lebrun2013"]
+    keys.append("kraus2022")
+    if spec.melting.basal_magma_ocean == "reservoir":
+        keys += ["labrosse2007", "blanc2020", "orourke2020", "basal_ocean_melting"]
     return tuple(keys)
 
 

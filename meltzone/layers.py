@@ -281,6 +281,8 @@ def summarize(result, table=None, events=None) -> dict:
         "energy_closure": closure,
         "energy_closure_ok": bool(closure <= ENERGY_CLOSURE_TOLERANCE),
         "end_time_yr": float(h["time"][-1] / YEAR),
+        # the core: when the inner core nucleated (0 when the run starts with one) and when the core was solid
+        **core_times(result, events),
         "events": [{"time_yr": e["time"] / YEAR, "kind": e["kind"], "layer": e["layer"],
                     "depth_m": None if math.isnan(e["depth"]) else e["depth"],
                     "pressure_pa": None if math.isnan(e["pressure"]) else e["pressure"]} for e in events],
@@ -320,6 +322,47 @@ def first_crystal_depth(result):
     return float(result.interior.radius - h.grid.radius[node])
 
 
+def core_times(result, events) -> dict:
+    """``inner_core_nucleation_yr`` (the inner-core-nucleated event; 0 when the run starts with an inner core) and
+    ``core_solid_yr`` (end of the step at which the inner core first fills the core), None when it never
+    happened."""
+    h = result.history
+    ric = np.asarray(h["inner_core_radius"], dtype=float)
+    nucleated = [e["time"] for e in events if e["kind"] == "inner-core-nucleated"]
+    start = 0.0 if len(ric) and ric[0] > 0.0 else (nucleated[0] / YEAR if nucleated else None)
+    r_core = result.interior.core_radius
+    solid = (ric >= r_core * (1.0 - 1e-9)) if r_core > 0.0 else np.zeros(len(ric), dtype=bool)
+    return {"inner_core_nucleation_yr": start,
+            "core_solid_yr": float(h.time[int(np.argmax(solid))] / YEAR) if solid.any() else None}
+
+
+#: History series a scheme with a basal magma ocean of its own fills (preferred over the layer table).
+BASAL_SERIES = "basal_ocean_thickness"
+
+
+def _basal_from_series(result, table, after_s):
+    """The basal layer from the scheme's own basal-ocean thickness series (see :func:`basal_layer`): it starts at
+    the first step with a thickness > 0 and ends at the first step of the final stretch without one (None if it
+    outlives the run); ``layer`` is the melt layer of the layer table on the CMB at its first step at or after
+    ``after_s`` (None if the table has none there: the mantle's melt law does not know the ocean's enrichment)."""
+    h = result.history
+    th = np.asarray(h[BASAL_SERIES], dtype=float)
+    t = h.time
+    alive = th > 0.0
+    if not alive.any() or not np.any(alive & (t >= after_s)):
+        return None
+    first = int(np.argmax(alive))
+    end = None
+    if not alive[-1]:
+        end = float(t[int(len(alive) - np.argmax(alive[::-1]))])
+    own = int(np.argmax(alive & (t >= after_s)))  # first step of the ocean once the surface ocean has ended
+    cmb_depth = result.interior.radius - result.interior.core_radius
+    rows = (np.asarray(table["step"]) == own) & np.isclose(table["bottom_depth"], cmb_depth, rtol=0, atol=1.0)
+    return {"layer": int(table["layer"][int(np.argmax(rows))]) if rows.any() else None,
+            "start_yr": float(t[first] / YEAR), "end_yr": None if end is None else end / YEAR,
+            "max_thickness_m": float(th.max())}
+
+
 def basal_layer(result, table, events, after_s=0.0):
     """The basal melt layer: a melt layer that sits on the core-mantle boundary, is not connected to the
     surface, and still exists at or after model time ``after_s`` [s] (the end of the surface magma ocean;
@@ -329,9 +372,12 @@ def basal_layer(result, table, events, after_s=0.0):
     Returns None or {layer, start_yr, end_yr, max_thickness_m}: ``start_yr`` is when that layer first sat on
     the CMB apart from any surface melt (it may separate while the magma ocean still lasts), ``end_yr`` when
     it froze or merged into another layer (None if it outlives the run), ``max_thickness_m`` its largest
-    thickness on the CMB (edges interpolated between nodes)."""
+    thickness on the CMB (edges interpolated between nodes). A scheme with a basal magma ocean of its own
+    (series ``basal_ocean_thickness``) is read from that series instead (:func:`_basal_from_series`)."""
     it = result.interior
     cmb_depth = it.radius - it.core_radius
+    if after_s is not None and BASAL_SERIES in result.history:
+        return _basal_from_series(result, table, after_s)
     if after_s is None or not len(table["layer"]):
         return None
     basal_rows = (np.isclose(table["bottom_depth"], cmb_depth, rtol=0, atol=1.0)

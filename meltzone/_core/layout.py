@@ -53,6 +53,9 @@ PARAMETERS = (
  P_A_VISC, P_E_ACT, P_V_ACT, P_RA_CR, P_BETA, P_A_RH, P_MELT_WEAK, P_ETA_LIQ, P_PHI_C, P_CC, P_LC, P_EG,
  P_T_EQ, P_ATMOSPHERE, P_H2O_TOTAL, P_CO2_TOTAL, P_STAGNANT, P_P_CMB, P_START_AGE, P_DT_MAX, P_RTOL, P_T_END,
  P_H_MAX, P_LID_MIN, P_P_TOP, P_MANTLE_MASS, P_V_DECAY, P_ATOL, P_NU_A, P_BLEND) = range(N_PAR := len(PARAMETERS))
+# basal magma ocean (boundary-layer scheme): switch (1 on), solidus depression [K], enrichment [K], reference mass [kg]
+PARAMETERS += ("basal_ocean", "basal_melt_depression", "basal_melt_enrichment", "basal_reference_mass")
+P_BMO, P_BMO_DEP, P_BMO_ENRICH, P_BMO_MREF = range(N_PAR, N_PAR := len(PARAMETERS))
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",
@@ -62,6 +65,9 @@ DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", 
                "stored_energy", "lid_rate", "surface_melt_fraction")
 (D_QS, D_QU, D_QC, D_TS, D_DELTA_U, D_DELTA_C, D_TL, D_H, D_REGIME, D_PHI_TOP, D_RIC, D_ETA_U, D_ETA_C,
  D_TB, D_EPS, D_ATM_H2O, D_ATM_CO2, D_MELT_MASS, D_E_STORED, D_DLID, D_PHI_SURF) = range(N_D := len(DIAGNOSTICS))
+# basal magma ocean: radius of its top [m] (the core radius without one) and its mass [kg]
+DIAGNOSTICS += ("basal_ocean_radius", "basal_ocean_mass")
+D_RB, D_MB = range(N_D, N_D := len(DIAGNOSTICS))
 
 # ------------------------------------------------------------ history columns (one row per accepted step)
 HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "lid_thickness", "heat_out_minus_radiogenic",
@@ -71,6 +77,8 @@ HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "lid_thickne
                    "lid_rate", "top_melt_fraction", "atmosphere_h2o", "atmosphere_co2", "n_intervals")
 (H_T, H_TU, H_TC, H_LID, H_OUT, H_QS, H_QC, H_H, H_RIC, H_MELT, H_REGIME, H_TS, H_DELTA_U, H_DELTA_C, H_TL,
  H_E_STORED, H_DTU, H_DTC, H_DLID, H_PHI_TOP, H_ATM_H2O, H_ATM_CO2, H_N_IV) = range(N_H := len(HISTORY_COLUMNS))
+HISTORY_COLUMNS += ("basal_ocean_thickness",)
+H_BMO, = range(N_H, N_H := len(HISTORY_COLUMNS))
 
 # ------------------------------------------------------------ melt-interval columns
 INTERVAL_COLUMNS = ("step", "top_node", "bottom_node", "max_melt_fraction", "melt_mass", "full_top_node",

@@ -24,6 +24,8 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
                      P_RHO_MANTLE, P_RHO_TOP,
                      P_STAGNANT, P_START_AGE, P_T_EQ, P_V_ACT, P_V_DECAY, REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID,
                      REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
+from .basal import basal_ocean, basal_top_energy
+from .layout import D_MB, D_RB, G_P, P_BMO, P_BMO_MREF
 from .melt import melt_fraction
 from .roots import bisect
 
@@ -117,14 +119,21 @@ def lid_base_temperature(tu, par):
 
 
 @njit
-def mantle_energy(tu, d, grid, par, law):
-    """Stored heat of the mantle [J] relative to 0 K: adiabat sensible + latent, lid corrected."""
+def mantle_energy(tu, d, mb, grid, par, law):
+    """Stored heat of the mantle [J] relative to 0 K: adiabat sensible + latent, lid corrected. The lowest
+    ``mb`` kg (the basal magma ocean, counted with the core) are left out, node by node from the CMB."""
     cm = par[P_CM]
     e = 0.0
     n = grid.shape[1]
+    rest = mb
     for i in range(n):
         ti = tu * grid[G_F, i]
-        e += grid[G_W, i] * (cm * ti + par[P_LATENT] * node_melt(ti, grid, i, law))
+        w = grid[G_W, i]
+        if rest > 0.0:
+            cut = min(rest, w)
+            rest -= cut
+            w -= cut
+        e += w * (cm * ti + par[P_LATENT] * node_melt(ti, grid, i, law))
     if par[P_STAGNANT] > 0.5 and d > 0.0:
         ml = lid_mass(d, par)
         e += ml * cm * (0.5 * (par[P_T_EQ] + lid_base_temperature(tu, par)) - tu)
@@ -150,14 +159,19 @@ def inner_core(tc, core):
 
 
 @njit
-def core_energy(tc, core, par):
+def core_energy(tc, grid, core, par):
     """Stored heat of the core [J]: sensible heat on the core adiabat minus latent + gravitational
-    energy already released by the inner core."""
+    energy already released by the inner core; with a basal magma ocean, plus its sensible heat at tc and its
+    latent heat (the core and the ocean are one reservoir of temperature tc)."""
     e = 0.0
     for j in range(core.shape[1]):
         e += core[C_W, j] * par[P_CC] * tc * core[C_F, j]
     r_ic, m_ic = inner_core(tc, core)
-    return e - (par[P_LC] + par[P_EG]) * m_ic
+    e = e - (par[P_LC] + par[P_EG]) * m_ic
+    if par[P_BMO] > 0.5:
+        r_b, m_b, x_b = basal_ocean(tc, grid, par)
+        e += m_b * (par[P_CM] * tc + par[P_LATENT])
+    return e
 
 
 @njit
@@ -201,12 +215,12 @@ def melt_mass_adiabat(tu, grid, law):
 
 @njit
 def _stored_heat_residual(t, args):
-    kind, e, d, grid, core, par, law = args
-    return (mantle_energy(t, d, grid, par, law) if kind == 0 else core_energy(t, core, par)) - e
+    kind, e, d, mb, grid, core, par, law = args
+    return (mantle_energy(t, d, mb, grid, par, law) if kind == 0 else core_energy(t, grid, core, par)) - e
 
 
 @njit
-def _invert(kind, e, d, grid, core, par, law, guess, slope):
+def _invert(kind, e, d, mb, grid, core, par, law, guess, slope):
     """Temperature [K] whose stored heat is ``e``, and the last slope dE/dT: mantle (kind 0, lid d) or
     core (kind 1).
 
@@ -214,14 +228,15 @@ def _invert(kind, e, d, grid, core, par, law, guess, slope):
     secant steps; bisection on [T_MIN, T_MAX] if that fails. Both stored-heat functions rise monotonically
     with temperature."""
     t0 = min(max(guess, T_MIN), T_MAX)
-    f0 = (mantle_energy(t0, d, grid, par, law) if kind == 0 else core_energy(t0, core, par)) - e
+    f0 = (mantle_energy(t0, d, mb, grid, par, law) if kind == 0 else core_energy(t0, grid, core, par)) - e
     s = slope
     if not s > 0.0:
         hh = 1e-3 * max(1.0, 1e-4 * t0)
         if kind == 0:
-            s = (mantle_energy(t0 + hh, d, grid, par, law) - mantle_energy(t0 - hh, d, grid, par, law)) / (2 * hh)
+            s = (mantle_energy(t0 + hh, d, mb, grid, par, law) - mantle_energy(t0 - hh, d, mb, grid, par, law)) / (
+                2 * hh)
         else:
-            s = (core_energy(t0 + hh, core, par) - core_energy(t0 - hh, core, par)) / (2 * hh)
+            s = (core_energy(t0 + hh, grid, core, par) - core_energy(t0 - hh, grid, core, par)) / (2 * hh)
     scale = abs(e) + 1.0
     for _ in range(40):
         if abs(f0) <= 1e-14 * scale:
@@ -231,7 +246,7 @@ def _invert(kind, e, d, grid, core, par, law, guess, slope):
         t1 = t0 - f0 / s
         if not (T_MIN <= t1 <= T_MAX):
             break
-        f1 = (mantle_energy(t1, d, grid, par, law) if kind == 0 else core_energy(t1, core, par)) - e
+        f1 = (mantle_energy(t1, d, mb, grid, par, law) if kind == 0 else core_energy(t1, grid, core, par)) - e
         if f1 != f0 and t1 != t0:
             s_new = (f1 - f0) / (t1 - t0)
             if s_new > 0.0:
@@ -240,7 +255,8 @@ def _invert(kind, e, d, grid, core, par, law, guess, slope):
             return t1, s
         t0 = t1
         f0 = f1
-    return bisect(_stored_heat_residual, (kind, e, d, grid, core, par, law), T_MIN, T_MAX, 0.0, 1e-12, 200), 0.0
+    return bisect(_stored_heat_residual, (kind, e, d, mb, grid, core, par, law), T_MIN, T_MAX, 0.0, 1e-12,
+                  200), 0.0
 
 
 @njit
@@ -248,11 +264,13 @@ def temperatures(y, grid, core, par, law, work):
     """(T_u, T_c) of the energy state y; ``work`` = (T_u, T_c, dE_m/dT_u, dE_c/dT_c) of the last solution,
     the starting point of the next (a slope <= 0 asks for a fresh centred difference)."""
     d = max(y[Y_LID], 0.0) if par[P_STAGNANT] > 0.5 else 0.0
-    tu, work[2] = _invert(MANTLE, y[Y_EM], d, grid, core, par, law, work[0], work[2])
+    # the core (and basal ocean) first: the ocean's mass, a function of T_c, is left out of the mantle's heat
     if core[C_W].sum() > 0.0:
-        tc, work[3] = _invert(CORE, y[Y_EC], 0.0, grid, core, par, law, work[1], work[3])
+        tc, work[3] = _invert(CORE, y[Y_EC], 0.0, 0.0, grid, core, par, law, work[1], work[3])
     else:
         tc = work[1]
+    mb = basal_ocean(tc, grid, par)[1]
+    tu, work[2] = _invert(MANTLE, y[Y_EM], d, mb, grid, core, par, law, work[0], work[2])
     work[0] = tu
     work[1] = tc
     return tu, tc
@@ -261,8 +279,9 @@ def temperatures(y, grid, core, par, law, work):
 @njit
 def energy_state(tu, tc, d_lid, out, grid, core, par, law, y):
     """Fill y from temperatures (the inverse of :func:`temperatures`); ``out`` is Y_OUT."""
-    y[Y_EM] = mantle_energy(tu, max(d_lid, 0.0) if par[P_STAGNANT] > 0.5 else 0.0, grid, par, law)
-    y[Y_EC] = core_energy(tc, core, par)
+    mb = basal_ocean(tc, grid, par)[1]
+    y[Y_EM] = mantle_energy(tu, max(d_lid, 0.0) if par[P_STAGNANT] > 0.5 else 0.0, mb, grid, par, law)
+    y[Y_EC] = core_energy(tc, grid, core, par)
     y[Y_LID] = d_lid
     y[Y_OUT] = out
 
@@ -271,16 +290,22 @@ def energy_state(tu, tc, d_lid, out, grid, core, par, law, y):
 def temperature_rates(tu, tc, d_lid, dy, grid, core, par, law):
     """(dT_u/dt, dT_c/dt) from the energy rates dy (for the step control, history and interpolation)."""
     d = max(d_lid, 0.0) if par[P_STAGNANT] > 0.5 else 0.0
+    mb = basal_ocean(tc, grid, par)[1]
     h_t = 1e-3 * max(1.0, 1e-4 * tu)
-    dem_dtu = (mantle_energy(tu + h_t, d, grid, par, law) - mantle_energy(tu - h_t, d, grid, par, law)) / (2 * h_t)
+    dem_dtu = (mantle_energy(tu + h_t, d, mb, grid, par, law)
+               - mantle_energy(tu - h_t, d, mb, grid, par, law)) / (2 * h_t)
     dem_dd = 0.0
     if par[P_STAGNANT] > 0.5 and d_lid > 0.0:
         dml = par[P_RHO_TOP] * 4.0 * math.pi * (par[P_RADIUS] - d_lid) ** 2
         dem_dd = dml * par[P_CM] * (0.5 * (par[P_T_EQ] + lid_base_temperature(tu, par)) - tu)
-    dtu = (dy[Y_EM] - dem_dd * dy[Y_LID]) / dem_dtu
     h_c = 1e-3 * max(1.0, 1e-4 * tc)
-    dec = (core_energy(tc + h_c, core, par) - core_energy(tc - h_c, core, par)) / (2 * h_c)
+    dec = (core_energy(tc + h_c, grid, core, par) - core_energy(tc - h_c, grid, core, par)) / (2 * h_c)
     dtc = dy[Y_EC] / dec if dec > 0.0 else 0.0
+    if 0.0 < mb < par[P_BMO_MREF]:  # the mantle gains (loses) the crystallised (molten) mass at the ocean's top
+        dmb = (basal_ocean(tc + h_c, grid, par)[1] - basal_ocean(tc - h_c, grid, par)[1]) / (2 * h_c)
+        dtu = (dy[Y_EM] - dem_dd * dy[Y_LID] + basal_top_energy(tu, mb, grid, par, law) * dmb * dtc) / dem_dtu
+    else:
+        dtu = (dy[Y_EM] - dem_dd * dy[Y_LID]) / dem_dtu
     return dtu, dtc
 
 
@@ -389,12 +414,22 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
     eta_u = viscosity(tu, par[P_P_TOP], phi_top, par)
     # the solid-mantle branch of a solidified mantle: melt weakening, but no suspension, up to phi_c
     eta_s = viscosity(tu, par[P_P_TOP], min(phi_surf, par[P_PHI_C]), par) if solidified else eta_u
-    tb = tu * grid[G_F, 0]
+    r_b, m_b, x_b = basal_ocean(tc, grid, par)
+    if m_b > 0.0:  # the lower boundary layer sits on the basal ocean: adiabat and pressure at its top
+        j = min(int(x_b), n - 2)
+        s = x_b - j
+        tb = tu * (grid[G_F, j] + s * (grid[G_F, j + 1] - grid[G_F, j]))
+        p_b = grid[G_P, j] + s * (grid[G_P, j + 1] - grid[G_P, j])
+        j_b = np.int64(j + 1 if s > 0.5 else j)
+    else:
+        tb = tu * grid[G_F, 0]
+        p_b = par[P_P_CMB]
+        j_b = BOTTOM
     dtc = tc - tb
     # bottom boundary layer (local critical Rayleigh number)
     t_mean_c = 0.5 * (tc + tb)
-    phi_c = node_melt(t_mean_c, grid, BOTTOM, law_i)
-    eta_c = viscosity(t_mean_c, par[P_P_CMB], phi_c, par)
+    phi_c = node_melt(t_mean_c, grid, j_b, law_i)
+    eta_c = viscosity(t_mean_c, p_b, phi_c, par)
     if abs(dtc) > 1e-9 and par[P_G_CMB] > 0.0:
         delta_c = (par[P_KAPPA] * eta_c * par[P_RA_CR] / (par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_CMB]
                                                             * abs(dtc))) ** (1.0 / 3.0)
@@ -476,6 +511,8 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
     diag[D_EPS] = eps
     diag[D_ATM_H2O] = m_h2o
     diag[D_ATM_CO2] = m_co2
+    diag[D_RB] = r_b
+    diag[D_MB] = m_b
 
 
 @njit
@@ -485,13 +522,29 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     d_lid = y[Y_LID]
     diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag)
     area_s = 4.0 * math.pi * par[P_RADIUS] ** 2
-    area_c = 4.0 * math.pi * par[P_CORE_RADIUS] ** 2
+    area_c = 4.0 * math.pi * diag[D_RB] ** 2  # the core's radius, or the basal ocean's top
     q_surf = diag[D_QS] * area_s
     q_cmb = diag[D_QC] * area_c if core[C_W].sum() > 0.0 else 0.0
     heat = diag[D_H]
     ddl = diag[D_DLID] if par[P_STAGNANT] > 0.5 else 0.0
-    dy[Y_EM] = -q_surf + q_cmb + heat
-    dy[Y_EC] = -q_cmb
+    mb = diag[D_MB]
+    if 0.0 < mb < par[P_BMO_MREF]:  # (at its cap, M_ref, the ocean's mass does not change with T_c)
+        # the ocean's top moves with T_c: mass that crystallises (melts) there leaves (joins) the core + ocean
+        # reservoir with the heat per kg the mantle function counts for it, e_top; the rest of its heat (latent,
+        # and sensible above the adiabat) stays in the reservoir. dE_c/dt = -Q_b + e_top dM_b/dT_c dT_c/dt with
+        # dE_c/dt = E_c'(T_c) dT_c/dt, so dT_c/dt = -Q_b / (E_c' - e_top M_b'); both exchanges cancel in the sum
+        h_c = 1e-3 * max(1.0, 1e-4 * tc)
+        dmb = (basal_ocean(tc + h_c, grid, par)[1] - basal_ocean(tc - h_c, grid, par)[1]) / (2 * h_c)
+        transfer = 0.0
+        if dmb != 0.0:
+            dec = (core_energy(tc + h_c, grid, core, par) - core_energy(tc - h_c, grid, core, par)) / (2 * h_c)
+            e_top = basal_top_energy(tu, mb, grid, par, law)
+            transfer = e_top * dmb * (-q_cmb / (dec - e_top * dmb))
+        dy[Y_EM] = -q_surf + q_cmb + heat - transfer
+        dy[Y_EC] = -q_cmb + transfer
+    else:
+        dy[Y_EM] = -q_surf + q_cmb + heat
+        dy[Y_EC] = -q_cmb
     dy[Y_LID] = ddl
     dy[Y_OUT] = q_surf - heat
 
@@ -518,7 +571,8 @@ def profile(tu, tc, d_lid, diag, grid, par, law, temp, phi):
     stagnant = diag[D_REGIME] == REGIME_STAGNANT_LID
     d_lid = max(d_lid, par[P_LID_MIN]) if stagnant else 0.0
     r_top = par[P_RADIUS]
-    r_c = par[P_CORE_RADIUS]
+    r_c = diag[D_RB]  # the core's radius, or the basal ocean's top
+    ocean = diag[D_MB] > 0.0
     for i in range(n):
         t_ad = tu * grid[G_F, i]
         z = r_top - grid[G_R, i]
@@ -531,7 +585,9 @@ def profile(tu, tc, d_lid, diag, grid, par, law, temp, phi):
         else:
             t = t_ad
         h = grid[G_R, i] - r_c
-        if h < dc:
+        if ocean and h < 0.0:  # inside the basal magma ocean, at the core's temperature (phi: the mantle's melt
+            t = tc             # law, which does not know the ocean's enrichment; its extent is its own series)
+        elif h < dc:
             t = tc + (t - tc) * h / dc
         temp[i] = t
         phi[i] = node_melt(t, grid, i, law)

@@ -14,7 +14,8 @@ from .layout import (D_ATM_CO2, D_ATM_H2O, D_DELTA_C, D_DELTA_U, D_H, D_PHI_TOP,
                      H_LID, H_MELT, H_N_IV, H_OUT, H_PHI_TOP, H_QC, H_QS, H_REGIME, H_RIC, H_T, H_TC, H_TL, H_TS,
                      H_TU, I_BOTTOM, I_FULL_BOTTOM, I_FULL_TOP, I_MASS, I_MAX_PHI, I_MEAN_PHI, I_STEP, I_TOP,
                      P_RADIUS, P_STAGNANT, REGIME_STAGNANT_LID, Y_EC, Y_LID, Y_OUT)
-from .physics import core_energy, mantle_energy, profile, temperature_rates
+from .layout import D_RB, H_BMO, P_CORE_RADIUS
+from .physics import basal_ocean, core_energy, mantle_energy, profile, temperature_rates
 
 
 @njit
@@ -91,8 +92,9 @@ def record(t, y, tu, tc, dy, diag, grid, core, par, law, hist, temps, phis, n_h,
     hist[n_h, H_TL] = diag[D_TL]
     # recomputed from the temperatures (not copied from the state), so the closure check also tests the
     # inversion of the stored-heat functions
-    hist[n_h, H_E_STORED] = mantle_energy(tu, max(y[Y_LID], 0.0) if par[P_STAGNANT] > 0.5 else 0.0, grid, par,
-                                          law) + core_energy(tc, core, par)
+    hist[n_h, H_E_STORED] = mantle_energy(tu, max(y[Y_LID], 0.0) if par[P_STAGNANT] > 0.5 else 0.0,
+                                          basal_ocean(tc, grid, par)[1], grid, par, law) + core_energy(tc, grid,
+                                                                                                         core, par)
     hist[n_h, H_DTU] = dtu
     hist[n_h, H_DTC] = dtc
     hist[n_h, H_DLID] = dy[Y_LID] if stagnant else 0.0
@@ -100,4 +102,5 @@ def record(t, y, tu, tc, dy, diag, grid, core, par, law, hist, temps, phis, n_h,
     hist[n_h, H_ATM_H2O] = diag[D_ATM_H2O]
     hist[n_h, H_ATM_CO2] = diag[D_ATM_CO2]
     hist[n_h, H_N_IV] = n_iv_new - n_iv
+    hist[n_h, H_BMO] = diag[D_RB] - par[P_CORE_RADIUS]
     return n_iv_new

@@ -67,6 +67,24 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
 * core: adiabatic core of temperature T_c f_core(r), an inner core where it falls
   below the iron-alloy melting curve, releasing latent and gravitational energy
   (Stevenson et al. 1983; Labrosse 2015, PEPI 247:36);
+* basal magma ocean (``melting.basal_magma_ocean = "reservoir"``, the default; Labrosse, Hernlund & Coltice
+  2007, Nature 450:866; parameterised models: Blanc, Stegman & Ziegler 2020, EPSL 534; O'Rourke 2020, GRL 47;
+  abstracts seen, details from memory): a well-mixed melt layer on the core at the core's temperature T_c.
+  Its top r_b is where T_c meets its melting curve, the mantle solidus on the nodes lowered by
+  dT0 + dT_fe (1 - M/M_ref) (M the mantle mass below the radius, linear between nodes, so the thickness is not
+  a node count; dT0 = ``basal_melt_depression_k``, dT_fe = ``basal_melt_enrichment_k``, M_ref =
+  ``basal_ocean_reference_fraction`` x mantle mass; capped at M_ref). The enrichment term is this model's
+  choice: an isothermal layer under a solidus that falls upward is above it everywhere, so the layer would have
+  no top; the FeO the crystals reject (Labrosse et al. 2007) lowers the melt's melting point as the layer
+  shrinks, which gives it one and makes it thin as the core cools. The core and the ocean are one reservoir
+  of stored heat E_c(T_c) (core sensible, inner core, plus the ocean's M_b (c_m T_c + L)); the mantle's stored
+  heat leaves the ocean's mass out. Mass that crystallises at the top joins the mantle with the heat the mantle
+  function counts for it (c_m T_u f + L phi at r_b); the rest, its latent heat and its excess over the
+  adiabat, stays in the reservoir. The lower boundary layer sits on the ocean's top (radius r_b, the adiabat,
+  pressure and solidus there), and the CMB heat flow series is the reservoir's loss, Q_b plus the heat of the
+  mass it hands over. The History's ``basal_ocean_thickness`` is r_b - r_c; in the profiles the ocean's nodes
+  are at T_c with the mantle's melt law of T_c (that law does not know the enrichment). ``"off"`` gives the
+  scheme without it (the lower boundary layer on the core);
 * energy: the stored heat (sensible heat on the adiabat, latent heat of the
   melt, the lid's conductive profile, core sensible heat less the inner core's
   latent and gravitational energy) is one function of (T_u, lid) for the mantle
@@ -202,6 +220,11 @@ def build_inputs(spec, interior, curves):
     par[k.P_LID_MIN] = LID_MIN
     par[k.P_P_TOP] = it.surface_pressure
     par[k.P_MANTLE_MASS] = it.mantle_mass
+    mt = spec.melting
+    par[k.P_BMO] = 1.0 if mt.basal_magma_ocean == "reservoir" and nc >= 2 else 0.0
+    par[k.P_BMO_DEP] = mt.basal_melt_depression_k
+    par[k.P_BMO_ENRICH] = mt.basal_melt_enrichment_k
+    par[k.P_BMO_MREF] = mt.basal_ocean_reference_fraction * it.mantle_mass
     iso = isotope_table(spec.heating.radiogenic_scale)
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
@@ -287,6 +310,8 @@ def run(spec, interior, curves, progress=None, *, history_rows=4096, interval_ro
     column = {name: j for j, name in enumerate(k.HISTORY_COLUMNS)}
     series = {name: hist[:, column[name]].copy() for name in SERIES if name in column}
     series["regime"] = series["regime"].astype(np.int8)
+    if inputs.par[k.P_BMO] < 0.5:  # no basal ocean modelled: no series (consumers fall back to the layer table)
+        del series["basal_ocean_thickness"]
     # closure: stored-energy loss against the time-integrated (surface heat loss - radiogenic heating)
     de = series["stored_energy"][0] - series["stored_energy"]
     scale = max(float(np.max(np.abs(de))), 1.0)
@@ -326,8 +351,11 @@ class Evaluator:
 
     def __init__(self, history: History):
         d = history.scheme_data
-        self.inputs = k.KernelInputs(*(np.ascontiguousarray(d[name], dtype=np.float64)
-                                     for name in ("grid", "core", "iso", "par")), int(d["law"]))
+        grid, core, iso, par = (np.ascontiguousarray(d[name], dtype=np.float64) for name in ("grid", "core", "iso",
+                                                                                              "par"))
+        if len(par) < k.N_PAR:  # a file written before the basal-ocean parameters: zeros, i.e. no basal ocean
+            par = np.concatenate([par, np.zeros(k.N_PAR - len(par))])
+        self.inputs = k.KernelInputs(grid, core, iso, par, int(d["law"]))
         h = history
         self.t = h.time
         self.cols = [(h["upper_temperature"], h["upper_temperature_rate"]),

@@ -45,6 +45,7 @@ SERIES = {
     "upper_temperature_rate": ("K/s", "dT_u/dt", False),
     "core_temperature_rate": ("K/s", "dT_c/dt", False),
     "lid_rate": ("m/s", "d(lid)/dt", False),
+    "basal_ocean_thickness": ("m", "thickness of the basal magma ocean between core and solid mantle (0: none)", False),
 }
 
 REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID, REGIME_STAGNANT_LID = 0, 1, 2

@@ -1,0 +1,192 @@
+"""The basal magma ocean of the boundary-layer scheme, Earth's inner core, and the iron curve's measured range.
+
+Sources and tolerances are named in each test. Measured values quoted in docstrings come from this code at the
+defaults (256 mantle nodes) unless said otherwise.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from meltzone import evolve
+from meltzone.config import PlanetSpec
+from meltzone.constants import GPA, GYR, YEAR
+
+#: Earth's inner-core radius, PREM (Dziewonski & Anderson 1981, PEPI 25:297; checked, /work/shared/REFERENCES.md).
+PREM_INNER_CORE_M = 1221.5e3
+#: Published inner-core ages [Gyr]: ~0.5-1.5 (Labrosse 2015, PEPI 247:36, high core conductivity; from memory),
+#: disputed (palaeomagnetic estimates up to ~1.5 Gyr, Biggin et al. 2015, Nature 526:245; from memory).
+INNER_CORE_AGE_GYR = (0.5, 1.5)
+
+
+@pytest.fixture(scope="module")
+def earth():
+    """Earth: 1 M_E, core fraction 0.325, defaults, 4.5 Gyr."""
+    return evolve(PlanetSpec(mass_earth=1.0, core_mass_fraction=0.325, end_time_gyr=4.5))
+
+
+@pytest.fixture(scope="module")
+def five():
+    """5 M_E to 3 Gyr at 256 and 512 mantle nodes (its basal ocean freezes at ~2.0 Gyr)."""
+    return {n: evolve(PlanetSpec(mass_earth=5.0, end_time_gyr=3.0, mantle_nodes=n)) for n in (256, 512)}
+
+
+def _lifetime(result):
+    """End of the step at which the basal ocean's thickness first stays 0 to the end [s] (None if it lasts)."""
+    th = result.history["basal_ocean_thickness"]
+    if th[-1] > 0.0:
+        return None
+    return float(result.history.time[int(len(th) - np.argmax(th[::-1] > 0.0))])
+
+
+def test_reservoir_converges_with_the_mantle_nodes(five):
+    """Doubling interior.mantle_nodes (256 -> 512) changes the basal ocean's largest thickness and its lifetime by
+    <= 5% (the thickness is interpolated between nodes, not a node count). Tolerance 5%: asked of this model;
+    measured 0.02% and 0.03% (134.0 km, 2.02 Gyr)."""
+    a, b = five[256], five[512]
+    assert a.history["basal_ocean_thickness"].max() > 50e3
+    assert b.history["basal_ocean_thickness"].max() == pytest.approx(a.history["basal_ocean_thickness"].max(),
+                                                                       rel=0.05)
+    la, lb = _lifetime(a), _lifetime(b)
+    assert la is not None and lb is not None
+    assert lb == pytest.approx(la, rel=0.05)
+
+
+def test_reservoir_closes_the_energy_budget(five, earth):
+    """With the basal ocean the stored heat (mantle + core + ocean) still balances the time-integrated surface
+    loss net of radiogenic heating: |closure| <= 1e-10 (the project asks <= 1e-4; the energies are integrated
+    and the mass handed from ocean to mantle is debited and credited in the same step, so it closes to
+    round-off: measured <= 2e-15)."""
+    for result in (*five.values(), earth):
+        assert result.history.energy_closure <= 1e-10
+
+
+def test_reservoir_off_has_no_ocean_and_differs():
+    """melting.basal_magma_ocean = "off" has no basal-ocean series (the summary's basal_layer then comes from the
+    layer table, as before the ocean) and the lower boundary layer on the core (the results before the ocean;
+    tests/test_refactor_regression.py pins them to 1e-12); the default differs from it (the ocean is a reservoir
+    of its own: an Earth's core temperature at 1 Gyr moves by > 1 K)."""
+    off = evolve(PlanetSpec(mass_earth=1.0, end_time_gyr=1.0, basal_magma_ocean="off"))
+    on = evolve(PlanetSpec(mass_earth=1.0, end_time_gyr=1.0))
+    assert "basal_ocean_thickness" not in off.history
+    assert on.history["basal_ocean_thickness"].max() > 0.0
+    assert abs(on.history["core_temperature"][-1] - off.history["core_temperature"][-1]) > 1.0
+
+
+def test_ocean_thins_as_the_core_cools(five):
+    """Labrosse, Hernlund & Coltice 2007 (Nature 450:866): the basal ocean crystallises from its top as the core
+    cools. Once below its cap, its thickness falls whenever T_c falls (no step where T_c drops and the ocean
+    grows by more than 1 m) and it ends at zero thickness."""
+    h = five[256].history
+    th, tc = h["basal_ocean_thickness"], h["core_temperature"]
+    below = th < th.max()
+    d_th, d_tc = np.diff(th), np.diff(tc)
+    both = below[1:] & below[:-1]
+    assert np.any(both)
+    assert not np.any((d_tc < 0.0) & (d_th > 1.0) & both)
+    assert th[-1] == 0.0
+
+
+def test_basal_layer_summary_reads_the_series(five):
+    """The summary's basal_layer (scheme-neutral: the scheme's series when present) reports the series' largest
+    thickness exactly and its end at the step that first shows no ocean (tolerance: that step's length)."""
+    r = five[256]
+    s = r.summary()
+    b = s["basal_layer"]
+    h = r.history
+    assert b["max_thickness_m"] == float(h["basal_ocean_thickness"].max())
+    end = _lifetime(r)
+    assert b["end_yr"] * YEAR == pytest.approx(end, rel=1e-12)
+    assert b["start_yr"] == 0.0
+
+
+def test_core_times_in_the_summary(five, earth):
+    """Summary keys inner_core_nucleation_yr (the inner-core-nucleated event) and core_solid_yr (the inner core
+    fills the core; None if never): the 5 M_E core nucleates within the run and freezes at ~1.8 Gyr (measured),
+    Earth's has not frozen; when present, the nucleation precedes the freezing."""
+    s5 = five[256].summary()
+    assert s5["inner_core_nucleation_yr"] is not None and s5["core_solid_yr"] is not None
+    assert 0.0 <= s5["inner_core_nucleation_yr"] < s5["core_solid_yr"] <= 3.0e9
+    h = five[256].history
+    assert h["inner_core_radius"][-1] == pytest.approx(five[256].interior.core_radius, rel=1e-9)
+    se = earth.summary()
+    assert se["core_solid_yr"] is None
+    nucleated = [e["time_yr"] for e in se["events"] if e["kind"] == "inner-core-nucleated"]
+    assert se["inner_core_nucleation_yr"] == (nucleated[0] if nucleated else None)
+
+
+@pytest.mark.xfail(strict=True, reason="measured 1837 km at 4.5 Gyr (1647 km without the basal ocean): the core "
+                   "is ~110 K colder at the CMB than a 1221.5 km inner core needs on this core adiabat and the "
+                   "Anzellini 2013 curve less 700 K (4215 K); not tuned")
+def test_earth_inner_core_radius_against_prem(earth):
+    """Earth today (4.5 Gyr, defaults): inner-core radius against PREM's 1221.5 km (Dziewonski & Anderson 1981),
+    tolerance 10% (122 km). The radius moves ~5.6 km per kelvin of core temperature here (measured), so 10% is
+    ~20 K of CMB temperature, well inside the ~+-300 K spread of published present CMB temperatures (from
+    memory): a test that the physics lands on Earth, not a fit."""
+    assert earth.history["inner_core_radius"][-1] == pytest.approx(PREM_INNER_CORE_M, rel=0.10)
+
+
+@pytest.mark.xfail(strict=True, reason="measured 2.7 Gyr (nucleation at 1.80 Gyr of 4.5; 2.3 Gyr without the "
+                   "basal ocean): the same too-cold core as the radius test")
+def test_earth_inner_core_age(earth):
+    """Earth's inner-core age (4.5 Gyr minus its nucleation) inside the published 0.5-1.5 Gyr (Labrosse 2015,
+    PEPI 247:36; disputed, Biggin et al. 2015, Nature 526:245; both from memory); no extra tolerance."""
+    nucleation = earth.summary()["inner_core_nucleation_yr"]
+    assert nucleation is not None
+    age = 4.5 - nucleation / 1e9
+    assert INNER_CORE_AGE_GYR[0] <= age <= INNER_CORE_AGE_GYR[1]
+
+
+def test_iron_curve_flagged_beyond_its_measured_range():
+    """The iron melting curve counts as measured to 1000 GPa (Anzellini et al. 2013 static data to ~330 GPa;
+    Kraus et al. 2022, Science 375:202, laser shock to 1000 GPa, range checked in the abstract): the core flag
+    covers only pressures above 1000 GPa, with confidence 'low'."""
+    from meltzone.iron import IRON_VALIDATED_MAX_PA
+    from meltzone.phases import core_flags
+
+    assert IRON_VALIDATED_MAX_PA == 1000.0 * GPA
+    p = np.array([100.0, 330.0, 600.0, 999.0, 1001.0, 2000.0]) * GPA
+    depth = np.linspace(3000e3, 5000e3, len(p))
+    zones = core_flags(depth, p)
+    assert len(zones) == 1
+    zone = zones[0]
+    assert zone["kind"] == "extrapolated-iron-melting" and zone["confidence"] == "low"
+    assert zone["top_pressure_pa"] > 999.0 * GPA
+    assert not core_flags(depth[:4], p[:4])
+
+
+def test_ocean_melting_curve_sets_a_continuous_thickness():
+    """The ocean's top is interpolated between nodes: over a 10 K range of core temperature below the cap, the
+    thickness changes in steps smaller than a tenth of the node spacing (a node count would jump by whole
+    spacings), and it is zero below the curve's value at the CMB (solidus - depression - enrichment)."""
+    from meltzone import melting
+    from meltzone._core import layout as k
+    from meltzone._core.basal import basal_ocean
+    from meltzone.evolution.boundary_layer import build_inputs
+    from meltzone.interior import build_interior
+
+    spec = PlanetSpec(mass_earth=1.0)
+    it = build_interior(spec)
+    curves = melting.node_curves(melting.get_model(spec.melting.model), it.P[it.mantle])
+    inputs = build_inputs(spec, it, curves)
+    grid, par = inputs.grid, inputs.par
+    floor = grid[k.G_TSOL, 0] - par[k.P_BMO_DEP] - par[k.P_BMO_ENRICH]
+    assert basal_ocean(floor - 1.0, grid, par)[1] == 0.0
+    tcs = np.linspace(floor + 100.0, floor + 110.0, 401)
+    r_b = np.array([basal_ocean(t, grid, par)[0] for t in tcs])
+    spacing = grid[k.G_R, 1] - grid[k.G_R, 0]
+    assert r_b[-1] > r_b[0] + spacing  # it crosses nodes
+    assert np.max(np.abs(np.diff(r_b))) < 0.1 * spacing
+
+
+def test_run_file_keeps_the_thickness_history(five, tmp_path):
+    """The run file holds the ocean's thickness history: written and read back exactly (common practice: a
+    round trip), with its unit; the summary of the loaded run reports the same basal layer."""
+    from meltzone.results.runfile import load, write
+
+    path = tmp_path / "five.h5"
+    write(five[256], path)
+    back = load(path)
+    np.testing.assert_array_equal(back.history["basal_ocean_thickness"], five[256].history["basal_ocean_thickness"])
+    assert back.summary()["basal_layer"] == five[256].summary()["basal_layer"]
