@@ -134,9 +134,10 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                                          lo=0.0, hi=3000.0,
                                          source="~700 K for Earth's core, Alfe et al. 2002, EPSL 195:91 (from memory)"),
         # basal magma ocean (boundary-layer scheme; see meltzone.evolution.boundary_layer)
-        "basal_magma_ocean": Key("reservoir", "", "basal magma ocean between core and solid mantle: 'reservoir' (a "
-                                 "well-mixed layer at the core's temperature that cools with the core) or 'off' (the "
-                                 "lower boundary layer sits on the core)", choices=("reservoir", "off"),
+        "basal_magma_ocean": Key("off", "", "basal magma ocean between core and solid mantle: 'reservoir' (a "
+                                 "well-mixed layer at the core's temperature that cools with the core; experimental: "
+                                 "its melting-curve form and parameters are this model's choice) or 'off' (the lower "
+                                 "boundary layer sits on the core)", choices=("reservoir", "off"),
             source="Labrosse, Hernlund & Coltice 2007, Nature 450:866; parameterised after Blanc, Stegman & Ziegler "
                    "2020, EPSL 534 and O'Rourke 2020, GRL 47 (abstracts seen; parameters from memory)"),
         "basal_melt_depression_k": Key(300.0, "K", "lowering of the mantle solidus for the iron-enriched melt of the "

@@ -1,7 +1,8 @@
 """The basal magma ocean of the boundary-layer scheme, Earth's inner core, and the iron curve's measured range.
 
-Sources and tolerances are named in each test. Measured values quoted in docstrings come from this code at the
-defaults (256 mantle nodes) unless said otherwise.
+Sources and tolerances are named in each test. Measured values quoted in docstrings come from this code with the
+reservoir on (melting.basal_magma_ocean = "reservoir", experimental, off by default) and 256 mantle nodes unless
+said otherwise.
 """
 
 from __future__ import annotations
@@ -11,9 +12,9 @@ import pytest
 
 from meltzone import evolve
 from meltzone.config import PlanetSpec
-from meltzone.constants import GPA, GYR, YEAR
+from meltzone.constants import GPA, YEAR
 
-#: Earth's inner-core radius, PREM (Dziewonski & Anderson 1981, PEPI 25:297; checked, /work/shared/REFERENCES.md).
+#: Earth's inner-core radius, PREM (Dziewonski & Anderson 1981, PEPI 25:297).
 PREM_INNER_CORE_M = 1221.5e3
 #: Published inner-core ages [Gyr]: ~0.5-1.5 (Labrosse 2015, PEPI 247:36, high core conductivity; from memory),
 #: disputed (palaeomagnetic estimates up to ~1.5 Gyr, Biggin et al. 2015, Nature 526:245; from memory).
@@ -23,13 +24,13 @@ INNER_CORE_AGE_GYR = (0.5, 1.5)
 @pytest.fixture(scope="module")
 def earth():
     """Earth: 1 M_E, core fraction 0.325, defaults, 4.5 Gyr."""
-    return evolve(PlanetSpec(mass_earth=1.0, core_mass_fraction=0.325, end_time_gyr=4.5))
+    return evolve(PlanetSpec(mass_earth=1.0, core_mass_fraction=0.325, end_time_gyr=4.5, basal_magma_ocean="reservoir"))
 
 
 @pytest.fixture(scope="module")
 def five():
     """5 M_E to 3 Gyr at 256 and 512 mantle nodes (its basal ocean freezes at ~2.0 Gyr)."""
-    return {n: evolve(PlanetSpec(mass_earth=5.0, end_time_gyr=3.0, mantle_nodes=n)) for n in (256, 512)}
+    return {n: evolve(PlanetSpec(mass_earth=5.0, end_time_gyr=3.0, mantle_nodes=n, basal_magma_ocean="reservoir")) for n in (256, 512)}
 
 
 def _lifetime(result):
@@ -68,7 +69,7 @@ def test_reservoir_off_has_no_ocean_and_differs():
     tests/test_refactor_regression.py pins them to 1e-12); the default differs from it (the ocean is a reservoir
     of its own: an Earth's core temperature at 1 Gyr moves by > 1 K)."""
     off = evolve(PlanetSpec(mass_earth=1.0, end_time_gyr=1.0, basal_magma_ocean="off"))
-    on = evolve(PlanetSpec(mass_earth=1.0, end_time_gyr=1.0))
+    on = evolve(PlanetSpec(mass_earth=1.0, end_time_gyr=1.0, basal_magma_ocean="reservoir"))
     assert "basal_ocean_thickness" not in off.history
     assert on.history["basal_ocean_thickness"].max() > 0.0
     assert abs(on.history["core_temperature"][-1] - off.history["core_temperature"][-1]) > 1.0
@@ -120,7 +121,7 @@ def test_core_times_in_the_summary(five, earth):
                    "is ~110 K colder at the CMB than a 1221.5 km inner core needs on this core adiabat and the "
                    "Anzellini 2013 curve less 700 K (4215 K); not tuned")
 def test_earth_inner_core_radius_against_prem(earth):
-    """Earth today (4.5 Gyr, defaults): inner-core radius against PREM's 1221.5 km (Dziewonski & Anderson 1981),
+    """Earth today (4.5 Gyr, defaults with the reservoir): inner-core radius against PREM's 1221.5 km (Dziewonski & Anderson 1981),
     tolerance 10% (122 km). The radius moves ~5.6 km per kelvin of core temperature here (measured), so 10% is
     ~20 K of CMB temperature, well inside the ~+-300 K spread of published present CMB temperatures (from
     memory): a test that the physics lands on Earth, not a fit."""
@@ -166,7 +167,7 @@ def test_ocean_melting_curve_sets_a_continuous_thickness():
     from meltzone.evolution.boundary_layer import build_inputs
     from meltzone.interior import build_interior
 
-    spec = PlanetSpec(mass_earth=1.0)
+    spec = PlanetSpec(mass_earth=1.0, basal_magma_ocean="reservoir")
     it = build_interior(spec)
     curves = melting.node_curves(melting.get_model(spec.melting.model), it.P[it.mantle])
     inputs = build_inputs(spec, it, curves)

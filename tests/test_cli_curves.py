@@ -114,7 +114,7 @@ def test_plot_curves_function(tmp_path):
 
 
 def test_interior_json_has_flags_for_ten_earth_masses():
-    """A 10 Earth-mass planet (CMB ~1.4 TPa; REFERENCES, derived) reaches predicted phases (post-perovskite
+    """A 10 Earth-mass planet (CMB ~1.4 TPa; derived from this interior model, see test_interior) reaches predicted phases (post-perovskite
     dissociation ~0.9 TPa, Umemoto & Wentzcovitch 2011) and melting beyond the experiments."""
     res = run("interior", "--mass", "10", "--json")
     assert res.exit_code == 0, res.output

@@ -60,7 +60,7 @@ def earth():
 
 
 def test_prem_oracle_sanity(prem):
-    """The integrated PREM gives M = 5.973e24 kg, P_CMB 135.8 GPa, P_centre 364.1 GPa (derived in REFERENCES)."""
+    """The integrated PREM gives M = 5.973e24 kg, P_CMB 135.8 GPa, P_centre 364.1 GPa (derived by integrating the PREM polynomials)."""
     assert prem["mass"] == pytest.approx(5.973e24, rel=2e-3)
     assert prem["cmb_pressure"] == pytest.approx(135.84e9, rel=5e-3)
     assert prem["center_pressure"] == pytest.approx(364.09e9, rel=5e-3)

@@ -36,28 +36,48 @@ def test_kernel_import_compiles_nothing():
 
 
 def test_cache_goes_to_the_per_user_folder_never_into_the_package(tmp_path):
-    """With NUMBA_CACHE_DIR unset, a small run writes its cache under $XDG_CACHE_HOME/meltzone/numba-<version>
-    and no *.nbi / *.nbc anywhere under the package folder."""
+    """With NUMBA_CACHE_DIR unset, a small run writes its cache under
+    $XDG_CACHE_HOME/meltzone/numba-<version>-<hash of the core sources> and no *.nbi / *.nbc anywhere under the
+    package folder."""
     package = Path(meltzone.__file__).parent
     before = {p for p in package.rglob("*.nb[ic]")}
     cache = tmp_path / "xdg"
     code = ("import meltzone; r = meltzone.evolve(mass_earth=1.0, end_time_gyr=1e-6, mantle_nodes=32, "
             "integration_steps=200); import os; print(os.environ['NUMBA_CACHE_DIR'])")
     out = _python(code, _without_cache_dir(tmp_path, XDG_CACHE_HOME=str(cache))).stdout.strip()
-    assert out == str(cache / "meltzone" / f"numba-{meltzone.__version__}")
+    from meltzone._core._jit import _sources_hash
+
+    assert out == str(cache / "meltzone" / f"numba-{meltzone.__version__}-{_sources_hash()}")
     assert {p for p in package.rglob("*.nb[ic]")} == before == set()
     assert any(Path(out).rglob("loop.integrate-*.nbi"))
     assert any(Path(out).rglob("*.nbc"))
 
 
 def test_cache_folder_without_xdg_and_when_unwritable(tmp_path):
-    """Without XDG_CACHE_HOME the cache goes to ~/.cache/meltzone/numba-<version>; when that cannot be made
+    """Without XDG_CACHE_HOME the cache goes to ~/.cache/meltzone/numba-<version>-<hash>; when that cannot be made
     (HOME is a file), to a temporary folder; never the package."""
     code = "import meltzone._core._jit as j; print(j.CACHE_DIR)"
+    from meltzone._core._jit import _sources_hash
+
     home = _python(code, _without_cache_dir(tmp_path)).stdout.strip()
-    assert home == str(tmp_path / "home" / ".cache" / "meltzone" / f"numba-{meltzone.__version__}")
+    assert home == str(tmp_path / "home" / ".cache" / "meltzone" / f"numba-{meltzone.__version__}-{_sources_hash()}")
     blocked = tmp_path / "file"
     blocked.write_text("")
     temp = _python(code, _without_cache_dir(tmp_path, HOME=str(blocked))).stdout.strip()
     assert not temp.startswith(str(blocked)) and os.access(temp, os.W_OK)
     assert not temp.startswith(str(Path(meltzone.__file__).parent))
+
+
+def test_cache_folder_changes_with_the_core_sources(tmp_path, monkeypatch):
+    """numba's cache does not notice an edit to a callee in another file (common practice: key the cache folder
+    on the sources); the default folder's name carries a hash of the core package's files."""
+    from meltzone._core import _jit
+
+    before = _jit._sources_hash()
+    fake = tmp_path / "_core"
+    fake.mkdir()
+    for path in Path(_jit.__file__).parent.glob("*.py"):
+        (fake / path.name).write_bytes(path.read_bytes())
+    (fake / "physics.py").write_bytes((fake / "physics.py").read_bytes() + b"\n# edited\n")
+    monkeypatch.setattr(_jit, "__file__", str(fake / "_jit.py"))
+    assert _jit._sources_hash() != before

@@ -228,7 +228,7 @@ def test_monteux2016_fits_cross_near_492_gpa_and_models_do_not():
 
 
 def test_high_pressure_models_reach_super_earth_mantles():
-    """Interior structure (REFERENCES, derived): 10 M_E planets reach ~1.45 TPa at the CMB, 20 M_E more
+    """Interior structure (derived from this interior model): 10 M_E planets reach ~1.45 TPa at the CMB, 20 M_E more
     than 3 TPa; both models are evaluable to >= 3 TPa and flag everything above 140 GPa (Fiquet 2010 /
     Andrault 2011 experiments end there)."""
     for mid in HIGH_PRESSURE_MODELS:
@@ -426,7 +426,7 @@ def test_unknown_model_and_law():
 
 
 def test_config_default_model_exists_and_covers_super_earths():
-    """The configuration default model must be evaluable on 0-3 TPa (REFERENCES: 15-20 M_E mantles)."""
+    """The configuration default model must be evaluable on 0-3 TPa (15-20 M_E mantles reach ~3 TPa in this interior model)."""
     from meltzone.config import SCHEMA
 
     model = melting.get_model(SCHEMA["melting"]["model"].default)

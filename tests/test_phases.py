@@ -101,7 +101,7 @@ def test_flags_earth_like_profile():
 
 
 def test_flags_super_earth_profile():
-    """A 10 Earth-mass mantle (~1.4 TPa at the CMB; REFERENCES, derived) reaches the predicted post-perovskite
+    """A 10 Earth-mass mantle (~1.4 TPa at the CMB in this interior model) reaches the predicted post-perovskite
     dissociation (~0.9 TPa, Umemoto & Wentzcovitch 2011), melting beyond the 140 GPa experiments, the EOS
     beyond 0.15 TPa and the MgO B1 -> B2 band (0.40-0.50 TPa)."""
     depth, p, t = profile(1.4 * TPA)

@@ -10,7 +10,10 @@ Import ``njit`` from here (never ``numba`` directly) in the core modules::
   option is not part of numba's cache key, so clear the cache when switching it.
 * The cache never goes inside the installed package (a ``__pycache__`` written into site-packages outlives
   the install and can shadow a later editable install): ``NUMBA_CACHE_DIR`` if set; else a per-user folder,
-  ``$XDG_CACHE_HOME/meltzone/numba-<version>`` (``~/.cache`` without XDG_CACHE_HOME); else a temporary folder.
+  ``$XDG_CACHE_HOME/meltzone/numba-<version>-<sources>`` (``~/.cache`` without XDG_CACHE_HOME); else a
+  temporary folder. ``<sources>`` is a short hash of this package's source files: numba's cache does not notice
+  an edit to a function in another file (a caller keeps the old compiled callee and old index constants), so a
+  changed core gets a fresh folder. A user-set ``NUMBA_CACHE_DIR`` is used as it is: clear it after an upgrade.
 """
 
 from __future__ import annotations
@@ -29,6 +32,18 @@ def _writable(folder: str) -> bool:
     return os.access(folder, os.W_OK)
 
 
+def _sources_hash() -> str:
+    """Short hash of the core package's source files (names and contents)."""
+    import hashlib
+
+    digest = hashlib.sha256()
+    for path in sorted(glob.glob(os.path.join(os.path.dirname(os.path.abspath(__file__)), "*.py"))):
+        digest.update(os.path.basename(path).encode())
+        with open(path, "rb") as fh:
+            digest.update(fh.read())
+    return digest.hexdigest()[:12]
+
+
 def cache_dir() -> str:
     """The numba cache folder this process uses (chosen as the module docstring says; set at import)."""
     chosen = os.environ.get("NUMBA_CACHE_DIR")
@@ -38,8 +53,9 @@ def cache_dir() -> str:
 
     base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
     uid = os.getuid() if hasattr(os, "getuid") else 0
-    for candidate in (os.path.join(base, "meltzone", f"numba-{__version__}"),
-                      os.path.join(tempfile.gettempdir(), f"meltzone-numba-{uid}-{__version__}")):
+    tag = f"{__version__}-{_sources_hash()}"
+    for candidate in (os.path.join(base, "meltzone", f"numba-{tag}"),
+                      os.path.join(tempfile.gettempdir(), f"meltzone-numba-{uid}-{tag}")):
         if _writable(candidate):
             return candidate
     return tempfile.mkdtemp(prefix="meltzone-numba-")

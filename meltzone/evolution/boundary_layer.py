@@ -67,7 +67,7 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
 * core: adiabatic core of temperature T_c f_core(r), an inner core where it falls
   below the iron-alloy melting curve, releasing latent and gravitational energy
   (Stevenson et al. 1983; Labrosse 2015, PEPI 247:36);
-* basal magma ocean (``melting.basal_magma_ocean = "reservoir"``, the default; Labrosse, Hernlund & Coltice
+* basal magma ocean (``melting.basal_magma_ocean = "reservoir"``, experimental and off by default; Labrosse, Hernlund & Coltice
   2007, Nature 450:866; parameterised models: Blanc, Stegman & Ziegler 2020, EPSL 534; O'Rourke 2020, GRL 47;
   abstracts seen, details from memory): a well-mixed melt layer on the core at the core's temperature T_c.
   Its top r_b is where T_c meets its melting curve, the mantle solidus on the nodes lowered by
@@ -83,8 +83,9 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   adiabat, stays in the reservoir. The lower boundary layer sits on the ocean's top (radius r_b, the adiabat,
   pressure and solidus there), and the CMB heat flow series is the reservoir's loss, Q_b plus the heat of the
   mass it hands over. The History's ``basal_ocean_thickness`` is r_b - r_c; in the profiles the ocean's nodes
-  are at T_c with the mantle's melt law of T_c (that law does not know the enrichment). ``"off"`` gives the
-  scheme without it (the lower boundary layer on the core);
+  are at T_c with the mantle's melt law of T_c (that law does not know the enrichment). ``"off"`` (the default)
+  gives the scheme without it (the lower boundary layer on the core). Off by default because its melting-curve
+  form and its three parameters are this model's choice and its lifetime still falls with planet mass;
 * energy: the stored heat (sensible heat on the adiabat, latent heat of the
   melt, the lid's conductive profile, core sensible heat less the inner core's
   latent and gravitational energy) is one function of (T_u, lid) for the mantle
