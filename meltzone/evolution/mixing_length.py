@@ -68,6 +68,13 @@ MAX_NEWTON = 30
 MIN_STEP = 1.0e-3
 #: first step [s]; the controller grows it
 FIRST_STEP = 1.0
+#: narrowest melt-fraction width of the rheological transition in this scheme (convection.rheology_blend_width
+#: below it is widened to it): a sharper transition (the viscosity falls ~13 orders of magnitude across it) makes
+#: the rheological front advance cell by cell in relaxation oscillations of the top cells that the step control
+#: must follow (measured: a 5 M_E stagnant-lid run stalls near phi_c at 0.05; runs through at 0.15). This
+#: model's choice; smooth transitions of similar width are usual in mixing-length magma-ocean models (Bower et
+#: al. 2018, from memory)
+MIN_BLEND = 0.15
 #: most cells the scheme takes: the history holds T and phi per cell and step (this model's choice)
 MAX_CELLS = 2048
 PROGRESS_STEPS = 100
@@ -194,6 +201,7 @@ def intervals_of(phis, grid) -> dict:
 def run(spec, interior, curves, progress=None, *, history_rows=2048) -> History:
     """Evolve one planet with the mixing-length scheme and return its :class:`History`."""
     inputs = build_inputs(spec, interior, curves)
+    inputs.par[k.P_BLEND] = max(inputs.par[k.P_BLEND], MIN_BLEND)
     faces = build_faces(interior, inputs.grid)
     hist, temps, phis, state = integrate(spec, inputs, faces, progress, history_rows)
     column = {name: j for j, name in enumerate(k.MLT_HISTORY_COLUMNS)}
