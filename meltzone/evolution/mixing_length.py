@@ -143,9 +143,6 @@ def integrate(spec, inputs, faces, progress=None, history_rows=2048):
     from .._core.implicit import integrate as step_all
 
     n = inputs.grid.shape[1]
-    if n > MAX_CELLS:
-        raise ConfigError(f"interior.mantle_nodes = {n} is more than the mixing-length scheme takes "
-                          f"({MAX_CELLS} cells); lower interior.mantle_nodes")
     mset = settings(spec)
     x, tc = initial_x(spec, inputs)
     x_prev = x.copy()
@@ -200,6 +197,10 @@ def intervals_of(phis, grid) -> dict:
 
 def run(spec, interior, curves, progress=None, *, history_rows=2048) -> History:
     """Evolve one planet with the mixing-length scheme and return its :class:`History`."""
+    n = interior.r.size - interior.cmb_index
+    if n > MAX_CELLS:
+        raise ConfigError(f"interior.mantle_nodes = {spec.interior.mantle_nodes} gives {n} mantle cells, more than "
+                          f"the mixing-length scheme takes ({MAX_CELLS}); lower interior.mantle_nodes")
     inputs = build_inputs(spec, interior, curves)
     inputs.par[k.P_BLEND] = max(inputs.par[k.P_BLEND], MIN_BLEND)
     faces = build_faces(interior, inputs.grid)
