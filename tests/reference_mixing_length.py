@@ -117,7 +117,10 @@ class Reference:
             q[face] += self.rho_f[face] * kappa_h * dh[j] / dr[j]
         top = t[-1]
         teq = ph.equilibrium_temperature
-        g = lambda ts: self.boundary(top - ts, top, phi[-1], n, floors[n]) - SIGMA_SB * (ts ** 4 - teq ** 4)  # noqa: E731
+
+        def g(ts):
+            return self.boundary(top - ts, top, phi[-1], n, floors[n]) - SIGMA_SB * (ts ** 4 - teq ** 4)
+
         lo, hi = min(teq, top), max(teq, top)
         ts = lo if g(lo) <= 0.0 else hi if g(hi) >= 0.0 else brentq(g, lo, hi, xtol=1e-12, rtol=1e-15)
         q[n] = SIGMA_SB * (ts ** 4 - teq ** 4)

@@ -22,17 +22,16 @@ import math
 import numpy as np
 
 from ._jit import njit
-from .layout import (C_W, F_A, F_DR, F_R, F_RHO, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR,
-                     M_MAX_NEWTON, M_MIN_STEP, M_MOBILE, M_NEWTON_TOL, MH_ATM_CO2, MH_ATM_H2O, MH_DT, MH_E_STORED,
-                     MH_EC, MH_H, MH_LID, MH_MELT, MH_NEWTON, MH_OUT, MH_PHI_TOP, MH_QC, MH_QS, MH_RIC, MH_T,
-                     MH_TC, MH_TS, MH_TU, MS_EC, MS_EPS, MS_H, MS_H_PREV, MS_N_H, MS_N_REJ, MS_NEWTON, MS_OUT,
-                     MS_T, MS_TC, P_ATMOSPHERE, P_CC, P_CM, P_CO2_TOTAL, P_G_SURF, P_H2O_TOTAL, P_H_MAX, P_K,
-                     P_LATENT, P_RADIUS, P_STAGNANT, P_T_END, STATUS_DONE, STATUS_HISTORY_FULL,
-                     STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL)
+from .layout import (C_W, F_A, F_DR, F_R, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP, M_MOBILE,
+                     M_NEWTON_TOL, MH_ATM_CO2, MH_ATM_H2O, MH_DT, MH_E_STORED, MH_EC, MH_H, MH_LID, MH_MELT,
+                     MH_NEWTON, MH_OUT, MH_PHI_TOP, MH_QC, MH_QS, MH_RIC, MH_T, MH_TC, MH_TS, MH_TU, MS_EPS, MS_H,
+                     MS_H_PREV, MS_N_H, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_ATMOSPHERE, P_CC, P_CM, P_H_MAX, P_K,
+                     P_LATENT, P_RADIUS, P_STAGNANT, P_T_END, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS,
+                     STATUS_STEP_TOO_SMALL)
 from .mlt_physics import (adiabat_floor, cell_slope, cell_state, cmb_flux, interior_flux_jac,
                           surface_flux)
 from .record import find_intervals
-from .physics import CORE, _invert, atmosphere_mass, core_energy, inner_core, radiogenic_power
+from .physics import CORE, _invert, core_energy, grey_emissivity, inner_core, radiogenic_power
 from .tridiag import solve
 
 #: relative perturbation of the finite-difference Jacobian
@@ -62,13 +61,7 @@ def _emissivity(phi, grid, par):
     m_melt = 0.0
     for i in range(phi.shape[0]):
         m_melt += grid[G_W, i] * phi[i]
-    m_h2o = atmosphere_mass(par[P_H2O_TOTAL], m_melt, par, 6.8e-8, 0.7)
-    m_co2 = atmosphere_mass(par[P_CO2_TOTAL], m_melt, par, 4.4e-12, 1.0)
-    area = 4.0 * math.pi * par[P_RADIUS] ** 2
-    p0 = 101325.0
-    tau = 3.0 * m_h2o / (2.0 * area) * math.sqrt(0.01 * par[P_G_SURF] / (3.0 * p0))
-    tau += 3.0 * m_co2 / (2.0 * area) * math.sqrt(0.001 * par[P_G_SURF] / (3.0 * p0))
-    return 2.0 / (tau + 2.0), m_h2o, m_co2
+    return grey_emissivity(m_melt, par)
 
 
 @njit

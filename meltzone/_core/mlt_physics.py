@@ -16,6 +16,7 @@ from .layout import (F_DR, F_F, F_G, F_L, F_P, F_RATIO, F_RHO, G_AUX1, G_AUX2, G
                      P_K, P_KAPPA, P_LATENT, P_RA_CR, P_T_EQ)
 from .melt import melt_fraction
 from .physics import viscosity
+from .roots import illinois
 
 #: bisection tolerance of the enthalpy inversion [K] for laws without a closed-form inverse
 T_XTOL = 1.0e-11
@@ -107,8 +108,10 @@ def cell_slope(h, t, grid, i, law, par):
         dt = 1e-6
         a1 = grid[G_AUX1, i]
         a2 = grid[G_AUX2, i]
-        dphi_dt = (melt_fraction(min(t + dt, tliq), tsol, tliq, a1, a2, law)
-                   - melt_fraction(max(t - dt, tsol), tsol, tliq, a1, a2, law)) / (min(t + dt, tliq) - max(t - dt, tsol))
+        up = min(t + dt, tliq)
+        down = max(t - dt, tsol)
+        dphi_dt = (melt_fraction(up, tsol, tliq, a1, a2, law) - melt_fraction(down, tsol, tliq, a1, a2, law)) / (
+            up - down)
     dt_dh = 1.0 / (c + par[P_LATENT] * dphi_dt)
     return dt_dh, dphi_dt * dt_dh
 
@@ -170,7 +173,8 @@ def boundary_flux(dt, t_visc, phi, faces, j, t_floor, par):
 
 
 @njit
-def _surface_residual(ts, t_top, phi_top, faces, j, t_floor, eps, par):
+def _surface_residual(ts, args):
+    t_top, phi_top, faces, j, t_floor, eps, par = args
     return boundary_flux(t_top - ts, t_top, phi_top, faces, j, t_floor, par) - eps * STEFAN_BOLTZMANN * (
         ts ** 4 - par[P_T_EQ] ** 4)
 
@@ -179,35 +183,11 @@ def _surface_residual(ts, t_top, phi_top, faces, j, t_floor, eps, par):
 def surface_flux(t_top, phi_top, faces, j, t_floor, eps, par):
     """(q [W/m^2], T_s [K]) at the surface: T_s balances the top boundary layer's flux with
     eps sigma (T_s^4 - T_eq^4) (the boundary-layer scheme's radiation law). The balance falls monotonically
-    in T_s; Illinois regula falsi on [min(T_eq, T_top), max(T_eq, T_top)]."""
+    in T_s; Illinois regula falsi on [min(T_eq, T_top), max(T_eq, T_top)], to 1e-13 of T_s (the Newton
+    iteration differentiates the result)."""
     lo = min(par[P_T_EQ], t_top)
     hi = max(par[P_T_EQ], t_top)
-    g_lo = _surface_residual(lo, t_top, phi_top, faces, j, t_floor, eps, par)
-    g_hi = _surface_residual(hi, t_top, phi_top, faces, j, t_floor, eps, par)
-    ts = lo
-    if g_lo <= 0.0:
-        ts = lo
-    elif g_hi >= 0.0:
-        ts = hi
-    else:
-        side = 0
-        for _ in range(200):
-            ts = (lo * g_hi - hi * g_lo) / (g_hi - g_lo)
-            if not (lo < ts < hi):
-                ts = 0.5 * (lo + hi)
-            g = _surface_residual(ts, t_top, phi_top, faces, j, t_floor, eps, par)
-            if g > 0.0:
-                lo, g_lo = ts, g
-                if side == -1:
-                    g_hi *= 0.5
-                side = -1
-            else:
-                hi, g_hi = ts, g
-                if side == 1:
-                    g_lo *= 0.5
-                side = 1
-            if hi - lo <= 1e-13 * hi or g == 0.0:
-                break
+    ts = illinois(_surface_residual, (t_top, phi_top, faces, j, t_floor, eps, par), lo, hi, 200, 1e-13, 0.0)
     return eps * STEFAN_BOLTZMANN * (ts ** 4 - par[P_T_EQ] ** 4), ts
 
 

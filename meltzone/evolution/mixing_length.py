@@ -42,6 +42,14 @@ History: regime 0 (magma ocean) while the top cell's melt fraction exceeds phi_c
 regime; ``upper_temperature`` = potential temperature T / f of the top convecting cell (the highest cell whose
 upper face carries more heat by convection than by conduction); ``lid_thickness`` (stagnant lid) = depth of that
 cell's upper face; ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
+
+Known limitations (measured): the half-cell outer faces add half a cell of conduction between each boundary and
+its node (the tests compare analytic solutions with the boundary moved by it). When the top cell reaches the
+rheological transition it oscillates about it for a few Myr (the surface boundary layer's flux changes by orders
+of magnitude across the transition; ~80 magma-ocean end/reform flips for 5 M_E), which costs most of the steps
+and makes the end of the surface magma ocean depend on the resolution (1 M_E: 1.6-3.8 Myr between 64 and 256
+nodes). The basal layer's onset converges to < 1% and its freezing (last melt) to ~3% on doubling the cells;
+inner-core nucleation to ~15% only.
 """
 
 from __future__ import annotations
