@@ -99,6 +99,17 @@ REGISTRY = {
                               "120:223", MEMORY),
     "mcdonough2020": Citation("bulk-silicate-Earth radiogenic power 19.9 +- 3.0 TW today",
                               "McDonough, Sramek & Wipperfurth 2020, G3 21", CHECKED),
+    "abe1997_mlt": Citation("mixing-length eddy diffusivity, viscous alpha g l^4 s / (18 nu) and inertial "
+                            "(alpha g l^4 s / 16)^(1/2)", "Abe 1997, PEPI 100:27", MEMORY),
+    "bower2018": Citation("mixing-length energy balance of a partially molten mantle as a non-linear diffusion "
+                          "equation, eddy diffusivity spanning ~12 orders of magnitude, finite volumes (abstract "
+                          "checked; the flux forms from memory)", "Bower et al. 2018, PEPI 274:49", CHECKED),
+    "two_phase_adiabat": Citation("two-phase isentrope c_p dT + L dphi = alpha T dP / rho", "Solomatov 2015, "
+                                  "Treatise on Geophysics 9.04", MEMORY),
+    "mlt_mobile_lid": Citation("mobile lid of the mixing-length scheme: face viscosities no colder than the "
+                               "mid-mantle adiabat", "mobile-lid top", CHOICE),
+    "patankar1980": Citation("conservative finite volumes; backward Euler with Newton on the tridiagonal Jacobian",
+                             "Patankar 1980, Numerical Heat Transfer and Fluid Flow (Hemisphere)", MEMORY),
     "dormand1980": Citation("Dormand-Prince 5(4) Runge-Kutta pair", "Dormand & Prince 1980, J. Comput. Appl. "
                             "Math. 6:19", CHECKED),
 }
@@ -128,9 +139,23 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     return tuple(keys)
 
 
+def mixing_length_keys(spec) -> tuple[str, ...]:
+    """Registry keys of the laws a mixing-length run of ``spec`` uses."""
+    keys = ["tosi2017", "abe1997_mlt", "bower2018", "two_phase_adiabat", "patankar1980", "stevenson1983",
+            "mei2002", "abe1997", "solomatov2015", "roscoe1952", "lejeune1995", "karki2010", "rheology_blend",
+            "labrosse2015", "anzellini2013", "alfe2002", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
+    if spec.convection.activation_volume_decay_pa > 0.0:
+        keys.append("activation_volume_decay")
+    if spec.convection.regime == "mobile-lid":
+        keys.append("mlt_mobile_lid")
+    if spec.surface.atmosphere == "grey":
+        keys += ["abe1985", "elkins_tanton2008", "lebrun2013"]
+    return tuple(keys)
+
+
 #: convection.scheme -> function(spec) giving the registry keys of the laws that scheme uses. A new scheme
 #: adds its entry here.
-SCHEME_KEYS = {"boundary-layer": boundary_layer_keys}
+SCHEME_KEYS = {"boundary-layer": boundary_layer_keys, "mixing-length": mixing_length_keys}
 
 
 def run_sources(spec, melting_model, materials, keys=None) -> tuple[str, ...]:

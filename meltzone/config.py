@@ -157,8 +157,11 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
     },
     "convection": {
         "scheme": Key("boundary-layer", "", "evolution scheme: one potential temperature with thermal boundary "
-                      "layers (parameterized convection)", choices=("boundary-layer",),
-            source="Stevenson, Spohn & Schubert 1983, Icarus 54:466 (boundary-layer theory)"),
+                      "layers (parameterized convection), or a radially resolved mantle with mixing-length "
+                      "convection",
+                      choices=("boundary-layer", "mixing-length"),
+            source="Stevenson, Spohn & Schubert 1983, Icarus 54:466 (boundary-layer theory); Abe 1997, PEPI 100:27 "
+                   "and Bower et al. 2018, PEPI 274:49 (mixing-length theory)"),
         "regime": Key("mobile-lid", "", "solid-state convection regime", choices=("mobile-lid", "stagnant-lid"),
             source="Stevenson, Spohn & Schubert 1983 (mobile lid); Solomatov & Moresi 2000 (stagnant lid)"),
         "viscosity_prefactor_pa_s": Key(6.127e10, "Pa s", "Arrhenius prefactor A in A exp[(E + P V)/(R T)]",

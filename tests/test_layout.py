@@ -15,7 +15,7 @@ import pytest
 ROOT = Path(__file__).resolve().parents[1] / "meltzone"
 MAX_LINES = 650
 #: Modules that hold numba kernels or their layout; nothing downstream of the History may import them.
-KERNEL_PREFIXES = ("meltzone._core", "meltzone.evolution.boundary_layer")
+KERNEL_PREFIXES = ("meltzone._core", "meltzone.evolution.boundary_layer", "meltzone.evolution.mixing_length")
 #: What consumers may import of the evolution package: the contract and the scheme table.
 ALLOWED_EVOLUTION = ("meltzone.evolution.contract", "meltzone.evolution.schemes")
 CONSUMERS = ("meltzone.results", "meltzone.layers", "meltzone.plot", "meltzone.report", "meltzone.sweep")

@@ -96,6 +96,27 @@ STATE = ("time", "mantle_energy", "core_energy", "lid_thickness", "heat_out_minu
 #: S_T_SWITCH until the top of the mantle first reaches the rheological transition
 NOT_YET = 1.0e300
 
+# ------------------------------------------------------------ mixing-length scheme (implicit.py, mlt_physics.py)
+#: per-face geometry, faces 0 (CMB) .. n (surface) of the n mantle cells
+MLT_FACE_ROWS = ("radius", "area", "density", "gravity", "pressure", "mixing_length", "spacing", "adiabat_ratio",
+                 "adiabat")
+(F_R, F_A, F_RHO, F_G, F_P, F_L, F_DR, F_RATIO, F_F) = range(N_F := len(MLT_FACE_ROWS))
+#: settings of the implicit integrator
+MLT_SETTINGS = ("error_k", "max_melt_step", "max_cell_step_k", "newton_tol_k", "max_newton", "mobile_lid",
+                "min_step")
+M_ERR, M_DPHI, M_DT_CELL, M_NEWTON_TOL, M_MAX_NEWTON, M_MOBILE, M_MIN_STEP = range(N_M := len(MLT_SETTINGS))
+#: history columns of the mixing-length scheme (one row per accepted step)
+MLT_HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "surface_temperature", "surface_heat_flow",
+                       "cmb_heat_flow", "radiogenic_power", "lid_thickness", "inner_core_radius", "melt_mass",
+                       "top_melt_fraction", "stored_energy", "heat_out_minus_radiogenic", "atmosphere_h2o",
+                       "atmosphere_co2", "core_energy", "newton_iterations", "step_size")
+(MH_T, MH_TU, MH_TC, MH_TS, MH_QS, MH_QC, MH_H, MH_LID, MH_RIC, MH_MELT, MH_PHI_TOP, MH_E_STORED, MH_OUT,
+ MH_ATM_H2O, MH_ATM_CO2, MH_EC, MH_NEWTON, MH_DT) = range(N_MH := len(MLT_HISTORY_COLUMNS))
+#: integrator state of the mixing-length scheme (implicit.integrate resumes from it; h per cell kept apart)
+MLT_STATE = ("time", "heat_out_minus_radiogenic", "step_size", "previous_step_size", "n_history", "n_rejected",
+             "core_temperature", "emissivity")
+MS_T, MS_OUT, MS_H, MS_H_PREV, MS_N_H, MS_N_REJ, MS_TC, MS_EPS = range(N_MS := len(MLT_STATE))
+
 REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID, REGIME_STAGNANT_LID = range(3)
 STATUS_DONE, STATUS_HISTORY_FULL, STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL = range(5)
 

@@ -27,7 +27,7 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
 from .basal import basal_ocean, basal_top_energy
 from .layout import D_MB, D_RB, G_P, P_BMO, P_BMO_MREF
 from .melt import melt_fraction
-from .roots import bisect
+from .roots import bisect, illinois
 
 # Flags and indices passed between kernels as typed values, not literals: numba compiles one specialization per
 # literal argument value, so ``f(0)`` and ``f(1)`` would compile ``f`` twice (the cold start's cost)
@@ -214,6 +214,22 @@ def melt_mass_adiabat(tu, grid, law):
 
 
 @njit
+def grey_emissivity(m_melt, par):
+    """(eps, M_H2O, M_CO2) of the grey atmosphere over a mantle holding ``m_melt`` of melt: the volatiles in
+    solubility equilibrium with the melt, X_H2O = 6.8e-8 P^0.7 and X_CO2 = 4.4e-12 P (mass fractions, P in Pa;
+    as used by Lebrun et al. 2013), grey optical depth tau_i = (3 M_i / (8 pi R^2)) sqrt(kappa_i g / (3 P0)),
+    P0 = 1 atm, kappa_H2O = 0.01, kappa_CO2 = 0.001 m^2/kg, eps = 2 / (tau + 2) (Abe & Matsui 1985;
+    Elkins-Tanton 2008)."""
+    m_h2o = atmosphere_mass(par[P_H2O_TOTAL], m_melt, par, 6.8e-8, 0.7)
+    m_co2 = atmosphere_mass(par[P_CO2_TOTAL], m_melt, par, 4.4e-12, 1.0)
+    area = 4.0 * math.pi * par[P_RADIUS] ** 2
+    tau = 0.0
+    tau += 3.0 * m_h2o / (2.0 * area) * math.sqrt(0.01 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
+    tau += 3.0 * m_co2 / (2.0 * area) * math.sqrt(0.001 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
+    return 2.0 / (tau + 2.0), m_h2o, m_co2
+
+
+@njit
 def _stored_heat_residual(t, args):
     kind, e, d, mb, grid, core, par, law = args
     return (mantle_energy(t, d, mb, grid, par, law) if kind == 0 else core_energy(t, grid, core, par)) - e
@@ -334,6 +350,12 @@ def _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, eps,
 
 
 @njit
+def _surface_balance_at(ts, args):
+    stagnant, solid, tu, tl, d_lid, d_conv, dtc, base, eps, par = args
+    return _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+
+
+@njit
 def _top_boundary(stagnant, solid, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
     """(T_s, q_surface, q_u, delta_u) at the top: the surface temperature balances the conductive flux through
     the top layer (boundary layer, or lid over the boundary layer) with eps sigma (T_s^4 - T_eq^4).
@@ -345,42 +367,14 @@ def _top_boundary(stagnant, solid, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
     lo = t_eq
     hi = max(t_top, t_eq)
     delta_u = d_conv
-    ts = 0.5 * (lo + hi)
     base = par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_SURF] * d_conv ** 3 / (par[P_KAPPA] * eta_u)
     if stagnant:
         ra = base * max(tu - tl + max(dtc, 0.0), 1e-6)
         delta_u = top_layer_thickness(d_conv, ra, solid, par)
     # Illinois (modified regula falsi) on g(T_s) = q_cond - q_rad, which falls monotonically from
     # g(T_eq) >= 0 to g(T_top) <= 0
-    g_lo = _surface_balance(stagnant, solid, lo, tu, tl, d_lid, d_conv, dtc, base, eps, par)
-    g_hi = _surface_balance(stagnant, solid, hi, tu, tl, d_lid, d_conv, dtc, base, eps, par)
-    side = 0
-    ts = lo
-    prev = -1.0
-    for _ in range(100):
-        if g_lo <= 0.0:
-            ts = lo
-            break
-        if g_hi >= 0.0:
-            ts = hi
-            break
-        ts = (lo * g_hi - hi * g_lo) / (g_hi - g_lo)
-        if not (lo < ts < hi):
-            ts = 0.5 * (lo + hi)
-        g = _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par)
-        if g > 0.0:
-            lo, g_lo = ts, g
-            if side == -1:
-                g_hi *= 0.5
-            side = -1
-        else:
-            hi, g_hi = ts, g
-            if side == 1:
-                g_lo *= 0.5
-            side = 1
-        if hi - lo < 1e-11 * hi or g == 0.0 or abs(ts - prev) < 1e-12 * ts:
-            break
-        prev = ts
+    ts = illinois(_surface_balance_at, (stagnant, solid, tu, tl, d_lid, d_conv, dtc, base, eps, par), lo, hi, 100,
+                  1e-11, 1e-12)
     if stagnant:
         return ts, par[P_K] * (tl - ts) / d_lid, par[P_K] * (tu - tl) / delta_u, delta_u
     ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
@@ -439,21 +433,9 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
         delta_c = 0.5 * depth
         qc = 0.0
     # grey atmosphere
-    eps = 1.0
-    m_h2o = 0.0
-    m_co2 = 0.0
+    eps, m_h2o, m_co2 = 1.0, 0.0, 0.0
     if par[P_ATMOSPHERE] > 0.5:
-        m_melt = melt_mass_adiabat(tu, grid, law_i)
-        # solubilities (mass fraction, P in Pa): H2O 6.8e-8 P^0.7, CO2 4.4e-12 P (as used by Lebrun et al. 2013)
-        m_h2o = atmosphere_mass(par[P_H2O_TOTAL], m_melt, par, 6.8e-8, 0.7)
-        m_co2 = atmosphere_mass(par[P_CO2_TOTAL], m_melt, par, 4.4e-12, 1.0)
-        area = 4.0 * math.pi * par[P_RADIUS] ** 2
-        # grey optical depth tau_i = (3 M_i / (8 pi R^2)) sqrt(kappa_i g / (3 P0)), P0 = 1 atm,
-        # kappa_H2O = 0.01, kappa_CO2 = 0.001 m^2/kg (Abe & Matsui 1985; Elkins-Tanton 2008)
-        tau = 0.0
-        tau += 3.0 * m_h2o / (2.0 * area) * math.sqrt(0.01 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
-        tau += 3.0 * m_co2 / (2.0 * area) * math.sqrt(0.001 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
-        eps = 2.0 / (tau + 2.0)
+        eps, m_h2o, m_co2 = grey_emissivity(melt_mass_adiabat(tu, grid, law_i), par)
     # top boundary: the magma ocean (soft-turbulence law) and the solid mantle (the configured law: mobile
     # lid, or the lid over its sublayer in stagnant-lid mode); across the rheological transition
     # (phi_c < phi_top < phi_c + P_BLEND) the two are blended with the same weight as the viscosity,

@@ -25,3 +25,40 @@ def bisect(f, args, lo, hi, xtol_abs, xtol_rel, maxiter):
         if hi - lo <= xtol_abs + xtol_rel * mid:
             break
     return 0.5 * (lo + hi)
+
+
+@njit(inline="always")
+def illinois(f, args, lo, hi, maxiter, xtol_rel, step_rel):
+    """Root of ``f(x, args)``, which falls through zero on [lo, hi], by the Illinois variant of regula falsi
+    (Dowell & Jarratt 1971, BIT 11:168; common practice): lo if f(lo) <= 0, hi if f(hi) >= 0; stops when the
+    bracket is narrower than xtol_rel * hi, f vanishes, or an iterate moves less than step_rel of itself."""
+    g_lo = f(lo, args)
+    g_hi = f(hi, args)
+    side = 0
+    x = lo
+    prev = -1.0
+    for _ in range(maxiter):
+        if g_lo <= 0.0:
+            x = lo
+            break
+        if g_hi >= 0.0:
+            x = hi
+            break
+        x = (lo * g_hi - hi * g_lo) / (g_hi - g_lo)
+        if not (lo < x < hi):
+            x = 0.5 * (lo + hi)
+        g = f(x, args)
+        if g > 0.0:
+            lo, g_lo = x, g
+            if side == -1:
+                g_hi *= 0.5
+            side = -1
+        else:
+            hi, g_hi = x, g
+            if side == 1:
+                g_lo *= 0.5
+            side = 1
+        if hi - lo < xtol_rel * hi or g == 0.0 or abs(x - prev) < step_rel * x:
+            break
+        prev = x
+    return x

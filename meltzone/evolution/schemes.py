@@ -29,6 +29,7 @@ class Scheme:
 #: scheme name -> module that defines ``SCHEME``
 TABLE = {
     "boundary-layer": "meltzone.evolution.boundary_layer",
+    "mixing-length": "meltzone.evolution.mixing_length",
 }
 
 

@@ -1,0 +1,365 @@
+"""The implicit integrator of the mixing-length scheme: backward Euler on the cells' enthalpies and the core's
+stored heat, Newton on the tridiagonal Jacobian, adaptive steps, recording.
+
+Unknowns x = (E_core, h_0 .. h_{n-1}) (core first, so that the core-CMB-cell coupling stays tridiagonal).
+Residual of row 0: (E_c - E_c^old) / dt + A_0 F_0; of row i + 1 (cell i): M_i (h_i - h_i^old) / dt
+- A_i F_i + A_{i+1} F_{i+1} - H_i, with face fluxes F_j (positive upward) at the end of the step. The sum of
+the rows is the global energy balance, so the scheme conserves energy to the Newton tolerance (Patankar 1980,
+Numerical Heat Transfer and Fluid Flow, finite volumes; common practice). Jacobian entries by one-sided
+differences of each face flux in its two neighbours; the Thomas solve of :mod:`meltzone._core.tridiag`.
+
+Step control: local error of backward Euler estimated from the linear predictor through the last two states,
+LTE ~ dt / (dt + dt_prev) |x - x_pred| (common practice for one-step implicit methods), in kelvin of sensible
+heat, against M_ERR; besides, no cell may change its temperature by more than M_DT_CELL nor its melt fraction
+by more than M_DPHI in one step, so a melt layer cannot open and close between two recorded profiles unless
+its melt fraction stays below M_DPHI.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ._jit import njit
+from .layout import (C_W, F_A, F_DR, F_R, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP, M_MOBILE,
+                     M_NEWTON_TOL, MH_ATM_CO2, MH_ATM_H2O, MH_DT, MH_E_STORED, MH_EC, MH_H, MH_LID, MH_MELT,
+                     MH_NEWTON, MH_OUT, MH_PHI_TOP, MH_QC, MH_QS, MH_RIC, MH_T, MH_TC, MH_TS, MH_TU, MS_EPS, MS_H,
+                     MS_H_PREV, MS_N_H, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_ATMOSPHERE, P_CC, P_CM, P_H_MAX, P_K,
+                     P_LATENT, P_RADIUS, P_STAGNANT, P_T_END, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS,
+                     STATUS_STEP_TOO_SMALL)
+from .mlt_physics import (adiabat_floor, cell_slope, cell_state, cmb_flux, interior_flux_jac,
+                          surface_flux)
+from .record import find_intervals
+from .physics import CORE, _invert, core_energy, grey_emissivity, inner_core, radiogenic_power
+from .tridiag import solve
+
+#: relative perturbation of the finite-difference Jacobian
+FD_REL = 1.0e-8
+#: step growth bounds per accepted step
+GROW_MAX, SHRINK_MIN = 2.0, 0.2
+#: step factor after a failed Newton solve or a violated bound
+CUT = 0.5
+#: relative end-time slack of the loop
+END_SLACK = 1e-14
+#: a boundary layer counts as convecting when it carries this much more than conduction across the half cell
+CONVECTING = 1.01
+
+
+@njit
+def _states(h, grid, law, par, temp, phi):
+    for i in range(h.shape[0]):
+        temp[i], phi[i] = cell_state(h[i], grid, i, law, par)
+
+
+@njit
+def _emissivity(phi, grid, par):
+    """(eps, M_H2O, M_CO2) of the grey atmosphere in solubility equilibrium with the melt (the boundary-layer
+    scheme's law; lagged: evaluated at the start of each step)."""
+    if par[P_ATMOSPHERE] <= 0.5:
+        return 1.0, 0.0, 0.0
+    m_melt = 0.0
+    for i in range(phi.shape[0]):
+        m_melt += grid[G_W, i] * phi[i]
+    return grey_emissivity(m_melt, par)
+
+
+@njit
+def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, eps, has_core, flux, d_lo, d_hi):
+    """Face fluxes F_j [W/m^2] at the state (E_c, h) and their derivatives in the unknown below (d_lo: E_c for
+    the CMB face, h_{j-1} otherwise) and above (d_hi: h_j). Returns T_s."""
+    n = h.shape[0]
+    # CMB face
+    if has_core:
+        dtc = FD_REL * tc + 1e-6
+        flux[0] = cmb_flux(tc, temp[0], phi[0], faces, floors[0], par)
+        c_core = 0.0
+        for jj in range(core.shape[1]):
+            c_core += core[C_W, jj]
+        f_t = cmb_flux(tc + dtc, temp[0], phi[0], faces, floors[0], par)
+        # dE_c/dT_c from the stored-heat function (inner-core release included)
+        slope = (core_energy(tc + dtc, grid, core, par) - core_energy(tc, grid, core, par)) / dtc
+        d_lo[0] = (f_t - flux[0]) / dtc / slope
+        dh = FD_REL * abs(h[0]) + 1e-3
+        t1, p1 = cell_state(h[0] + dh, grid, 0, law, par)
+        d_hi[0] = (cmb_flux(tc, t1, p1, faces, floors[0], par) - flux[0]) / dh
+    else:
+        flux[0] = 0.0
+        d_lo[0] = 0.0
+        d_hi[0] = 0.0
+    sa = np.empty(2)
+    sb = np.empty(2)
+    sb[0], sb[1] = cell_slope(h[0], temp[0], grid, 0, law, par)
+    for j in range(1, n):
+        a = j - 1
+        sa[0] = sb[0]
+        sa[1] = sb[1]
+        sb[0], sb[1] = cell_slope(h[j], temp[j], grid, j, law, par)
+        flux[j], d_lo[j], d_hi[j] = interior_flux_jac(h[a], h[j], temp[a], temp[j], phi[a], phi[j], sa, sb,
+                                                      faces, j, floors[j], par)
+    top = n - 1
+    q, ts = surface_flux(temp[top], phi[top], faces, n, floors[n], eps, par)
+    dh = FD_REL * abs(h[top]) + 1e-3
+    t1, p1 = cell_state(h[top] + dh, grid, top, law, par)
+    q1, _ = surface_flux(t1, p1, faces, n, floors[n], eps, par)
+    flux[n] = q
+    d_lo[n] = (q1 - q) / dh
+    d_hi[n] = 0.0
+    return ts
+
+
+@njit
+def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors, eps, has_core, temp, phi,
+           flux, d_lo, d_hi, lower, diag, upper, rhs, dx, work):
+    """Solve the backward-Euler step from x_old over dt in place of x (which holds the start guess); x[0] is
+    the core's stored heat, x[1:] the cells' enthalpies. ``tc`` starts the core inversion. Returns
+    (converged, iterations, T_c, T_s); on success temp, phi and flux hold the end state's."""
+    n = x.shape[0] - 1
+    h = x[1:]
+    heat = radiogenic_power(t_new, iso, par)
+    m_total = 0.0
+    for i in range(n):
+        m_total += grid[G_W, i]
+    tol_h = mset[M_NEWTON_TOL] * par[P_CM]
+    c_core = 0.0
+    for jj in range(core.shape[1]):
+        c_core += core[C_W, jj] * par[P_CC]
+    ts = 0.0
+    max_it = int(mset[M_MAX_NEWTON])
+    for it in range(max_it):
+        _states(h, grid, law, par, temp, phi)
+        if has_core:
+            tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
+        ts = fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, eps, has_core, flux, d_lo, d_hi)
+        a0 = faces[F_A, 0]
+        rhs[0] = (x[0] - x_old[0]) / dt + a0 * flux[0]
+        diag[0] = 1.0 / dt + a0 * d_lo[0]
+        upper[0] = a0 * d_hi[0]
+        lower[0] = 0.0
+        for i in range(n):
+            a_lo = faces[F_A, i]
+            a_hi = faces[F_A, i + 1]
+            m = grid[G_W, i]
+            rhs[i + 1] = m * (h[i] - x_old[i + 1]) / dt - a_lo * flux[i] + a_hi * flux[i + 1] - heat * m / m_total
+            lower[i + 1] = -a_lo * d_lo[i]
+            diag[i + 1] = m / dt - a_lo * d_hi[i] + a_hi * d_lo[i + 1]
+            upper[i + 1] = a_hi * d_hi[i + 1]
+        if not solve(lower, diag, upper, rhs, dx, work):
+            return False, it + 1, tc, ts
+        big = 0.0
+        for i in range(n):
+            h[i] -= dx[i + 1]
+            big = max(big, abs(dx[i + 1]))
+        if has_core:
+            x[0] -= dx[0]
+            big = max(big, abs(dx[0]) / c_core * par[P_CM])
+        if not (big < 1e300):
+            return False, it + 1, tc, ts
+        if big <= tol_h:
+            _states(h, grid, law, par, temp, phi)
+            if has_core:
+                tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
+                flux[0] = cmb_flux(tc, temp[0], phi[0], faces, floors[0], par)
+            flux[n], ts = surface_flux(temp[n - 1], phi[n - 1], faces, n, floors[n], eps, par)
+            return True, it + 1, tc, ts
+    return False, max_it, tc, ts
+
+
+@njit
+def upper_cell(temp, flux, faces, par):
+    """Index of the top convecting cell: the highest cell whose upper face carries more heat by convection
+    than by conduction (the top face: a boundary layer thinner than the half cell); 0 if none."""
+    n = temp.shape[0]
+    for j in range(n - 1, 0, -1):
+        cond = -par[P_K] * (temp[j] - temp[j - 1]) / faces[F_DR, j]
+        if flux[j] - cond > abs(cond):
+            return j - 1
+    return 0
+
+
+@njit
+def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, eps, m_h2o, m_co2, out,
+           newton_its, hist, temps, phis, n_h):
+    """Store accepted step ``n_h``: history row (MH_*) and T, phi on every cell."""
+    n = temp.shape[0]
+    melt = 0.0
+    e = 0.0
+    for i in range(n):
+        temps[n_h, i] = temp[i]
+        phis[n_h, i] = phi[i]
+        melt += grid[G_W, i] * phi[i]
+        # recomputed from (T, phi): the closure also tests the inversion
+        e += grid[G_W, i] * (par[P_CM] * temp[i] + par[P_LATENT] * phi[i])
+    has_core = core[C_W].sum() > 0.0
+    e_core = core_energy(tc, grid, core, par) if has_core else 0.0
+    top_face = n
+    # top convecting cell: the surface cell when its boundary layer is thinner than the half cell
+    if flux[n] * faces[F_DR, n] > CONVECTING * par[P_K] * (temp[n - 1] - ts) and temp[n - 1] > ts:
+        iu = n - 1
+    else:
+        iu = upper_cell(temp, flux, faces, par)
+        top_face = iu + 1
+    hist[n_h, MH_T] = t
+    hist[n_h, MH_TU] = temp[iu] / grid[G_F, iu]
+    hist[n_h, MH_TC] = tc
+    hist[n_h, MH_TS] = ts
+    hist[n_h, MH_QS] = flux[n] * faces[F_A, n]
+    hist[n_h, MH_QC] = flux[0] * faces[F_A, 0] if has_core else 0.0
+    hist[n_h, MH_H] = radiogenic_power(t, iso, par)
+    stagnant = par[P_STAGNANT] > 0.5
+    hist[n_h, MH_LID] = par[P_RADIUS] - faces[F_R, top_face] if stagnant else 0.0
+    hist[n_h, MH_RIC] = inner_core(tc, core)[0] if has_core else 0.0
+    hist[n_h, MH_MELT] = melt
+    hist[n_h, MH_PHI_TOP] = phi[n - 1]
+    hist[n_h, MH_E_STORED] = e + e_core
+    hist[n_h, MH_OUT] = out
+    hist[n_h, MH_ATM_H2O] = m_h2o
+    hist[n_h, MH_ATM_CO2] = m_co2
+    hist[n_h, MH_EC] = x[0]
+    hist[n_h, MH_NEWTON] = newton_its
+    hist[n_h, MH_DT] = dt
+
+
+@njit
+def _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps):
+    state[MS_T] = t
+    state[MS_H] = dt
+    state[MS_H_PREV] = dt_prev
+    state[MS_N_H] = n_h
+    state[MS_N_REJ] = n_rej
+    state[MS_TC] = tc
+    state[MS_OUT] = out
+    state[MS_EPS] = eps
+
+
+@njit
+def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, temps, phis, max_steps):
+    """Advance (x, state) until the end time, a full history or ``max_steps``; return a STATUS_* code. ``x``
+    (E_c, h_0 .. h_{n-1}) and ``x_prev`` (the state one step earlier, for the error estimate) are updated in
+    place, so that the next call resumes exactly."""
+    n = x.shape[0] - 1
+    temp = np.empty(n)
+    phi = np.empty(n)
+    temp_old = np.empty(n)
+    phi_old = np.empty(n)
+    flux = np.zeros(n + 1)
+    d_lo = np.empty(n + 1)
+    d_hi = np.empty(n + 1)
+    lower = np.empty(n + 1)
+    diag = np.empty(n + 1)
+    upper = np.empty(n + 1)
+    rhs = np.empty(n + 1)
+    dx = np.empty(n + 1)
+    work = np.empty(n + 1)
+    x_old = np.empty(n + 1)
+    floors = np.zeros(n + 1)
+    t = state[MS_T]
+    dt = state[MS_H]
+    dt_prev = state[MS_H_PREV]
+    n_h = int(state[MS_N_H])
+    n_rej = int(state[MS_N_REJ])
+    tc = state[MS_TC]
+    out = state[MS_OUT]
+    has_core = core[C_W].sum() > 0.0
+    c_core = max(core[C_W].sum() * par[P_CC], 1.0)
+    cm = par[P_CM]
+    mobile = mset[M_MOBILE] > 0.5
+    mid = n // 2
+    t_end = par[P_T_END]
+    _states(x[1:], grid, law, par, temp, phi)
+    eps, m_h2o, m_co2 = _emissivity(phi, grid, par)
+    if n_h == 0:
+        if mobile:
+            adiabat_floor(x[1 + mid], mid, grid, faces, law, par, floors)
+        if has_core:
+            tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
+        ts = fluxes(tc, x[1:], temp, phi, grid, faces, core, par, law, floors, eps, has_core, flux, d_lo, d_hi)
+        record(t, 0.0, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, eps, m_h2o, m_co2,
+               out, 0, hist, temps, phis, 0)
+        n_h = 1
+    steps = 0
+    while t < t_end * (1.0 - END_SLACK):
+        if n_h >= hist.shape[0]:
+            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps)
+            return STATUS_HISTORY_FULL
+        if steps >= max_steps:
+            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps)
+            return STATUS_MAX_STEPS
+        dt = min(dt, par[P_H_MAX], t_end - t)
+        if dt < mset[M_MIN_STEP] and t_end - t > mset[M_MIN_STEP]:
+            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps)
+            return STATUS_STEP_TOO_SMALL
+        for i in range(n + 1):
+            x_old[i] = x[i]
+        _states(x_old[1:], grid, law, par, temp_old, phi_old)
+        eps, m_h2o, m_co2 = _emissivity(phi_old, grid, par)
+        if mobile:
+            adiabat_floor(x_old[1 + mid], mid, grid, faces, law, par, floors)
+        ok, its, tc_new, ts = newton(t + dt, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors,
+                                     eps, has_core, temp, phi, flux, d_lo, d_hi, lower, diag, upper, rhs, dx,
+                                     work)
+        err = 0.0
+        big_t = 0.0
+        big_phi = 0.0
+        if ok:
+            for i in range(n):
+                big_t = max(big_t, abs(temp[i] - temp_old[i]))
+                big_phi = max(big_phi, abs(phi[i] - phi_old[i]))
+            if dt_prev > 0.0:
+                w = dt / (dt + dt_prev)
+                for i in range(n + 1):
+                    pred = x_old[i] + dt * (x_old[i] - x_prev[i]) / dt_prev
+                    scale = c_core if i == 0 else cm
+                    err = max(err, w * abs(x[i] - pred) / scale)
+                err /= mset[M_ERR]
+        if ok and err <= 1.0 and big_t <= mset[M_DT_CELL] and big_phi <= mset[M_DPHI]:
+            heat = radiogenic_power(t + dt, iso, par)
+            out += dt * (flux[n] * faces[F_A, n] - heat)
+            t += dt
+            tc = tc_new
+            for i in range(n + 1):
+                x_prev[i] = x_old[i]
+            record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, eps, m_h2o,
+                   m_co2, out, its, hist, temps, phis, n_h)
+            n_h += 1
+            steps += 1
+            dt_prev = dt
+            factor = GROW_MAX if err <= 0.0 else min(GROW_MAX, 0.9 / math.sqrt(err))
+            if big_t > 0.0:
+                factor = min(factor, 0.9 * mset[M_DT_CELL] / big_t)
+            if big_phi > 0.0:
+                factor = min(factor, 0.9 * mset[M_DPHI] / big_phi)
+            dt *= max(factor, SHRINK_MIN)
+        else:
+            n_rej += 1
+            for i in range(n + 1):
+                x[i] = x_old[i]
+            factor = CUT
+            if ok:
+                if err > 1.0:
+                    factor = min(factor, 0.9 / math.sqrt(err))
+                if big_t > mset[M_DT_CELL]:
+                    factor = min(factor, 0.9 * mset[M_DT_CELL] / big_t)
+                if big_phi > mset[M_DPHI]:
+                    factor = min(factor, 0.9 * mset[M_DPHI] / big_phi)
+            dt *= max(factor, SHRINK_MIN)
+    _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps)
+    return STATUS_DONE
+
+
+@njit
+def all_intervals(phis, grid, iv):
+    """Melt intervals of every recorded step (:func:`meltzone._core.record.find_intervals`) into ``iv``;
+    returns the count, or -1 if ``iv`` is too small."""
+    n_iv = 0
+    for s in range(phis.shape[0]):
+        n_iv = find_intervals(phis[s], grid, s, iv, n_iv, iv.shape[0])
+        if n_iv < 0:
+            return -1
+    return n_iv
+
+
+@njit
+def states_at(h, grid, law, par, temp, phi):
+    """T and phi of every cell from the enthalpies h (the evaluator's inversion)."""
+    _states(h, grid, law, par, temp, phi)

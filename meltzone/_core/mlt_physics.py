@@ -1,0 +1,207 @@
+"""Physics of the mixing-length scheme: enthalpy inversion per cell and the heat flux through every face.
+
+The equations, sources and ranges are described in :mod:`meltzone.evolution.mixing_length`. Cells are the
+interior's mantle nodes (CMB -> surface; rows G_* of the boundary-layer grid); faces 0 (CMB) .. n (surface)
+carry the rows F_* of :mod:`meltzone._core.layout`. Fluxes are positive outward (upward) [W/m^2].
+"""
+
+from __future__ import annotations
+
+import math
+
+from ..constants import STEFAN_BOLTZMANN
+from ..melting import LAW_LINEAR
+from ._jit import njit
+from .layout import (F_DR, F_F, F_G, F_L, F_P, F_RATIO, F_RHO, G_AUX1, G_AUX2, G_F, G_TLIQ, G_TSOL, P_ALPHA, P_CM,
+                     P_K, P_KAPPA, P_LATENT, P_RA_CR, P_T_EQ)
+from .melt import melt_fraction
+from .physics import viscosity
+from .roots import illinois
+
+#: bisection tolerance of the enthalpy inversion [K] for laws without a closed-form inverse
+T_XTOL = 1.0e-11
+#: the super-adiabatic temperature difference below which a boundary layer carries no heat [K]
+DT_MIN = 1.0e-12
+
+
+@njit
+def cell_state(h, grid, i, law, par):
+    """(T [K], phi) of cell i from its specific enthalpy h = c_p T + L phi(T, P_i) [J/kg].
+
+    h rises monotonically with T (phi never falls with T), so the inverse is unique: closed form below the
+    solidus, above the liquidus and inside the interval for the linear law; bisection otherwise."""
+    c = par[P_CM]
+    lat = par[P_LATENT]
+    tsol = grid[G_TSOL, i]
+    tliq = grid[G_TLIQ, i]
+    if h <= c * tsol:
+        return h / c, 0.0
+    if h >= c * tliq + lat:
+        return (h - lat) / c, 1.0
+    if lat <= 0.0:
+        t = h / c
+        return t, melt_fraction(t, tsol, tliq, grid[G_AUX1, i], grid[G_AUX2, i], law)
+    if law == LAW_LINEAR:  # c T + L (T - Ts) / (Tl - Ts) = h
+        width = tliq - tsol
+        t = tsol + (h - c * tsol) / (c + lat / width)
+        return t, min(max((t - tsol) / width, 0.0), 1.0)
+    lo = tsol
+    hi = tliq
+    a1 = grid[G_AUX1, i]
+    a2 = grid[G_AUX2, i]
+    for _ in range(200):
+        mid = 0.5 * (lo + hi)
+        if c * mid + lat * melt_fraction(mid, tsol, tliq, a1, a2, law) > h:
+            hi = mid
+        else:
+            lo = mid
+        if hi - lo <= T_XTOL:
+            break
+    t = 0.5 * (lo + hi)
+    return t, melt_fraction(t, tsol, tliq, a1, a2, law)
+
+
+@njit
+def face_viscosity(t, p, phi, t_floor, par):
+    """Viscosity at a face [Pa s] (the boundary-layer scheme's law); in mobile-lid mode the temperature is
+    raised to ``t_floor`` (the interior's adiabat at the face), so that the cold top stays as mobile as the
+    interior (0 in stagnant-lid mode: the lid emerges from the viscosity)."""
+    return viscosity(max(t, t_floor), p, phi, par)
+
+
+@njit
+def interior_flux(ha, hb, ta, tb, phia, phib, faces, j, t_floor, par):
+    """Heat flux [W/m^2] up through internal face j between cell a = j-1 (below) and b = j (above).
+
+    Conduction -k (T_b - T_a) / dr plus mixing-length convection rho kappa_h (h_ad - h_b) / dr where
+    h_ad = h_a + c_p T_a (f_b / f_a - 1) is the enthalpy of cell a's parcel taken adiabatically to b (two-phase
+    adiabat c_p dT + L dphi = alpha T dP / rho, with alpha / (rho c_p) dP = d ln f of the interior's adiabat).
+    Super-adiabatic gradient s = (h_ad - h_b) / (c_p dr) [K/m]; kappa_h = min(alpha g l^4 s / (18 nu),
+    (alpha g l^4 s / 16)^(1/2)) (viscous and inertial mixing length, Abe 1997; Bower et al. 2018)."""
+    dr = faces[F_DR, j]
+    c = par[P_CM]
+    q = -par[P_K] * (tb - ta) / dr
+    dh = ha + c * ta * (faces[F_RATIO, j] - 1.0) - hb
+    el = faces[F_L, j]
+    if dh > 0.0 and el > 0.0:
+        s = dh / (c * dr)
+        eta = face_viscosity(0.5 * (ta + tb), faces[F_P, j], 0.5 * (phia + phib), t_floor, par)
+        base = par[P_ALPHA] * faces[F_G, j] * el ** 4 * s
+        k_visc = base * faces[F_RHO, j] / (18.0 * eta)
+        k_inert = math.sqrt(base / 16.0)
+        q += faces[F_RHO, j] * min(k_visc, k_inert) * dh / dr
+    return q
+
+
+@njit
+def cell_slope(h, t, grid, i, law, par):
+    """(dT/dh, dphi/dh) of cell i at enthalpy h (temperature t): 1 / c_p and 0 outside the melting interval,
+    1 / (c_p + L dphi/dT) inside it (the derivative of the law by a centred difference of 1e-6 K)."""
+    c = par[P_CM]
+    tsol = grid[G_TSOL, i]
+    tliq = grid[G_TLIQ, i]
+    if h <= c * tsol or h >= c * tliq + par[P_LATENT]:
+        return 1.0 / c, 0.0
+    if law == LAW_LINEAR:
+        dphi_dt = 1.0 / (tliq - tsol)
+    else:
+        dt = 1e-6
+        a1 = grid[G_AUX1, i]
+        a2 = grid[G_AUX2, i]
+        up = min(t + dt, tliq)
+        down = max(t - dt, tsol)
+        dphi_dt = (melt_fraction(up, tsol, tliq, a1, a2, law) - melt_fraction(down, tsol, tliq, a1, a2, law)) / (
+            up - down)
+    dt_dh = 1.0 / (c + par[P_LATENT] * dphi_dt)
+    return dt_dh, dphi_dt * dt_dh
+
+
+@njit
+def interior_flux_jac(ha, hb, ta, tb, phia, phib, sa, sb, faces, j, t_floor, par):
+    """(F, dF/dh_a, dF/dh_b) of :func:`interior_flux`; sa, sb = (dT/dh, dphi/dh) of the two cells. The
+    convective part is differentiated in closed form (F_visc ~ dh^2 / eta, F_inert ~ dh^(3/2)); the viscosity's
+    dependence on T and phi by a difference of ln eta over 1 J/kg."""
+    dr = faces[F_DR, j]
+    c = par[P_CM]
+    kc = par[P_K] / dr
+    q = -kc * (tb - ta)
+    d_a = kc * sa[0]
+    d_b = -kc * sb[0]
+    ratio = faces[F_RATIO, j]
+    dh = ha + c * ta * (ratio - 1.0) - hb
+    el = faces[F_L, j]
+    if dh > 0.0 and el > 0.0:
+        rho = faces[F_RHO, j]
+        tf = 0.5 * (ta + tb)
+        pf = faces[F_P, j]
+        phf = 0.5 * (phia + phib)
+        eta = face_viscosity(tf, pf, phf, t_floor, par)
+        geo = par[P_ALPHA] * faces[F_G, j] * el ** 4 / (c * dr)  # alpha g l^4 s = geo dh
+        k_visc = geo * dh * rho / (18.0 * eta)
+        k_inert = math.sqrt(geo * dh / 16.0)
+        ddh_a = 1.0 + c * (ratio - 1.0) * sa[0]
+        if k_visc < k_inert:
+            f = rho * k_visc * dh / dr
+            df_ddh = 2.0 * f / dh
+            # d ln eta / dh of each side (1 J/kg)
+            la = math.log(face_viscosity(tf + 0.5 * sa[0], pf, phf + 0.5 * sa[1], t_floor, par) / eta)
+            lb = math.log(face_viscosity(tf + 0.5 * sb[0], pf, phf + 0.5 * sb[1], t_floor, par) / eta)
+            d_a += df_ddh * ddh_a - f * la
+            d_b += -df_ddh - f * lb
+        else:
+            f = rho * k_inert * dh / dr
+            df_ddh = 1.5 * f / dh
+            d_a += df_ddh * ddh_a
+            d_b -= df_ddh
+        q += f
+    return q, d_a, d_b
+
+
+@njit
+def boundary_flux(dt, t_visc, phi, faces, j, t_floor, par):
+    """Flux [W/m^2] across a thermal boundary layer at an outer face (CMB j = 0, surface j = n) driven by the
+    temperature difference dt [K]: k dt / delta with delta = (kappa eta Ra_cr / (alpha rho g |dt|))^(1/3)
+    (local critical Rayleigh number, Stevenson, Spohn & Schubert 1983), at most the half cell between the
+    face and its cell's node (then plain conduction)."""
+    half = faces[F_DR, j]
+    if abs(dt) <= DT_MIN:
+        return par[P_K] * dt / half
+    eta = face_viscosity(t_visc, faces[F_P, j], phi, t_floor, par)
+    delta = (par[P_KAPPA] * eta * par[P_RA_CR] / (par[P_ALPHA] * faces[F_RHO, j] * faces[F_G, j] * abs(dt))) \
+        ** (1.0 / 3.0)
+    return par[P_K] * dt / min(delta, half)
+
+
+@njit
+def _surface_residual(ts, args):
+    t_top, phi_top, faces, j, t_floor, eps, par = args
+    return boundary_flux(t_top - ts, t_top, phi_top, faces, j, t_floor, par) - eps * STEFAN_BOLTZMANN * (
+        ts ** 4 - par[P_T_EQ] ** 4)
+
+
+@njit
+def surface_flux(t_top, phi_top, faces, j, t_floor, eps, par):
+    """(q [W/m^2], T_s [K]) at the surface: T_s balances the top boundary layer's flux with
+    eps sigma (T_s^4 - T_eq^4) (the boundary-layer scheme's radiation law). The balance falls monotonically
+    in T_s; Illinois regula falsi on [min(T_eq, T_top), max(T_eq, T_top)], to 1e-13 of T_s (the Newton
+    iteration differentiates the result)."""
+    lo = min(par[P_T_EQ], t_top)
+    hi = max(par[P_T_EQ], t_top)
+    ts = illinois(_surface_residual, (t_top, phi_top, faces, j, t_floor, eps, par), lo, hi, 200, 1e-13, 0.0)
+    return eps * STEFAN_BOLTZMANN * (ts ** 4 - par[P_T_EQ] ** 4), ts
+
+
+@njit
+def cmb_flux(tc, t0, phi0, faces, t_floor, par):
+    """Flux [W/m^2] out of the core into the lowest cell: boundary layer on the temperature difference
+    T_c - T_0, viscosity at their mean (the boundary-layer scheme's lower layer)."""
+    return boundary_flux(tc - t0, 0.5 * (tc + t0), phi0, faces, 0, t_floor, par)
+
+
+@njit
+def adiabat_floor(h_mid, mid, grid, faces, law, par, floors):
+    """Temperature floors [K] of the face viscosities in mobile-lid mode: the adiabat through cell ``mid``,
+    T_mid f(r_face) / f(r_mid)."""
+    t_mid, _ = cell_state(h_mid, grid, mid, law, par)
+    for j in range(floors.shape[0]):
+        floors[j] = t_mid * faces[F_F, j] / grid[G_F, mid]

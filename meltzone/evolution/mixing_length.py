@@ -1,0 +1,289 @@
+"""The mixing-length scheme: a radially resolved mantle whose melt layers are found, not assumed
+(``convection.scheme = "mixing-length"``).
+
+Finite volumes on the interior's mantle nodes (CMB -> surface): each node is a cell whose faces lie at the
+midpoints between nodes, the CMB and the surface being the outer faces (half cells at both ends); cell masses
+and face areas 4 pi r^2 from the interior. State: the specific enthalpy of every cell with the latent heat in
+it, h = c_p T + L phi(T, P) (the boundary-layer scheme's stored-heat convention c_m T + L phi), the core's
+stored heat (the boundary-layer scheme's core: adiabatic core with inner-core latent and gravitational energy,
+Stevenson et al. 1983; Labrosse 2015) and the integrated surface loss for the energy closure.
+
+Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltzone._core.implicit`):
+
+* face flux = conduction -k dT/dr + mixing-length convection F = rho c_p kappa_h s where the gradient is
+  super-adiabatic, s = -(dT/dr - (dT/dr)_ad) > 0 [K/m]; eddy diffusivity kappa_h = alpha g l^4 s / (18 nu)
+  (viscous) or (alpha g l^4 s / 16)^(1/2) (inertial), whichever is smaller, l = distance to the nearer
+  boundary (CMB or surface), nu = eta / rho (Abe 1997, PEPI 100:27; Bower et al. 2018, PEPI 274:49; forms
+  from memory, the search tool's corpus had neither paper's text);
+* adiabat: two-phase isentrope c_p dT + L dphi = alpha T dP / rho (the first law along an isentrope of a
+  melting mixture whose latent heat is L dphi; e.g. Solomatov 2015, Treatise on Geophysics 9.04, from memory),
+  with alpha dP / (rho c_p) = d ln f taken from the interior's solid adiabat f(r). Discretely the parcel of the
+  lower cell a taken to the upper cell b has h_ad = h_a + c_p T_a (f_b / f_a - 1), and s = (h_ad - h_b) /
+  (c_p dr): the convective flux is rho kappa_h (h_ad - h_b) / dr, i.e. it carries enthalpy (latent heat
+  included) down the super-adiabatic excess;
+* viscosity: the boundary-layer scheme's law (liquid, Einstein-Roscoe suspension across the rheological
+  transition, Arrhenius solid with activation volume and melt weakening), at the face's mean T and phi;
+* outer faces: thermal boundary layers from a local critical Rayleigh number, delta = (kappa eta Ra_cr /
+  (alpha rho g |dT|))^(1/3), flux k dT / min(delta, half cell) (Stevenson, Spohn & Schubert 1983, Icarus
+  54:466, the boundary-layer scheme's lower layer): at the CMB dT = T_c - T_0, eta at their mean; at the
+  surface dT = T_top - T_s, eta of the top cell, and T_s balances that flux with eps sigma (T_s^4 - T_eq^4)
+  (bare, or the grey atmosphere in solubility equilibrium with the melt, eps lagged by one step); a
+  stagnant lid emerges where the viscosity shuts the convective flux off;
+* mobile lid (``convection.regime = "mobile-lid"``): the viscosity at every face is evaluated no colder than
+  the adiabat through the mid-mantle cell (this model's choice: the cold top is as mobile as the interior, so
+  no lid forms; the top layer then behaves as the boundary-layer scheme's mobile top);
+* radiogenic heating per cell by mass (the same isotope table).
+
+Time stepping: backward Euler with Newton on the tridiagonal Jacobian (conservative: the energy closure is the
+Newton tolerance), adaptive steps with a local-error estimate (ERROR_FRACTION x run.max_temperature_step_k per
+step), a per-cell bound of run.max_temperature_step_k on dT and MAX_MELT_STEP on dphi per step.
+
+History: regime 0 (magma ocean) while the top cell's melt fraction exceeds phi_c, else the configured solid
+regime; ``upper_temperature`` = potential temperature T / f of the top convecting cell (the highest cell whose
+upper face carries more heat by convection than by conduction); ``lid_thickness`` (stagnant lid) = depth of that
+cell's upper face; ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
+
+Known limitations (measured): the half-cell outer faces add half a cell of conduction between each boundary and
+its node (the tests compare analytic solutions with the boundary moved by it). When the top cell reaches the
+rheological transition it oscillates about it for a few Myr (the surface boundary layer's flux changes by orders
+of magnitude across the transition; ~80 magma-ocean end/reform flips for 5 M_E), which costs most of the steps
+and makes the end of the surface magma ocean depend on the resolution (1 M_E: 1.6-3.8 Myr between 64 and 256
+nodes). The basal layer's onset converges to < 1% and its freezing (last melt) to ~3% on doubling the cells;
+inner-core nucleation to ~15% only.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from .._core import layout as k
+from ..constants import GYR, YEAR
+from ..errors import ConfigError, ConvergenceError
+from .boundary_layer import build_inputs, initial_temperatures
+from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid
+from .schemes import Scheme
+
+#: largest melt-fraction change of any cell in one step (this model's choice)
+MAX_MELT_STEP = 0.05
+#: local-error tolerance per step as a fraction of run.max_temperature_step_k (this model's choice)
+ERROR_FRACTION = 0.05
+#: Newton converges when no update exceeds this temperature equivalent [K]
+NEWTON_TOL_K = 1.0e-9
+MAX_NEWTON = 30
+#: shortest step [s]
+MIN_STEP = 1.0e-3
+#: first step [s]; the controller grows it
+FIRST_STEP = 1.0
+#: narrowest melt-fraction width of the rheological transition in this scheme (convection.rheology_blend_width
+#: below it is widened to it): a sharper transition (the viscosity falls ~13 orders of magnitude across it) makes
+#: the rheological front advance cell by cell in relaxation oscillations of the top cells that the step control
+#: must follow (measured: a 5 M_E stagnant-lid run stalls near phi_c at 0.05; runs through at 0.15). This
+#: model's choice; smooth transitions of similar width are usual in mixing-length magma-ocean models (Bower et
+#: al. 2018, from memory)
+MIN_BLEND = 0.15
+#: most cells the scheme takes: the history holds T and phi per cell and step (this model's choice)
+MAX_CELLS = 2048
+PROGRESS_STEPS = 100
+SWITCH = "rheological_switch"
+
+
+def build_faces(interior, grid) -> np.ndarray:
+    """Face rows F_* (faces 0 = CMB .. n = surface) from the interior and the cell grid."""
+    it = interior
+    ms = it.mantle
+    r = grid[k.G_R]
+    n = len(r)
+    rf = np.concatenate([[r[0]], 0.5 * (r[1:] + r[:-1]), [r[-1]]])
+    faces = np.zeros((k.N_F, n + 1))
+    faces[k.F_R] = rf
+    faces[k.F_A] = 4.0 * math.pi * rf ** 2
+    faces[k.F_RHO] = np.interp(rf, r, it.rho[ms])
+    faces[k.F_G] = np.interp(rf, r, it.g[ms])
+    faces[k.F_P] = np.interp(rf, r, it.P[ms])
+    faces[k.F_L] = np.minimum(rf - r[0], r[-1] - rf)
+    faces[k.F_DR, 1:n] = np.diff(r)
+    faces[k.F_DR, 0] = 0.5 * (r[1] - r[0])
+    faces[k.F_DR, n] = 0.5 * (r[-1] - r[-2])
+    f = grid[k.G_F]
+    faces[k.F_RATIO] = 1.0
+    faces[k.F_RATIO, 1:n] = f[1:] / f[:-1]
+    faces[k.F_F] = np.interp(rf, r, f)
+    return faces
+
+
+def settings(spec) -> np.ndarray:
+    m = np.zeros(k.N_M)
+    m[k.M_ERR] = ERROR_FRACTION * spec.run.max_temperature_step_k
+    m[k.M_DPHI] = MAX_MELT_STEP
+    m[k.M_DT_CELL] = spec.run.max_temperature_step_k
+    m[k.M_NEWTON_TOL] = NEWTON_TOL_K
+    m[k.M_MAX_NEWTON] = MAX_NEWTON
+    m[k.M_MOBILE] = 1.0 if spec.convection.regime == "mobile-lid" else 0.0
+    m[k.M_MIN_STEP] = MIN_STEP
+    return m
+
+
+def enthalpy(temp, phi, par) -> np.ndarray:
+    """h = c_p T + L phi [J/kg]."""
+    return par[k.P_CM] * np.asarray(temp) + par[k.P_LATENT] * np.asarray(phi)
+
+
+def initial_x(spec, inputs) -> np.ndarray:
+    """(E_c, h_0 .. h_{n-1}) at the start: the boundary-layer scheme's initial temperatures on the adiabat."""
+    from .. import melting
+    from .._core.physics import core_energy
+
+    tu, tc = initial_temperatures(spec, inputs)
+    grid = inputs.grid
+    temp = tu * grid[k.G_F]
+    phi = melting.melt_fraction(temp, grid[k.G_TSOL], grid[k.G_TLIQ], grid[k.G_AUX1], grid[k.G_AUX2],
+                                inputs.law)
+    x = np.empty(grid.shape[1] + 1)
+    x[0] = core_energy(tc, grid, inputs.core, inputs.par) if inputs.core[k.C_W].sum() > 0 else 0.0
+    x[1:] = enthalpy(temp, phi, inputs.par)
+    return x, tc
+
+
+def integrate(spec, inputs, faces, progress=None, history_rows=2048):
+    """Run the implicit integrator to the end time, growing the buffers; returns (hist, temps, phis, state)."""
+    from .._core.implicit import integrate as step_all
+
+    n = inputs.grid.shape[1]
+    mset = settings(spec)
+    x, tc = initial_x(spec, inputs)
+    x_prev = x.copy()
+    state = np.zeros(k.N_MS)
+    state[k.MS_H] = FIRST_STEP
+    state[k.MS_TC] = tc
+    hist = np.zeros((history_rows, k.N_MH))
+    temps = np.zeros((history_rows, n))
+    phis = np.zeros((history_rows, n))
+    max_steps = spec.run.max_steps
+    chunk = PROGRESS_STEPS if progress is not None else max_steps
+    while True:
+        done = max(int(state[k.MS_N_H]) - 1, 0)
+        status = step_all(state, x, x_prev, inputs.grid, faces, inputs.core, inputs.iso, inputs.par, inputs.law,
+                          mset, hist, temps, phis, min(chunk, max_steps - done))
+        done = int(state[k.MS_N_H]) - 1
+        if progress is not None:
+            progress(state[k.MS_T])
+        if status == k.STATUS_DONE:
+            break
+        if status == k.STATUS_HISTORY_FULL:
+            hist, temps, phis = (np.concatenate([a, np.zeros_like(a)]) for a in (hist, temps, phis))
+        elif status == k.STATUS_MAX_STEPS:
+            if done >= max_steps:
+                raise ConvergenceError(
+                    f"{spec.planet.name}: the mixing-length evolution reached run.max_steps = {max_steps} at "
+                    f"model time {state[k.MS_T] / GYR:.4g} Gyr; raise run.max_steps or "
+                    "run.max_temperature_step_k")
+        elif status == k.STATUS_STEP_TOO_SMALL:
+            raise ConvergenceError(
+                f"{spec.planet.name}: the mixing-length step collapsed (Newton did not converge) at model time "
+                f"{state[k.MS_T] / YEAR:.4g} yr; raise run.max_temperature_step_k or lower interior.mantle_nodes")
+    n_h = int(state[k.MS_N_H])
+    return hist[:n_h].copy(), temps[:n_h].copy(), phis[:n_h].copy(), state
+
+
+def intervals_of(phis, grid) -> dict:
+    from .._core.implicit import all_intervals
+
+    rows = max(4 * phis.shape[0], 64)
+    while True:
+        iv = np.zeros((rows, k.N_I))
+        n_iv = all_intervals(phis, grid, iv)
+        if n_iv >= 0:
+            break
+        rows *= 4
+    out = {name: iv[:n_iv, k.INTERVAL_COLUMNS.index(name)].copy() for name in INTERVAL_FIELDS}
+    for name in INTEGER_INTERVAL_FIELDS:
+        out[name] = out[name].astype(np.int64)
+    return out
+
+
+def run(spec, interior, curves, progress=None, *, history_rows=2048) -> History:
+    """Evolve one planet with the mixing-length scheme and return its :class:`History`."""
+    n = interior.r.size - interior.cmb_index
+    if n > MAX_CELLS:
+        raise ConfigError(f"interior.mantle_nodes = {spec.interior.mantle_nodes} gives {n} mantle cells, more than "
+                          f"the mixing-length scheme takes ({MAX_CELLS}); lower interior.mantle_nodes")
+    inputs = build_inputs(spec, interior, curves)
+    inputs.par[k.P_BMO] = 0.0  # no reservoir here: the basal layer is whatever the resolved profile gives
+    inputs.par[k.P_BLEND] = max(inputs.par[k.P_BLEND], MIN_BLEND)
+    faces = build_faces(interior, inputs.grid)
+    hist, temps, phis, state = integrate(spec, inputs, faces, progress, history_rows)
+    column = {name: j for j, name in enumerate(k.MLT_HISTORY_COLUMNS)}
+    series = {name: hist[:, column[name]].copy() for name in SERIES if name in column}
+    phi_c = float(inputs.par[k.P_PHI_C])
+    solid = k.REGIME_STAGNANT_LID if spec.convection.regime == "stagnant-lid" else k.REGIME_MOBILE_LID
+    series["regime"] = np.where(series["top_melt_fraction"] > phi_c, k.REGIME_MAGMA_OCEAN, solid).astype(np.int8)
+    de = series["stored_energy"][0] - series["stored_energy"]
+    scale = max(float(np.max(np.abs(de))), 1.0)
+    series["closure_error"] = (de - series["heat_out_minus_radiogenic"]) / scale
+    time = hist[:, k.MH_T].copy()
+    below = np.flatnonzero(np.max(phis, axis=1) <= phi_c)
+    grid = inputs.grid
+    history = History(
+        scheme=SCHEME.name, time=time, series=series, temperature=temps, melt_fraction=phis,
+        intervals=intervals_of(phis, grid),
+        grid=MantleGrid(radius=grid[k.G_R].copy(), pressure=grid[k.G_P].copy(), mass=grid[k.G_W].copy(),
+                        solidus=grid[k.G_TSOL].copy(), liquidus=grid[k.G_TLIQ].copy()),
+        critical_melt_fraction=phi_c,
+        switch_times={SWITCH: float(time[below[0]]) if below.size else None},
+        n_rejected=int(state[k.MS_N_REJ]),
+        scheme_data={"grid": grid, "core": inputs.core, "iso": inputs.iso, "par": inputs.par,
+                     "law": np.int64(inputs.law), "core_energy": hist[:, k.MH_EC].copy(),
+                     "newton_iterations": hist[:, k.MH_NEWTON].copy()})
+    history.evaluator = Evaluator(history)
+    return history
+
+
+class Evaluator:
+    """The state inside a step: the enthalpy of every cell and the core's stored heat interpolated linearly in
+    time between the recorded steps, then inverted (so that event times can be refined)."""
+
+    def __init__(self, history: History):
+        d = history.scheme_data
+        self.grid = np.ascontiguousarray(d["grid"], dtype=np.float64)
+        self.core = np.ascontiguousarray(d["core"], dtype=np.float64)
+        self.par = np.ascontiguousarray(d["par"], dtype=np.float64)
+        self.law = int(d["law"])
+        self.ec = np.asarray(d["core_energy"], dtype=np.float64)
+        self.t = history.time
+        self.h = enthalpy(history.temperature, history.melt_fraction, self.par)
+        self.tc = np.asarray(history["core_temperature"], dtype=np.float64)
+
+    def at(self, t: float) -> InStep:
+        from .._core.implicit import states_at
+        from .._core.physics import CORE, _invert
+
+        times = self.t
+        if not times[0] <= t <= times[-1]:
+            raise ValueError(f"time {t:g} s is outside the run ({times[0]:g} - {times[-1]:g} s)")
+        s = max(int(np.searchsorted(times, t, side="left")), 1)
+        if len(times) == 1:
+            w, s = 0.0, 1
+            h = self.h[0].copy()
+            ec, tc0 = self.ec[0], self.tc[0]
+        else:
+            w = (t - times[s - 1]) / (times[s] - times[s - 1])
+            h = (1.0 - w) * self.h[s - 1] + w * self.h[s]
+            ec = (1.0 - w) * self.ec[s - 1] + w * self.ec[s]
+            tc0 = (1.0 - w) * self.tc[s - 1] + w * self.tc[s]
+        n = self.grid.shape[1]
+        temp = np.empty(n)
+        phi = np.empty(n)
+        states_at(np.ascontiguousarray(h), self.grid, self.law, self.par, temp, phi)
+        tc = tc0
+        if self.core[k.C_W].sum() > 0.0:
+            tc, _ = _invert(CORE, float(ec), 0.0, 0.0, self.grid, self.core, self.par, self.law, float(tc0), 0.0)
+        return InStep(temperature=temp, melt_fraction=phi, regime_melt_fraction=float(phi[-1]),
+                      centre_freezing_margin_k=float(self.core[k.C_TMELT, 0] - tc * self.core[k.C_F, 0]))
+
+
+SCHEME = Scheme(name="mixing-length",
+                description="radially resolved mantle: enthalpy cells with mixing-length convection (finds melt "
+                            "layers; slower)",
+                run=run, evaluator=Evaluator)
