@@ -32,8 +32,8 @@ NUMBER = re.compile(r"\d")
 @pytest.fixture(scope="module")
 def runs(tmp_path_factory):
     """Small runs written to files: a bare 1 M_E planet (a thin basal layer), the same with the super-Earth
-    melting model, a 3 M_E planet with a grey atmosphere, and a 100-yr run (one whole-mantle magma ocean, no
-    thin layer)."""
+    melting model and with the mixing-length scheme, a 3 M_E planet with a grey atmosphere, and a 100-yr run
+    (one whole-mantle magma ocean, no thin layer)."""
     folder = tmp_path_factory.mktemp("figures")
     made = {
         "bare": meltzone.evolve(None, mass_earth=1.0, end_time_gyr=0.05, mantle_nodes=64, name="Fig-1 b (invented)"),
@@ -43,6 +43,9 @@ def runs(tmp_path_factory):
         "steam": meltzone.evolve(None, mass_earth=3.0, end_time_gyr=0.05, mantle_nodes=64, atmosphere="grey",
                                  water_inventory_kg=1e21, co2_inventory_kg=1e20, name="Fig-2 c (invented)"),
         "young": meltzone.evolve(None, mass_earth=1.0, end_time_gyr=1e-7, mantle_nodes=64, name="Fig-3 (invented)"),
+        "resolved": meltzone.evolve({"planet": {"mass_earth": 1.0, "name": "Fig-1 b (invented)"},
+                                     "convection": {"scheme": "mixing-length"}, "interior": {"mantle_nodes": 64},
+                                     "run": {"end_time_gyr": 0.05}}),
     }
     paths = {k: results.write(r, folder / f"{k}.h5") for k, r in made.items()}
     return made, paths
@@ -200,9 +203,10 @@ def _summary_json(path):
     return json.loads(res.output)
 
 
-@pytest.mark.parametrize("pair", [("bare", "super"), ("bare", "steam")])
+@pytest.mark.parametrize("pair", [("bare", "super"), ("bare", "resolved"), ("bare", "steam")])
 def test_compare_table_equals_each_runs_summary(runs, pair, tmp_path):
-    """Two melting models of one planet, and two planets (one with an atmosphere): the table's values are the
+    """Two melting models of one planet, the two schemes on one planet, and two planets (one with an
+    atmosphere): the table's values are the
     runs' own ``summary --json`` values, the differences are against the first run, the figure is written."""
     paths = [str(runs[1][k]) for k in pair]
     out = tmp_path / "cmp.png"
