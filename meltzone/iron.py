@@ -2,12 +2,12 @@
 
 Pure iron after Anzellini et al. 2013 (Science 340:464; static data to ~330 GPa), lowered by a light-element
 depression (``melting.core_melting_depression_k``, ~700 K for Earth's core, Alfe et al. 2002, EPSL 195:91; from
-memory). Above the static data the same fit is kept: the laser-shock melting data of Kraus et al. 2022 (Science
-375:202; to 1000 GPa, checked against the abstract) lie on it (liquid at 556 GPa / 8085 K within 2%; solid at
-991 GPa / 10766 K below it; both points from memory, tests/test_melting.py). Kraus et al. fit their own
-Simon-Glatzel curve; its coefficients could not be verified here, so it is not used. The curve counts as measured
-to 1000 GPa (:data:`IRON_VALIDATED_MAX_PA`); above, it is an extrapolation, flagged by
-:func:`meltzone.phases.core_flags`. Results are model estimates.
+memory). Above the static data the same fit is extrapolated. Laser-shock melting data reach 1000 GPa (Kraus et
+al. 2022, Science 375:202, checked against the abstract) and two of their points, recalled from memory (liquid at
+556 GPa / 8085 K, solid at 991 GPa / 10766 K, tests/test_melting.py), are consistent with the fit; their own
+Simon-Glatzel coefficients could not be verified here, so they are not used. The curve is flagged beyond the
+static data (:data:`IRON_STATIC_MAX_PA`) by :func:`meltzone.phases.core_flags`: "medium" up to the shock data's
+1000 GPa (:data:`IRON_SHOCK_MAX_PA`), "low" above. Results are model estimates.
 """
 
 from __future__ import annotations
@@ -29,9 +29,9 @@ ANZELLINI2013_BRANCHES = ((1991.0, 5.2, 27.39, 2.38), (3712.0, 98.5, 161.2, 1.72
 ANZELLINI2013_TRIPLE_POINT_GPA = 98.5
 #: Top of the static experiments on iron melting [Pa] (Anzellini et al. 2013: to ~330 GPa).
 IRON_STATIC_MAX_PA = 330.0 * GPA
-#: Top of the measured range of the curve [Pa]: laser-shock melting to 1000 GPa (Kraus et al. 2022, Science
-#: 375:202, checked against the abstract), whose points lie on the Anzellini et al. 2013 fit (see the module).
-IRON_VALIDATED_MAX_PA = 1000.0 * GPA
+#: Top of the laser-shock melting data on iron [Pa]: 1000 GPa (Kraus et al. 2022, Science 375:202, checked
+#: against the abstract); the Anzellini et al. 2013 fit is not fitted to them (see the module).
+IRON_SHOCK_MAX_PA = 1000.0 * GPA
 
 
 def iron_melting_temperature(pressure_pa, depression_k: float = 0.0):

@@ -225,29 +225,24 @@ def flags(depth_m, pressure_pa, temperature_k, melting_model, *, eos_limit_pa: f
     return zones
 
 
-#: Pressure [Pa] of the highest laser-shock melting data on iron: 1000 GPa (Kraus et al. 2022, Science
-#: 375:202, checked against the abstract). Iron melting used above the static experiments is "medium"
-#: confidence up to it and "low" above.
-IRON_SHOCK_DATA_LIMIT_PA = 1.0 * TPA
-
-
 def core_flags(depth_m, pressure_pa) -> list[dict]:
     """High-pressure flags of the core: depths where the iron melting curve (which sets the inner core) is used
-    beyond its measured range (:data:`meltzone.iron.IRON_VALIDATED_MAX_PA`, 1000 GPa: static data of Anzellini et
-    al. 2013, Science 340:464 to ~330 GPa, laser-shock data of Kraus et al. 2022, Science 375:202 to 1000 GPa).
-    Kind ``extrapolated-iron-melting``, confidence ``low`` (beyond any data). Same zone dicts as :func:`flags`."""
-    from .iron import IRON_VALIDATED_MAX_PA
+    beyond its static experiments (:data:`meltzone.iron.IRON_STATIC_MAX_PA`, ~330 GPa; Anzellini et al. 2013,
+    Science 340:464). Kind ``extrapolated-iron-melting``; confidence ``medium`` up to the laser-shock data
+    (:data:`meltzone.iron.IRON_SHOCK_MAX_PA`, 1000 GPa; Kraus et al. 2022, Science 375:202), ``low`` above.
+    Same zone dicts as :func:`flags`."""
+    from .iron import IRON_SHOCK_MAX_PA, IRON_STATIC_MAX_PA
 
     order = np.argsort(np.asarray(depth_m, dtype=float), kind="stable")
     depth = np.asarray(depth_m, dtype=float)[order]
     p = np.asarray(pressure_pa, dtype=float)[order]
     if depth.size == 0:
         return []
-    confidence = np.where(p <= IRON_SHOCK_DATA_LIMIT_PA, "medium", "low")
+    confidence = np.where(p <= IRON_SHOCK_MAX_PA, "medium", "low")
     return _mask_zones("extrapolated-iron-melting",
-                       f"iron melting curve beyond its measured range (to {IRON_VALIDATED_MAX_PA / GPA:g} GPa)",
+                       f"iron melting curve beyond its static experiments (to {IRON_STATIC_MAX_PA / GPA:g} GPa)",
                        "Anzellini et al. 2013, Science 340:464 (static data to ~330 GPa); Kraus et al. 2022, "
-                       "Science 375:202 (laser shock to 1000 GPa)", depth, p, p > IRON_VALIDATED_MAX_PA, confidence)
+                       "Science 375:202 (laser shock to 1000 GPa)", depth, p, p > IRON_STATIC_MAX_PA, confidence)
 
 
 def planet_flags(interior, melting_model) -> list[dict]:
