@@ -111,7 +111,9 @@ class Reference:
         for j in np.nonzero((dh > 0.0) & (self.length[1:n] > 0.0))[0]:
             face = j + 1
             s = dh[j] / (c * dr[j])
-            eta = self.eta(0.5 * (ta[j] + tb[j]), self.p_f[face], 0.5 * (phi[j] + phi[j + 1]), floors[face])
+            # geometric mean of the two cells' viscosities, each at its own T and phi
+            eta = math.sqrt(self.eta(ta[j], self.p_f[face], phi[j], floors[face])
+                            * self.eta(tb[j], self.p_f[face], phi[j + 1], floors[face]))
             base = ph.expansivity * self.g_f[face] * self.length[face] ** 4 * s
             kappa_h = min(base * self.rho_f[face] / (18.0 * eta), math.sqrt(base / 16.0))
             q[face] += self.rho_f[face] * kappa_h * dh[j] / dr[j]

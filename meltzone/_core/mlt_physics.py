@@ -70,6 +70,19 @@ def face_viscosity(t, p, phi, t_floor, par):
 
 
 @njit
+def face_eta(ta, tb, phia, phib, p, t_floor, par):
+    """Viscosity [Pa s] at an internal face: the geometric mean of the two cells' viscosities (each at its own
+    T and phi, the face's pressure). This model's choice, as for any coefficient that varies over orders of
+    magnitude between neighbouring volumes (Patankar 1980, Numerical Heat Transfer and Fluid Flow, ch. 4,
+    interface coefficients from the cells' own values rather than from interpolated properties; from memory). Unlike the
+    viscosity at the cells' mean melt fraction it does not depend on a cell whose melt fraction sits at phi_c
+    (the blend's slope is zero there), so a top cell that reaches phi_c does not shut off its own supply."""
+    eta_a = face_viscosity(ta, p, phia, t_floor, par)
+    eta_b = face_viscosity(tb, p, phib, t_floor, par)
+    return math.sqrt(eta_a) * math.sqrt(eta_b)  # no overflow of the product
+
+
+@njit
 def interior_flux(ha, hb, ta, tb, phia, phib, faces, j, t_floor, par):
     """Heat flux [W/m^2] up through internal face j between cell a = j-1 (below) and b = j (above).
 
@@ -85,7 +98,7 @@ def interior_flux(ha, hb, ta, tb, phia, phib, faces, j, t_floor, par):
     el = faces[F_L, j]
     if dh > 0.0 and el > 0.0:
         s = dh / (c * dr)
-        eta = face_viscosity(0.5 * (ta + tb), faces[F_P, j], 0.5 * (phia + phib), t_floor, par)
+        eta = face_eta(ta, tb, phia, phib, faces[F_P, j], t_floor, par)
         base = par[P_ALPHA] * faces[F_G, j] * el ** 4 * s
         k_visc = base * faces[F_RHO, j] / (18.0 * eta)
         k_inert = math.sqrt(base / 16.0)
@@ -132,10 +145,8 @@ def interior_flux_jac(ha, hb, ta, tb, phia, phib, sa, sb, faces, j, t_floor, par
     el = faces[F_L, j]
     if dh > 0.0 and el > 0.0:
         rho = faces[F_RHO, j]
-        tf = 0.5 * (ta + tb)
         pf = faces[F_P, j]
-        phf = 0.5 * (phia + phib)
-        eta = face_viscosity(tf, pf, phf, t_floor, par)
+        eta = face_eta(ta, tb, phia, phib, pf, t_floor, par)
         geo = par[P_ALPHA] * faces[F_G, j] * el ** 4 / (c * dr)  # alpha g l^4 s = geo dh
         k_visc = geo * dh * rho / (18.0 * eta)
         k_inert = math.sqrt(geo * dh / 16.0)
@@ -144,8 +155,8 @@ def interior_flux_jac(ha, hb, ta, tb, phia, phib, sa, sb, faces, j, t_floor, par
             f = rho * k_visc * dh / dr
             df_ddh = 2.0 * f / dh
             # d ln eta / dh of each side (1 J/kg)
-            la = math.log(face_viscosity(tf + 0.5 * sa[0], pf, phf + 0.5 * sa[1], t_floor, par) / eta)
-            lb = math.log(face_viscosity(tf + 0.5 * sb[0], pf, phf + 0.5 * sb[1], t_floor, par) / eta)
+            la = math.log(face_eta(ta + sa[0], tb, phia + sa[1], phib, pf, t_floor, par) / eta)
+            lb = math.log(face_eta(ta, tb + sb[0], phia, phib + sb[1], pf, t_floor, par) / eta)
             d_a += df_ddh * ddh_a - f * la
             d_b += -df_ddh - f * lb
         else:

@@ -22,7 +22,13 @@ Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltz
   (c_p dr): the convective flux is rho kappa_h (h_ad - h_b) / dr, i.e. it carries enthalpy (latent heat
   included) down the super-adiabatic excess;
 * viscosity: the boundary-layer scheme's law (liquid, Einstein-Roscoe suspension across the rheological
-  transition, Arrhenius solid with activation volume and melt weakening), at the face's mean T and phi;
+  transition, Arrhenius solid with activation volume and melt weakening); at an internal face the geometric
+  mean of the two cells' viscosities, each at its own T and phi (this model's choice; interface coefficients
+  from the cells' own values, Patankar 1980, ch. 4). The viscosity at the cells' mean melt fraction made the
+  heat supply of a top cell at phi_c depend on its own melt fraction through the steep middle of the blend,
+  while the surface boundary layer (the top cell's own phi, where the blend is flat) did not: the top cell
+  then froze and re-melted in relaxation oscillations (measured: 83 magma-ocean end/reform flips for 5 M_E at
+  256 nodes, none with the geometric mean);
 * outer faces: thermal boundary layers from a local critical Rayleigh number, delta = (kappa eta Ra_cr /
   (alpha rho g |dT|))^(1/3), flux k dT / min(delta, half cell) (Stevenson, Spohn & Schubert 1983, Icarus
   54:466, the boundary-layer scheme's lower layer): at the CMB dT = T_c - T_0, eta at their mean; at the
@@ -44,12 +50,12 @@ upper face carries more heat by convection than by conduction); ``lid_thickness`
 cell's upper face; ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
 
 Known limitations (measured): the half-cell outer faces add half a cell of conduction between each boundary and
-its node (the tests compare analytic solutions with the boundary moved by it). When the top cell reaches the
-rheological transition it oscillates about it for a few Myr (the surface boundary layer's flux changes by orders
-of magnitude across the transition; ~80 magma-ocean end/reform flips for 5 M_E), which costs most of the steps
-and makes the end of the surface magma ocean depend on the resolution (1 M_E: 1.6-3.8 Myr between 64 and 256
-nodes). The basal layer's onset converges to < 1% and its freezing (last melt) to ~3% on doubling the cells;
-inner-core nucleation to ~15% only.
+its node (the tests compare analytic solutions with the boundary moved by it). The end of the surface magma
+ocean (the top cell falling below phi_c) converges for 5 M_E (3.13, 2.81, 2.74 Myr at 64, 128, 256 nodes) but
+not for 1 M_E (0.9-1.9 Myr between 64 and 512 nodes): the top cell's melt fraction stays within a few hundredths
+of phi_c for Myr, so the crossing time follows the top cell's discretisation error. The basal layer's onset
+varies by ~+-5% between resolutions (cell by cell), its freezing (last melt) by ~3%; the last cell above phi_c
+(the CMB cell) by a factor ~2 below 256 nodes; inner-core nucleation converges to ~15% only.
 """
 
 from __future__ import annotations
