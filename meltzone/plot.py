@@ -21,7 +21,8 @@ from .report import format_years
 #: Figure functions of a single run, by the name ``meltzone plot --figure`` takes.
 RUN_FIGURES = ("meltmap", "profiles", "history")
 #: A layer whose greatest thickness is below this fraction of the mantle depth is "thin": it gets a minimum
-#: drawn width, a label with its true thickness, and a zoom panel when it lies near the surface or the CMB.
+#: drawn width, a label with its true thickness, and a zoom panel when it lies near the surface or the CMB
+#: (this model's choice: below ~5% a layer is a few pixels on a full-mantle axis).
 THIN_LAYER_FRACTION = 0.05
 #: Minimum drawn thickness of a thin layer, as a fraction of the depth axis.
 MIN_DRAWN_FRACTION = 0.015
@@ -324,7 +325,8 @@ def meltmap(result, path, *, n_times: int = 240):
 
 
 # ---------------------------------------------------------------- temperature profiles
-#: Two profiles closer than this everywhere [K] are drawn once (the later one is left out).
+#: Two profiles closer than this everywhere [K] are drawn once (the later one is left out; this model's choice,
+#: below the width of a drawn line at the usual temperature axis of a few thousand K).
 SAME_PROFILE_K = 15.0
 
 
