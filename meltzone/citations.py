@@ -112,6 +112,33 @@ REGISTRY = {
                              "Patankar 1980, Numerical Heat Transfer and Fluid Flow (Hemisphere)", MEMORY),
     "dormand1980": Citation("Dormand-Prince 5(4) Runge-Kutta pair", "Dormand & Prince 1980, J. Comput. Appl. "
                             "Math. 6:19", CHECKED),
+    # host star, steam atmosphere, water, escape (meltzone.star, meltzone._core.radiation)
+    "baraffe2015": Citation("bolometric luminosity of the host star through time (tracks of 0.1, 0.3, 1.0 M_sun, "
+                            "rows copied from the table)", "Baraffe et al. 2015, A&A 577:A42", CHECKED),
+    "star_interpolation": Citation("the star's luminosity between tracks: linear in log age and log mass",
+                                   "meltzone.star", CHOICE),
+    "ribas2005": Citation("XUV of the Sun through time, power law in age with exponent 1.23 after ~0.1 Gyr",
+                          "Ribas et al. 2005, ApJ 622:680", MEMORY),
+    "jackson2012": Citation("saturated X-ray emission L_X/L_bol ~ 10^-3.1 until ~0.1 Gyr",
+                            "Jackson, Davis & Wheatley 2012, MNRAS 422:2024", MEMORY),
+    "haisch2001": Citation("the star's age at the start: disk dispersal after ~3 Myr", "Haisch, Lada & Lada 2001, "
+                           "ApJ 553:L153", MEMORY),
+    "goldblatt2013": Citation("runaway-greenhouse limit of outgoing longwave radiation, 282 W/m^2",
+                              "Goldblatt et al. 2013, Nature Geosci. 6:661", CHECKED),
+    "steam_window": Citation("the steam law's join to sigma T^4 and its near-infrared window opening near 1800 K "
+                             "(shape after Goldblatt et al. 2013 Fig. 1, from memory; not fitted)",
+                             "meltzone._core.radiation.olr_steam", CHOICE),
+    "sossi2023": Citation("H2O solubility in peridotite melt, 647 ppmw bar^-0.5 (X ~ p^0.5)",
+                          "Sossi et al. 2023, EPSL 601:117894", CHECKED),
+    "wagner1993": Citation("saturation vapour pressure of water (IAPWS equation, to the critical point)",
+                           "Wagner & Pruss 1993, J. Phys. Chem. Ref. Data 22:783", MEMORY),
+    "watson1981": Citation("energy-limited hydrodynamic escape of hydrogen", "Watson, Donahue & Walker 1981, Icarus "
+                           "48:150", MEMORY),
+    "lammer2003": Citation("energy-limited escape with a heating efficiency ~0.1-0.3", "Lammer et al. 2003, ApJ "
+                           "598:L121", MEMORY),
+    "hamano2013": Citation("solidification types I and II; oxygen of escaped water taken up by the magma ocean "
+                           "(abstract and institute summary checked)", "Hamano, Abe & Genda 2013, Nature 497:607",
+                           CHECKED),
 }
 
 #: Melting models whose fits were read in their sources (the tests reproduce the published values); the
@@ -134,6 +161,7 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     if spec.surface.atmosphere == "grey":
         keys += ["abe1985", "elkins_tanton2008", "lebrun2013"]
     keys.append("kraus2022")
+    keys += surface_keys(spec)
     if spec.melting.basal_magma_ocean == "reservoir":
         keys += ["labrosse2007", "blanc2020", "orourke2020", "basal_ocean_melting"]
     return tuple(keys)
@@ -150,6 +178,18 @@ def mixing_length_keys(spec) -> tuple[str, ...]:
         keys.append("mlt_mobile_lid")
     if spec.surface.atmosphere == "grey":
         keys += ["abe1985", "elkins_tanton2008", "lebrun2013"]
+    return tuple(keys) + surface_keys(spec)
+
+
+def surface_keys(spec) -> tuple[str, ...]:
+    """Registry keys of the star, the steam atmosphere, water and escape a run of ``spec`` uses (both schemes)."""
+    keys = []
+    if spec.surface.atmosphere == "steam":
+        keys += ["goldblatt2013", "steam_window", "sossi2023", "wagner1993", "abe1985", "lebrun2013"]
+    if spec.star.mass_msun > 0.0:
+        keys += ["baraffe2015", "star_interpolation", "ribas2005", "jackson2012", "haisch2001"]
+        if spec.surface.atmosphere != "none" and spec.surface.escape_efficiency > 0.0:
+            keys += ["watson1981", "lammer2003", "hamano2013"]
     return tuple(keys)
 
 

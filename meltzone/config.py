@@ -19,11 +19,11 @@ import numbers
 import tomllib
 import unicodedata
 import warnings
-from dataclasses import dataclass
 from pathlib import Path
 from types import MappingProxyType
 from typing import Any, Mapping
 
+from .config_key import Key
 from .errors import ConfigError
 
 #: Mass range [Earth masses] inside which the models are calibrated; outside it a run warns.
@@ -44,42 +44,7 @@ MELTING_MODELS = ("peridotite-lowp", "katz2003", "whole-mantle-sg", "peridotite-
 _BAD_CHAR_CATEGORIES = frozenset({"Cc", "Cs", "Zl", "Zp"})
 
 
-@dataclass(frozen=True)
-class Key:
-    """One configuration key: default, unit, meaning and allowed values."""
-
-    default: Any
-    unit: str
-    doc: str
-    lo: float | None = None
-    hi: float | None = None
-    lo_open: bool = False
-    hi_open: bool = False
-    choices: tuple[str, ...] | None = None
-    source: str = ""
-    #: A value outside [lo, hi] that is allowed with a special meaning (e.g. 0 = "molten start"), described in doc.
-    special: float | None = None
-    #: Longest allowed string (string keys).
-    max_len: int | None = None
-
-    @property
-    def kind(self) -> type:
-        return type(self.default)
-
-    def allowed(self) -> str:
-        if self.choices is not None:
-            return "one of " + ", ".join(repr(c) for c in self.choices)
-        if self.kind is str:
-            return f"a string of at most {self.max_len} characters without control characters"
-        parts = []
-        if self.lo is not None:
-            parts.append(f"{'>' if self.lo_open else '>='} {self.lo:g}")
-        if self.hi is not None:
-            parts.append(f"{'<' if self.hi_open else '<='} {self.hi:g}")
-        what = "an integer" if self.kind is int else "a number"
-        text = what + (" " + " and ".join(parts) if parts else "")
-        return text if self.special is None else f"{self.special:g} or {text}"
-
+from .config_star import ESCAPE_KEYS, ORBIT_KEYS, STAR_KEYS, check_star
 
 SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
     "planet": {
@@ -233,20 +198,29 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                              lo=0.0, hi=13.0,
             source='common practice (age of the Solar System 4.57 Gyr)'),
     },
+    "star": STAR_KEYS,
+    "orbit": ORBIT_KEYS,
     "surface": {
-        "equilibrium_temperature_k": Key(255.0, "K", "radiative equilibrium temperature set by the star",
+        "equilibrium_temperature_k": Key(255.0, "K", "radiative equilibrium temperature, fixed (used without a "
+                                         "star; with star.mass_msun set, the star's flux replaces it)",
                                          lo=0.0, hi=3000.0,
             source="Earth's radiative equilibrium temperature (common practice)"),
-        "atmosphere": Key("none", "", "surface boundary", choices=("none", "grey"),
-            source="none: a bare radiating surface; grey: Abe & Matsui 1985 (from memory)"),
-        "water_inventory_kg": Key(0.0, "kg", "total H2O of mantle + atmosphere (grey atmosphere)", lo=0.0,
+        "atmosphere": Key("none", "", "surface boundary: a bare surface, a grey H2O-CO2 atmosphere, or a steam "
+                          "(H2O-CO2) atmosphere with the runaway-greenhouse radiation limit, water dissolved in "
+                          "the melt (Sossi et al. 2023) and condensing to an ocean", choices=("none", "grey", "steam"),
+            source="none: a bare radiating surface; grey: Abe & Matsui 1985 (from memory); steam: the limit of "
+                   "Goldblatt et al. 2013, Nature Geosci. 6:661 (see meltzone._core.radiation)"),
+        "water_inventory_kg": Key(0.0, "kg", "total H2O of mantle + atmosphere (+ ocean) (grey or steam "
+                                  "atmosphere)", lo=0.0,
                                   hi=1.0e24,
             source="limit: ~700 Earth oceans (1.4e21 kg each, common practice), ~1.7 wt% of the mantle of a 15 M_E "
                    "planet (6e25 kg); more water makes a water world, which this rocky-mantle model does not "
                    "describe"),
-        "co2_inventory_kg": Key(0.0, "kg", "total CO2 of mantle + atmosphere (grey atmosphere)", lo=0.0, hi=1.0e23,
+        "co2_inventory_kg": Key(0.0, "kg", "total CO2 of mantle + atmosphere (grey or steam atmosphere)", lo=0.0,
+                                hi=1.0e23,
             source="limit: ~200x the CO2 of Venus's atmosphere (4.8e20 kg, from memory), ~0.2 wt% of the mantle of "
                    "a 15 M_E planet"),
+        **ESCAPE_KEYS,
     },
     "initial": {
         "upper_temperature_k": Key(0.0, "K", "initial upper-mantle potential temperature; 0 = fully molten "
@@ -380,6 +354,8 @@ def _check_together(values: Mapping[str, Mapping[str, Any]]) -> None:
         raise ConfigError(f"melting.table_file = {_show(melt['table_file'])} is only read with melting.model = "
                           f"'table', not {melt['model']!r}: set melting.model = \"table\" or remove the table file")
     t_eq = values["surface"]["equilibrium_temperature_k"]
+    if check_star(values, SCHEMA["surface"]["equilibrium_temperature_k"].default):
+        return  # with a star, T_eq is not the irradiation
     for name in ("upper_temperature_k", "core_temperature_k"):
         t = values["initial"][name]
         if t != 0.0 and t < t_eq:

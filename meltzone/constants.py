@@ -43,3 +43,17 @@ MOLAR_MASS_O = 15.999e-3
 #: cm^3/mol to m^3/mol
 CM3_PER_MOL = 1.0e-6
 
+
+# --- Star and orbit -----------------------------------------------------------
+#: Astronomical unit [m] (IAU 2012 Resolution B2, exact).
+AU = 1.495978707e11
+#: Solar luminosity [W] as used by the stellar tracks of Baraffe et al. 2015, A&A 577:A42 (3.839e33 erg/s),
+#: so that their L/L_sun converts back to their watts (IAU 2015 B3 nominal: 3.828e26 W).
+SOLAR_LUMINOSITY_BHAC15 = 3.839e26
+
+# --- Water --------------------------------------------------------------------
+#: Critical point of water: 647.096 K, 22.064 MPa (IAPWS 1995, Wagner & Pruss 2002, JPCRD 31:387).
+WATER_CRITICAL_TEMPERATURE = 647.096
+WATER_CRITICAL_PRESSURE = 22.064e6
+#: Mass of water per mass of hydrogen in it: M(H2O) / (2 M(H)) = 18.015 / 2.016 (IUPAC 2013 atomic weights).
+WATER_PER_HYDROGEN = 18.015 / 2.016

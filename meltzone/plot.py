@@ -481,6 +481,22 @@ def _has_atmosphere(result) -> bool:
             or any(np.any(h[k] > 0.0) for k in ("atmosphere_h2o", "atmosphere_co2")))
 
 
+def _surface_panels(h) -> list:
+    """The atmosphere's panels of a run with the surface series: partial pressures; outgoing radiation against the
+    absorbed stellar flux; water in the ocean, in the melt and lost to space (only the ones that are not all 0)."""
+    out = []
+    groups = [("partial pressure [Pa]", [("pressure_h2o", "H2O", "-"), ("pressure_co2", "CO2", "-")]),
+              ("radiation [W/m^2]", [("outgoing_radiation", "outgoing (top of atmosphere)", "-"),
+                                     ("absorbed_flux", "absorbed stellar flux", (0, (4, 2)))]),
+              ("water [kg]", [("water_ocean", "surface ocean", "-"), ("water_dissolved", "dissolved in the melt", "-"),
+                              ("water_lost", "lost to space", "-")])]
+    for ylabel, series in groups:
+        shown = [item for item in series if item[0] in h and np.any(h[item[0]] > 0.0)]
+        if shown:
+            out.append((ylabel, "log", shown))
+    return out
+
+
 def build_history(result):
     """The matplotlib Figure of :func:`history` (not written)."""
     from .constants import YEAR
@@ -509,6 +525,7 @@ def build_history(result):
         panels.append(("atmosphere [kg]", "log" if some else "linear",
                        [("atmosphere_h2o", "H2O in the atmosphere", "-"),
                         ("atmosphere_co2", "CO2 in the atmosphere", "-")]))
+        panels += _surface_panels(h)
     fig = new_figure((9.0, 2.1 * len(panels) + 1.4))
     axes = fig.subplots(len(panels), 1, sharex=True)
     for ax, (ylabel, scale, series) in zip(axes, panels):

@@ -198,6 +198,15 @@ def _basal_text(s: dict) -> str:
             f"{b['max_thickness_m'] / 1e3:,.3g} km thick")
 
 
+def _water_text(s: dict) -> str:
+    formed = s.get("water_ocean_formed_yr")
+    ocean = "no surface ocean" if formed is None else (f"an ocean condenses at {format_years(formed)} "
+                                                        f"({s['water_ocean_kg']:.3g} kg at the end)")
+    kind = s.get("solidification_type")
+    kind = "" if kind is None else f"; solidification type {kind} (Hamano et al. 2013)"
+    return f"{ocean}; {s.get('water_lost_kg', 0.0):.3g} kg lost to space{kind}"
+
+
 def head_lines(result, s: dict) -> list[str]:
     """The run's outcome in a few lines (the summary dict ``s`` of :meth:`Result.summary`)."""
     it = result.interior
@@ -217,6 +226,7 @@ def head_lines(result, s: dict) -> list[str]:
         f"crystallisation   {_crystallisation_text(s)}",
         f"partial melt      {_melt_text(s)}",
         f"basal melt layer  {_basal_text(s)}",
+        *([f"water             {_water_text(s)}"] if spec.surface.water_inventory_kg > 0 else []),
         f"at the end        T_u {s['final_upper_temperature_k']:,.0f} K, surface heat flow "
         f"{s['final_surface_heat_flow_w'] / 1e12:,.3g} TW, CMB heat flow {s['final_cmb_heat_flow_w'] / 1e12:,.3g} TW, "
         f"inner core {s['inner_core_radius_m'] / 1e3:,.0f} km",

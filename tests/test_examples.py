@@ -9,7 +9,7 @@ import pytest
 from meltzone.config import PlanetSpec
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
-SCENARIOS = ["steam_world", "stagnant_lid", "iron_rich"]
+SCENARIOS = ["steam_world", "stagnant_lid", "iron_rich", "red_dwarf_water_world"]
 
 
 @pytest.mark.parametrize("name", SCENARIOS)

@@ -21,6 +21,7 @@ import math
 
 import numpy as np
 
+from ..constants import STEFAN_BOLTZMANN
 from ._jit import njit
 from .layout import (C_W, F_A, F_DR, F_R, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP, M_MOBILE,
                      M_NEWTON_TOL, MH_ATM_CO2, MH_ATM_H2O, MH_DT, MH_E_STORED, MH_EC, MH_H, MH_LID, MH_MELT,
@@ -31,7 +32,10 @@ from .layout import (C_W, F_A, F_DR, F_R, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR, M_
 from .mlt_physics import (adiabat_floor, cell_slope, cell_state, cmb_flux, interior_flux_jac,
                           surface_flux)
 from .record import find_intervals
-from .physics import CORE, _invert, core_energy, grey_emissivity, inner_core, radiogenic_power
+from .physics import CORE, GREY_H2O_COEFF, GREY_H2O_EXPONENT, _invert, core_energy, inner_core, radiogenic_power
+from .layout import (MH_ABS, MH_DISSOLVED, MH_LOST, MH_OCEAN, MH_OLR, MH_P_CO2, MH_P_H2O, MS_LOST, P_G_SURF,
+                     P_H2O_SOL_C, P_H2O_SOL_E, P_H2O_TOTAL, P_STEAM)
+from .radiation import condense, escape_rate, radiation_state, volatiles
 from .tridiag import solve
 
 #: relative perturbation of the finite-difference Jacobian
@@ -53,19 +57,35 @@ def _states(h, grid, law, par, temp, phi):
 
 
 @njit
-def _emissivity(phi, grid, par):
-    """(eps, M_H2O, M_CO2) of the grey atmosphere in solubility equilibrium with the melt (the boundary-layer
-    scheme's law; lagged: evaluated at the start of each step)."""
-    if par[P_ATMOSPHERE] <= 0.5:
-        return 1.0, 0.0, 0.0
+def _surface_state(t, phi, grid, lost, par):
+    """(radiation state, (M_H2O vapour, M_CO2, M_H2O dissolved, M_H2O left, melt mass)) of the surface at time
+    t, with the volatiles in solubility equilibrium with the cells' melt (the boundary-layer scheme's laws,
+    :mod:`meltzone._core.radiation`; lagged: evaluated at the start of each step)."""
+    steam = par[P_STEAM] > 0.5
+    if par[P_ATMOSPHERE] <= 0.5 and not steam:
+        return radiation_state(t, 1.0, steam, par), (0.0, 0.0, 0.0, 0.0, 0.0)
     m_melt = 0.0
     for i in range(phi.shape[0]):
         m_melt += grid[G_W, i] * phi[i]
-    return grey_emissivity(m_melt, par)
+    if steam:
+        eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, par[P_H2O_SOL_C], par[P_H2O_SOL_E], par)
+    else:
+        eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par)
+    return radiation_state(t, eps, steam, par), (m_h2o, m_co2, dissolved, water, m_melt)
 
 
 @njit
-def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, eps, has_core, flux, d_lo, d_hi):
+def _water_after(t, ts, vol, par):
+    """(vapour, ocean, dissolved, escape rate [kg/s]) at the surface temperature a step ended with."""
+    m_h2o, m_co2, dissolved, water, m_melt = vol
+    ocean = 0.0
+    if par[P_STEAM] > 0.5:
+        m_h2o, ocean, dissolved = condense(ts, water, m_melt, m_h2o, dissolved, par)
+    return m_h2o, ocean, dissolved, escape_rate(t, m_h2o, ocean, par) if water > 0.0 else 0.0
+
+
+@njit
+def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core, flux, d_lo, d_hi):
     """Face fluxes F_j [W/m^2] at the state (E_c, h) and their derivatives in the unknown below (d_lo: E_c for
     the CMB face, h_{j-1} otherwise) and above (d_hi: h_j). Returns T_s."""
     n = h.shape[0]
@@ -98,10 +118,10 @@ def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, eps, has_core,
         flux[j], d_lo[j], d_hi[j] = interior_flux_jac(h[a], h[j], temp[a], temp[j], phi[a], phi[j], sa, sb,
                                                       faces, j, floors[j], par)
     top = n - 1
-    q, ts = surface_flux(temp[top], phi[top], faces, n, floors[n], eps, par)
+    q, ts = surface_flux(temp[top], phi[top], faces, n, floors[n], rad, par)
     dh = FD_REL * abs(h[top]) + 1e-3
     t1, p1 = cell_state(h[top] + dh, grid, top, law, par)
-    q1, _ = surface_flux(t1, p1, faces, n, floors[n], eps, par)
+    q1, _ = surface_flux(t1, p1, faces, n, floors[n], rad, par)
     flux[n] = q
     d_lo[n] = (q1 - q) / dh
     d_hi[n] = 0.0
@@ -109,7 +129,7 @@ def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, eps, has_core,
 
 
 @njit
-def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors, eps, has_core, temp, phi,
+def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors, rad, has_core, temp, phi,
            flux, d_lo, d_hi, lower, diag, upper, rhs, dx, work):
     """Solve the backward-Euler step from x_old over dt in place of x (which holds the start guess); x[0] is
     the core's stored heat, x[1:] the cells' enthalpies. ``tc`` starts the core inversion. Returns
@@ -130,7 +150,7 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
         _states(h, grid, law, par, temp, phi)
         if has_core:
             tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
-        ts = fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, eps, has_core, flux, d_lo, d_hi)
+        ts = fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core, flux, d_lo, d_hi)
         a0 = faces[F_A, 0]
         rhs[0] = (x[0] - x_old[0]) / dt + a0 * flux[0]
         diag[0] = 1.0 / dt + a0 * d_lo[0]
@@ -160,7 +180,7 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
             if has_core:
                 tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
                 flux[0] = cmb_flux(tc, temp[0], phi[0], faces, floors[0], par)
-            flux[n], ts = surface_flux(temp[n - 1], phi[n - 1], faces, n, floors[n], eps, par)
+            flux[n], ts = surface_flux(temp[n - 1], phi[n - 1], faces, n, floors[n], rad, par)
             return True, it + 1, tc, ts
     return False, max_it, tc, ts
 
@@ -178,9 +198,10 @@ def upper_cell(temp, flux, faces, par):
 
 
 @njit
-def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, eps, m_h2o, m_co2, out,
+def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, rad, wat, out,
            newton_its, hist, temps, phis, n_h):
-    """Store accepted step ``n_h``: history row (MH_*) and T, phi on every cell."""
+    """Store accepted step ``n_h``: history row (MH_*) and T, phi on every cell. ``wat`` = (vapour, CO2, ocean,
+    dissolved, lost) [kg]."""
     n = temp.shape[0]
     melt = 0.0
     e = 0.0
@@ -213,15 +234,25 @@ def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, 
     hist[n_h, MH_PHI_TOP] = phi[n - 1]
     hist[n_h, MH_E_STORED] = e + e_core
     hist[n_h, MH_OUT] = out
+    m_h2o, m_co2, ocean, dissolved, lost = wat
+    area = faces[F_A, n]
     hist[n_h, MH_ATM_H2O] = m_h2o
     hist[n_h, MH_ATM_CO2] = m_co2
+    hist[n_h, MH_ABS] = STEFAN_BOLTZMANN * rad[2]
+    hist[n_h, MH_OLR] = flux[n] + STEFAN_BOLTZMANN * rad[2]
+    hist[n_h, MH_OCEAN] = ocean
+    hist[n_h, MH_DISSOLVED] = dissolved
+    hist[n_h, MH_LOST] = lost
+    hist[n_h, MH_P_H2O] = m_h2o * par[P_G_SURF] / area
+    hist[n_h, MH_P_CO2] = m_co2 * par[P_G_SURF] / area
     hist[n_h, MH_EC] = x[0]
     hist[n_h, MH_NEWTON] = newton_its
     hist[n_h, MH_DT] = dt
 
 
 @njit
-def _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps):
+def _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps, lost):
+    state[MS_LOST] = lost
     state[MS_T] = t
     state[MS_H] = dt
     state[MS_H_PREV] = dt_prev
@@ -260,6 +291,7 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
     n_rej = int(state[MS_N_REJ])
     tc = state[MS_TC]
     out = state[MS_OUT]
+    lost = state[MS_LOST]
     has_core = core[C_W].sum() > 0.0
     c_core = max(core[C_W].sum() * par[P_CC], 1.0)
     cm = par[P_CM]
@@ -267,36 +299,37 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
     mid = n // 2
     t_end = par[P_T_END]
     _states(x[1:], grid, law, par, temp, phi)
-    eps, m_h2o, m_co2 = _emissivity(phi, grid, par)
+    rad, vol = _surface_state(t, phi, grid, lost, par)
     if n_h == 0:
         if mobile:
             adiabat_floor(x[1 + mid], mid, grid, faces, law, par, floors)
         if has_core:
             tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
-        ts = fluxes(tc, x[1:], temp, phi, grid, faces, core, par, law, floors, eps, has_core, flux, d_lo, d_hi)
-        record(t, 0.0, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, eps, m_h2o, m_co2,
-               out, 0, hist, temps, phis, 0)
+        ts = fluxes(tc, x[1:], temp, phi, grid, faces, core, par, law, floors, rad, has_core, flux, d_lo, d_hi)
+        vap, ocean, dissolved, _ = _water_after(t, ts, vol, par)
+        record(t, 0.0, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, rad,
+               (vap, vol[1], ocean, dissolved, lost), out, 0, hist, temps, phis, 0)
         n_h = 1
     steps = 0
     while t < t_end * (1.0 - END_SLACK):
         if n_h >= hist.shape[0]:
-            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps)
+            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost)
             return STATUS_HISTORY_FULL
         if steps >= max_steps:
-            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps)
+            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost)
             return STATUS_MAX_STEPS
         dt = min(dt, par[P_H_MAX], t_end - t)
         if dt < mset[M_MIN_STEP] and t_end - t > mset[M_MIN_STEP]:
-            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps)
+            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost)
             return STATUS_STEP_TOO_SMALL
         for i in range(n + 1):
             x_old[i] = x[i]
         _states(x_old[1:], grid, law, par, temp_old, phi_old)
-        eps, m_h2o, m_co2 = _emissivity(phi_old, grid, par)
+        rad, vol = _surface_state(t, phi_old, grid, lost, par)
         if mobile:
             adiabat_floor(x_old[1 + mid], mid, grid, faces, law, par, floors)
         ok, its, tc_new, ts = newton(t + dt, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors,
-                                     eps, has_core, temp, phi, flux, d_lo, d_hi, lower, diag, upper, rhs, dx,
+                                     rad, has_core, temp, phi, flux, d_lo, d_hi, lower, diag, upper, rhs, dx,
                                      work)
         err = 0.0
         big_t = 0.0
@@ -315,12 +348,15 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
         if ok and err <= 1.0 and big_t <= mset[M_DT_CELL] and big_phi <= mset[M_DPHI]:
             heat = radiogenic_power(t + dt, iso, par)
             out += dt * (flux[n] * faces[F_A, n] - heat)
+            # water: condensation at the step's surface temperature, escape at its end rate (explicit)
+            vap, ocean, dissolved, rate = _water_after(t + dt, ts, vol, par)
+            lost = min(lost + dt * rate, par[P_H2O_TOTAL])
             t += dt
             tc = tc_new
             for i in range(n + 1):
                 x_prev[i] = x_old[i]
-            record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, eps, m_h2o,
-                   m_co2, out, its, hist, temps, phis, n_h)
+            record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, rad,
+                   (vap, vol[1], ocean, dissolved, lost), out, its, hist, temps, phis, n_h)
             n_h += 1
             steps += 1
             dt_prev = dt
@@ -343,7 +379,7 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
                 if big_phi > mset[M_DPHI]:
                     factor = min(factor, 0.9 * mset[M_DPHI] / big_phi)
             dt *= max(factor, SHRINK_MIN)
-    _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps)
+    _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost)
     return STATUS_DONE
 
 

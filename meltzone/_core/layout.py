@@ -26,6 +26,9 @@ REACHED_CENTRE, EMPTIED, BLEW_UP, OUT_OF_ROOM = range(4)
 # ------------------------------------------------------------ evolution state y (energies)
 STATE_Y = ("mantle_energy", "core_energy", "lid_thickness", "heat_out_minus_radiogenic")
 Y_EM, Y_EC, Y_LID, Y_OUT = range(N_Y := len(STATE_Y))
+# water lost to space [kg] (escape; its integrator-state slots are appended to STATE below)
+STATE_Y += ("water_lost",)
+Y_WATER, = range(N_Y, N_Y := len(STATE_Y))
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 GRID_ROWS = ("radius", "pressure", "adiabat", "mass", "solidus", "liquidus", "aux1", "aux2")
@@ -56,6 +59,22 @@ PARAMETERS = (
 # basal magma ocean (boundary-layer scheme): switch (1 on), solidus depression [K], enrichment [K], reference mass [kg]
 PARAMETERS += ("basal_ocean", "basal_melt_depression", "basal_melt_enrichment", "basal_reference_mass")
 P_BMO, P_BMO_DEP, P_BMO_ENRICH, P_BMO_MREF = range(N_PAR, N_PAR := len(PARAMETERS))
+# host star, steam atmosphere, water and escape (radiation.py, star.py): switches (1 on), the star's age at the
+# start [s], (1 - A) / (16 pi a^2) [1/m^2], the XUV law (saturation L_XUV/L_bol, its end [s], decay exponent),
+# water lost per XUV energy [kg/J] (escape efficiency x 9 pi R^3 / (G M 4 pi a^2)), the H2O solubility law
+# (mass fraction = coeff x P[Pa]^expo), the luminosity table: log10 of the star's age [yr] of its first point,
+# the spacing, then N_LUM values of log10(L / W). With a star, P_T_EQ holds the equilibrium temperature at the
+# start: the fixed surface temperature of the lid's stored-heat profile
+PARAMETERS += ("star", "steam_atmosphere", "star_start_age", "flux_factor", "xuv_saturation_ratio",
+               "xuv_saturation_age", "xuv_decay_exponent", "escape_factor", "h2o_solubility_coeff",
+               "h2o_solubility_exponent", "luminosity_log_age0", "luminosity_log_age_step")
+(P_STAR, P_STEAM, P_STAR_AGE0, P_FLUX_FACTOR, P_XUV_SAT, P_XUV_T_SAT, P_XUV_EXP, P_ESCAPE, P_H2O_SOL_C,
+ P_H2O_SOL_E, P_LUM_AGE0, P_LUM_DAGE) = range(N_PAR, N_PAR := len(PARAMETERS))
+#: points of the luminosity table in the parameters (uniform in log age)
+N_LUM = 81
+PARAMETERS += tuple(f"log_luminosity_{i:02d}" for i in range(N_LUM))
+P_LUM = N_PAR
+N_PAR = len(PARAMETERS)
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",
@@ -68,6 +87,11 @@ DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", 
 # basal magma ocean: radius of its top [m] (the core radius without one) and its mass [kg]
 DIAGNOSTICS += ("basal_ocean_radius", "basal_ocean_mass")
 D_RB, D_MB = range(N_D, N_D := len(DIAGNOSTICS))
+# star, steam atmosphere and water (radiation.py): absorbed stellar flux and outgoing radiation [W/m^2], water
+# in a surface ocean, dissolved in the melt and lost to space [kg], partial pressures [Pa], water escape [kg/s]
+DIAGNOSTICS += ("absorbed_flux", "outgoing_radiation", "water_ocean", "water_dissolved", "water_lost",
+                "pressure_h2o", "pressure_co2", "water_escape_rate")
+(D_ABS, D_OLR, D_OCEAN, D_DISSOLVED, D_LOST, D_P_H2O, D_P_CO2, D_ESCAPE) = range(N_D, N_D := len(DIAGNOSTICS))
 
 # ------------------------------------------------------------ history columns (one row per accepted step)
 HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "lid_thickness", "heat_out_minus_radiogenic",
@@ -79,6 +103,9 @@ HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "lid_thickne
  H_E_STORED, H_DTU, H_DTC, H_DLID, H_PHI_TOP, H_ATM_H2O, H_ATM_CO2, H_N_IV) = range(N_H := len(HISTORY_COLUMNS))
 HISTORY_COLUMNS += ("basal_ocean_thickness",)
 H_BMO, = range(N_H, N_H := len(HISTORY_COLUMNS))
+HISTORY_COLUMNS += ("absorbed_flux", "outgoing_radiation", "water_ocean", "water_dissolved", "water_lost",
+                    "pressure_h2o", "pressure_co2")
+H_ABS, H_OLR, H_OCEAN, H_DISSOLVED, H_LOST, H_P_H2O, H_P_CO2 = range(N_H, N_H := len(HISTORY_COLUMNS))
 
 # ------------------------------------------------------------ melt-interval columns
 INTERVAL_COLUMNS = ("step", "top_node", "bottom_node", "max_melt_fraction", "melt_mass", "full_top_node",
@@ -95,6 +122,9 @@ STATE = ("time", "mantle_energy", "core_energy", "lid_thickness", "heat_out_minu
  _S_DY2, _S_DY3, S_T_SWITCH) = range(N_STATE := len(STATE))
 #: S_T_SWITCH until the top of the mantle first reaches the rheological transition
 NOT_YET = 1.0e300
+# y[Y_WATER] and its rate (the first four components keep their slots above)
+STATE += ("water_lost", "rate_water_lost")
+S_Y_WATER, S_DY_WATER = range(N_STATE, N_STATE := len(STATE))
 
 # ------------------------------------------------------------ mixing-length scheme (implicit.py, mlt_physics.py)
 #: per-face geometry, faces 0 (CMB) .. n (surface) of the n mantle cells
@@ -112,10 +142,15 @@ MLT_HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "surface
                        "atmosphere_co2", "core_energy", "newton_iterations", "step_size")
 (MH_T, MH_TU, MH_TC, MH_TS, MH_QS, MH_QC, MH_H, MH_LID, MH_RIC, MH_MELT, MH_PHI_TOP, MH_E_STORED, MH_OUT,
  MH_ATM_H2O, MH_ATM_CO2, MH_EC, MH_NEWTON, MH_DT) = range(N_MH := len(MLT_HISTORY_COLUMNS))
+MLT_HISTORY_COLUMNS += ("absorbed_flux", "outgoing_radiation", "water_ocean", "water_dissolved", "water_lost",
+                        "pressure_h2o", "pressure_co2")
+MH_ABS, MH_OLR, MH_OCEAN, MH_DISSOLVED, MH_LOST, MH_P_H2O, MH_P_CO2 = range(N_MH, N_MH := len(MLT_HISTORY_COLUMNS))
 #: integrator state of the mixing-length scheme (implicit.integrate resumes from it; h per cell kept apart)
 MLT_STATE = ("time", "heat_out_minus_radiogenic", "step_size", "previous_step_size", "n_history", "n_rejected",
              "core_temperature", "emissivity")
 MS_T, MS_OUT, MS_H, MS_H_PREV, MS_N_H, MS_N_REJ, MS_TC, MS_EPS = range(N_MS := len(MLT_STATE))
+MLT_STATE += ("water_lost",)
+MS_LOST, = range(N_MS, N_MS := len(MLT_STATE))
 
 REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID, REGIME_STAGNANT_LID = range(3)
 STATUS_DONE, STATUS_HISTORY_FULL, STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL = range(5)

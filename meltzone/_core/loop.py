@@ -19,6 +19,7 @@ from .layout import (C_W, D_PHI_SURF, G_F, G_TSOL, N_D, N_Y, NOT_YET, P_ATOL, P_
                      P_H_MAX, P_MANTLE_MASS, P_PHI_C, P_RTOL, P_T_END, S_DY, S_H, S_N_H, S_N_IV, S_N_REJ,
                      S_SLOPE_C, S_SLOPE_M, S_T, S_T_SWITCH, S_TC, S_TU, S_Y, STATUS_DONE, STATUS_HISTORY_FULL,
                      STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL, Y_EC, Y_EM, Y_LID)
+from .layout import S_DY_WATER, S_Y_WATER, Y_WATER
 from .physics import node_melt, rhs_packed, temperature_rates
 from .record import record
 
@@ -100,11 +101,21 @@ def _unseen_extremum(tu, tc, tu_new, tc_new, dtu, dtc, dtu1, dtc1, h, grid):
 
 
 @njit
+def state_slots(j):
+    """(slot of y[j], slot of its rate) in the integrator state: the water lost has its own pair after the
+    original ones."""
+    if j == Y_WATER:
+        return S_Y_WATER, S_DY_WATER
+    return S_Y + j, S_DY + j
+
+
+@njit
 def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch):
     state[S_T] = t
     for j in range(N_Y):
-        state[S_Y + j] = y[j]
-        state[S_DY + j] = k1[j]
+        sy, sdy = state_slots(j)
+        state[sy] = y[j]
+        state[sdy] = k1[j]
     state[S_H] = h
     state[S_N_H] = n_h
     state[S_N_IV] = n_iv
@@ -141,7 +152,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     k7 = k[dopri.N_STAGES - 1]
     t = state[S_T]
     for j in range(N_Y):
-        y[j] = state[S_Y + j]
+        y[j] = state[state_slots(j)[0]]
     h = state[S_H]
     n_h = int(state[S_N_H])
     n_iv = int(state[S_N_IV])
@@ -163,7 +174,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
         rhs_packed(t, y, args, k1)
     else:  # resuming: the last accepted stage's slopes (first-same-as-last), exactly as left
         for j in range(N_Y):
-            k1[j] = state[S_DY + j]
+            k1[j] = state[state_slots(j)[1]]
     tu = work[0]
     tc = work[1]
     top = grid.shape[1] - 1

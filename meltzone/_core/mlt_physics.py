@@ -9,13 +9,13 @@ from __future__ import annotations
 
 import math
 
-from ..constants import STEFAN_BOLTZMANN
 from ..melting import LAW_LINEAR
 from ._jit import njit
 from .layout import (F_DR, F_F, F_G, F_L, F_P, F_RATIO, F_RHO, G_AUX1, G_AUX2, G_F, G_TLIQ, G_TSOL, P_ALPHA, P_CM,
-                     P_K, P_KAPPA, P_LATENT, P_RA_CR, P_T_EQ)
+                     P_K, P_KAPPA, P_LATENT, P_RA_CR)
 from .melt import melt_fraction
 from .physics import viscosity
+from .radiation import net_radiation
 from .roots import illinois
 
 #: bisection tolerance of the enthalpy inversion [K] for laws without a closed-form inverse
@@ -185,21 +185,21 @@ def boundary_flux(dt, t_visc, phi, faces, j, t_floor, par):
 
 @njit
 def _surface_residual(ts, args):
-    t_top, phi_top, faces, j, t_floor, eps, par = args
-    return boundary_flux(t_top - ts, t_top, phi_top, faces, j, t_floor, par) - eps * STEFAN_BOLTZMANN * (
-        ts ** 4 - par[P_T_EQ] ** 4)
+    t_top, phi_top, faces, j, t_floor, rad, par = args
+    return boundary_flux(t_top - ts, t_top, phi_top, faces, j, t_floor, par) - net_radiation(ts, rad)
 
 
 @njit
-def surface_flux(t_top, phi_top, faces, j, t_floor, eps, par):
-    """(q [W/m^2], T_s [K]) at the surface: T_s balances the top boundary layer's flux with
-    eps sigma (T_s^4 - T_eq^4) (the boundary-layer scheme's radiation law). The balance falls monotonically
-    in T_s; Illinois regula falsi on [min(T_eq, T_top), max(T_eq, T_top)], to 1e-13 of T_s (the Newton
-    iteration differentiates the result)."""
-    lo = min(par[P_T_EQ], t_top)
-    hi = max(par[P_T_EQ], t_top)
-    ts = illinois(_surface_residual, (t_top, phi_top, faces, j, t_floor, eps, par), lo, hi, 200, 1e-13, 0.0)
-    return eps * STEFAN_BOLTZMANN * (ts ** 4 - par[P_T_EQ] ** 4), ts
+def surface_flux(t_top, phi_top, faces, j, t_floor, rad, par):
+    """(q [W/m^2], T_s [K]) at the surface: T_s balances the top boundary layer's flux with the net radiation
+    of ``rad`` (:func:`meltzone._core.radiation.radiation_state`: the boundary-layer scheme's laws;
+    eps sigma (T_s^4 - T_eq^4) without a star and steam). The balance falls monotonically in T_s; Illinois
+    regula falsi on [min(T_rad, T_top), max(T_rad, T_top)] (T_rad: no net radiation), to 1e-13 of T_s (the
+    Newton iteration differentiates the result)."""
+    lo = min(rad[3], t_top)
+    hi = max(rad[3], t_top)
+    ts = illinois(_surface_residual, (t_top, phi_top, faces, j, t_floor, rad, par), lo, hi, 200, 1e-13, 0.0)
+    return net_radiation(ts, rad), ts
 
 
 @njit

@@ -13,13 +13,13 @@ import math
 
 import numpy as np
 
-from ..constants import GAS_CONSTANT, STANDARD_ATMOSPHERE, STEFAN_BOLTZMANN, YEAR
+from ..constants import GAS_CONSTANT, STEFAN_BOLTZMANN, YEAR
 from ._jit import njit
 from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DELTA_C, D_DELTA_U, D_DLID, D_EPS,
                      D_ETA_C, D_ETA_U, D_H, D_PHI_SURF, D_PHI_TOP, D_QC, D_QS, D_QU, D_REGIME, D_RIC, D_TB, D_TL,
                      D_TS, G_AUX1, G_AUX2, G_F, G_R, G_TLIQ, G_TSOL, G_W, ISO_DECAY, ISO_HEAT, P_A_RH, P_A_VISC,
-                     P_ALPHA, P_ATMOSPHERE, P_BETA, P_BLEND, P_CC, P_CM, P_CO2_TOTAL, P_CORE_RADIUS, P_E_ACT, P_EG,
-                     P_ETA_LIQ, P_G_CMB, P_G_SURF, P_H2O_TOTAL, P_K, P_KAPPA, P_LATENT, P_LC, P_LID_MIN,
+                     P_ALPHA, P_ATMOSPHERE, P_BETA, P_BLEND, P_CC, P_CM, P_CORE_RADIUS, P_E_ACT, P_EG,
+                     P_ETA_LIQ, P_G_CMB, P_G_SURF, P_K, P_KAPPA, P_LATENT, P_LC, P_LID_MIN,
                      P_MANTLE_MASS, P_MELT_WEAK, P_NU_A, P_P_CMB, P_P_TOP, P_PHI_C, P_RA_CR, P_RADIUS,
                      P_RHO_MANTLE, P_RHO_TOP,
                      P_STAGNANT, P_START_AGE, P_T_EQ, P_V_ACT, P_V_DECAY, REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID,
@@ -28,6 +28,13 @@ from .basal import basal_ocean, basal_top_energy
 from .layout import D_MB, D_RB, G_P, P_BMO, P_BMO_MREF
 from .melt import melt_fraction
 from .roots import bisect, illinois
+from .layout import (D_ABS, D_DISSOLVED, D_ESCAPE, D_LOST, D_OCEAN, D_OLR, D_P_CO2, D_P_H2O, P_H2O_SOL_C,
+                     P_H2O_SOL_E, P_STEAM, Y_WATER)
+from .radiation import (atmosphere_mass, condense, escape_rate, net_radiation, radiation_state,  # noqa: F401
+                        volatiles)
+
+#: the grey atmosphere's H2O solubility, X = 6.8e-8 P^0.7 (P in Pa; as used by Lebrun et al. 2013)
+GREY_H2O_COEFF, GREY_H2O_EXPONENT = 6.8e-8, 0.7
 
 # Flags and indices passed between kernels as typed values, not literals: numba compiles one specialization per
 # literal argument value, so ``f(0)`` and ``f(1)`` would compile ``f`` twice (the cold start's cost)
@@ -188,28 +195,6 @@ def radiogenic_power(t, iso, par):
 
 
 @njit
-def _dissolved_residual(m_atm, args):
-    total, melt_mass, coeff, expo, g, area = args
-    p = m_atm * g / area
-    return m_atm + coeff * p ** expo * melt_mass - total
-
-
-@njit
-def atmosphere_mass(total, melt_mass, par, coeff, expo):
-    """Atmospheric mass [kg] of a volatile in solubility equilibrium with the melt.
-
-    Mass balance M_total = M_atm + X(P) M_melt, P = M_atm g / (4 pi R^2), X = coeff P^expo
-    (mass fraction); solved by bisection (monotone in M_atm)."""
-    if total <= 0.0:
-        return 0.0
-    if melt_mass <= 0.0:
-        return total
-    area = 4.0 * math.pi * par[P_RADIUS] ** 2
-    args = (total, melt_mass, coeff, expo, par[P_G_SURF], area)
-    return bisect(_dissolved_residual, args, 0.0, total, 1e-12 * total, 0.0, 60)
-
-
-@njit
 def melt_mass_adiabat(tu, grid, law):
     m = 0.0
     for i in range(grid.shape[1]):
@@ -223,14 +208,9 @@ def grey_emissivity(m_melt, par):
     solubility equilibrium with the melt, X_H2O = 6.8e-8 P^0.7 and X_CO2 = 4.4e-12 P (mass fractions, P in Pa;
     as used by Lebrun et al. 2013), grey optical depth tau_i = (3 M_i / (8 pi R^2)) sqrt(kappa_i g / (3 P0)),
     P0 = 1 atm, kappa_H2O = 0.01, kappa_CO2 = 0.001 m^2/kg, eps = 2 / (tau + 2) (Abe & Matsui 1985;
-    Elkins-Tanton 2008)."""
-    m_h2o = atmosphere_mass(par[P_H2O_TOTAL], m_melt, par, 6.8e-8, 0.7)
-    m_co2 = atmosphere_mass(par[P_CO2_TOTAL], m_melt, par, 4.4e-12, 1.0)
-    area = 4.0 * math.pi * par[P_RADIUS] ** 2
-    tau = 0.0
-    tau += 3.0 * m_h2o / (2.0 * area) * math.sqrt(0.01 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
-    tau += 3.0 * m_co2 / (2.0 * area) * math.sqrt(0.001 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
-    return 2.0 / (tau + 2.0), m_h2o, m_co2
+    Elkins-Tanton 2008). No water lost (see :func:`meltzone._core.radiation.volatiles` for the general form)."""
+    eps, m_h2o, m_co2, _, _ = volatiles(m_melt, 0.0, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par)
+    return eps, m_h2o, m_co2
 
 
 @njit
@@ -342,42 +322,44 @@ def top_layer_thickness(d_conv, ra, solid, par):
 
 
 @njit
-def _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par):
-    """Conductive flux through the top layer minus radiated flux at surface temperature ts [W/m^2]."""
+def _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, rad, par):
+    """Conductive flux through the top layer minus net radiated flux at surface temperature ts [W/m^2]
+    (``rad``: the radiation state of :func:`meltzone._core.radiation.radiation_state`)."""
     if stagnant:
         q_cond = par[P_K] * (tl - ts) / d_lid
     else:
         ra = base * max(tu - ts + max(dtc, 0.0), 1e-6)
         delta_u = top_layer_thickness(d_conv, ra, solid, par)
         q_cond = par[P_K] * (tu - ts) / delta_u
-    return q_cond - eps * STEFAN_BOLTZMANN * (ts ** 4 - par[P_T_EQ] ** 4)
+    return q_cond - net_radiation(ts, rad)
 
 
 @njit
 def _surface_balance_at(ts, args):
-    stagnant, solid, tu, tl, d_lid, d_conv, dtc, base, eps, par = args
-    return _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, eps, par)
+    stagnant, solid, tu, tl, d_lid, d_conv, dtc, base, rad, par = args
+    return _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, rad, par)
 
 
 @njit
-def _top_boundary(stagnant, solid, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
+def _top_boundary(stagnant, solid, tu, tl, d_lid, d_conv, dtc, eta_u, rad, par):
     """(T_s, q_surface, q_u, delta_u) at the top: the surface temperature balances the conductive flux through
-    the top layer (boundary layer, or lid over the boundary layer) with eps sigma (T_s^4 - T_eq^4).
+    the top layer (boundary layer, or lid over the boundary layer) with the net radiation of ``rad``
+    (eps sigma (T_s^4 - T_eq^4) for the bare and grey laws without a star).
 
     delta_u = D_conv (Ra_cr / Ra)^beta with Ra = alpha rho g dT D_conv^3 / (kappa eta_u) and dT the
     temperature contrast driving convection (top layer plus the CMB excess); Illinois root finding on T_s."""
-    t_eq = par[P_T_EQ]
+    t_rad = rad[3]  # where the net radiation vanishes (T_eq without a star)
     t_top = tl if stagnant else tu
-    lo = t_eq
-    hi = max(t_top, t_eq)
+    lo = min(t_rad, t_top)
+    hi = max(t_top, t_rad)
     delta_u = d_conv
     base = par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_SURF] * d_conv ** 3 / (par[P_KAPPA] * eta_u)
     if stagnant:
         ra = base * max(tu - tl + max(dtc, 0.0), 1e-6)
         delta_u = top_layer_thickness(d_conv, ra, solid, par)
     # Illinois (modified regula falsi) on g(T_s) = q_cond - q_rad, which falls monotonically from
-    # g(T_eq) >= 0 to g(T_top) <= 0
-    ts = illinois(_surface_balance_at, (stagnant, solid, tu, tl, d_lid, d_conv, dtc, base, eps, par), lo, hi, 100,
+    # g(T_rad) >= 0 to g(T_top) <= 0 (both ends swap when the star heats the mantle from above)
+    ts = illinois(_surface_balance_at, (stagnant, solid, tu, tl, d_lid, d_conv, dtc, base, rad, par), lo, hi, 100,
                   1e-11, 1e-12)
     if stagnant:
         return ts, par[P_K] * (tl - ts) / d_lid, par[P_K] * (tu - tl) / delta_u, delta_u
@@ -388,9 +370,10 @@ def _top_boundary(stagnant, solid, tu, tl, d_lid, d_conv, dtc, eta_u, eps, par):
 
 
 @njit
-def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
+def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag):
     """Fluxes, boundary layers, surface temperature and regime at (T_u, T_c, lid) and time t; fills ``diag``
-    (D_*). ``t_switch``: when the top of the mantle first reached the rheological transition (NOT_YET before)."""
+    (D_*). ``t_switch``: when the top of the mantle first reached the rheological transition (NOT_YET before);
+    ``lost``: the water lost to space so far [kg]."""
     tu = max(tu, 1.0)
     tc = max(tc, 1.0)
     d_lid = max(d_lid, 0.0)
@@ -436,10 +419,16 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
     else:
         delta_c = 0.5 * depth
         qc = 0.0
-    # grey atmosphere
-    eps, m_h2o, m_co2 = 1.0, 0.0, 0.0
-    if par[P_ATMOSPHERE] > 0.5:
-        eps, m_h2o, m_co2 = grey_emissivity(melt_mass_adiabat(tu, grid, law_i), par)
+    # surface radiation (meltzone._core.radiation): bare, grey or steam, under the absorbed stellar flux
+    eps, m_h2o, m_co2, dissolved, water, m_melt = 1.0, 0.0, 0.0, 0.0, 0.0, 0.0
+    steam = par[P_STEAM] > 0.5
+    if steam or par[P_ATMOSPHERE] > 0.5:
+        m_melt = melt_mass_adiabat(tu, grid, law_i)
+        if steam:
+            eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, par[P_H2O_SOL_C], par[P_H2O_SOL_E], par)
+        else:
+            eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par)
+    rad = radiation_state(t, eps, steam, par)
     # top boundary: the magma ocean (soft-turbulence law) and the solid mantle (the configured law: mobile
     # lid, or the lid over its sublayer in stagnant-lid mode); across the rheological transition
     # (phi_c < phi_top < phi_c + P_BLEND) the two are blended with the same weight as the viscosity,
@@ -447,7 +436,7 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
     w_mo = smoothstep((phi_top - par[P_PHI_C]) / par[P_BLEND])
     ts_m, qs_m, qu_m, du_m = 0.0, 0.0, 0.0, 0.0
     if w_mo > 0.0:
-        ts_m, qs_m, qu_m, du_m = _top_boundary(NO, NO, tu, tu, 0.0, depth, dtc, eta_u, eps, par)
+        ts_m, qs_m, qu_m, du_m = _top_boundary(NO, NO, tu, tu, 0.0, depth, dtc, eta_u, rad, par)
     tl = tu
     ddl_sl = 0.0
     ts_s, qs_s, qu_s, du_s = ts_m, qs_m, qu_m, du_m
@@ -457,14 +446,14 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
             d_eff = max(d_lid, par[P_LID_MIN])
             d_conv = max(depth - d_eff, 0.05 * depth)
             ts_s, qs_s, qu_s, du_s = _top_boundary(YES, solidified, tu, tl, d_eff, d_conv, dtc, eta_s,
-                                                    eps, par)
+                                                    rad, par)
             # rho c (T_u - T_lid,mean) dD/dt = q_lid - q_u: new lid material is cooled from T_u to the mean of
             # the linear lid profile, the same bookkeeping as mantle_energy (with it, the convecting mantle
             # loses exactly q_u at the lid base)
             t_lid_mean = 0.5 * (par[P_T_EQ] + tl)
             ddl_sl = (qs_s - qu_s) / (par[P_RHO_TOP] * par[P_CM] * max(tu - t_lid_mean, 1.0))
         else:
-            ts_s, qs_s, qu_s, du_s = _top_boundary(NO, solidified, tu, tu, 0.0, depth, dtc, eta_s, eps, par)
+            ts_s, qs_s, qu_s, du_s = _top_boundary(NO, solidified, tu, tu, 0.0, depth, dtc, eta_s, rad, par)
     if w_mo <= 0.0:
         ts_m, qs_m, qu_m, du_m = ts_s, qs_s, qu_s, du_s
     qs = w_mo * qs_m + (1.0 - w_mo) * qs_s
@@ -495,10 +484,22 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
     diag[D_ETA_C] = eta_c
     diag[D_TB] = tb
     diag[D_EPS] = eps
-    diag[D_ATM_H2O] = m_h2o
     diag[D_ATM_CO2] = m_co2
     diag[D_RB] = r_b
     diag[D_MB] = m_b
+    ocean = 0.0
+    if steam:  # condensation at the surface temperature found (the radiation used the vapour before it)
+        m_h2o, ocean, dissolved = condense(ts, water, m_melt, m_h2o, dissolved, par)
+    area = 4.0 * math.pi * par[P_RADIUS] ** 2
+    diag[D_ATM_H2O] = m_h2o
+    diag[D_ABS] = STEFAN_BOLTZMANN * rad[2]
+    diag[D_OLR] = qs + diag[D_ABS]
+    diag[D_OCEAN] = ocean
+    diag[D_DISSOLVED] = dissolved
+    diag[D_LOST] = lost
+    diag[D_P_H2O] = m_h2o * par[P_G_SURF] / area
+    diag[D_P_CO2] = m_co2 * par[P_G_SURF] / area
+    diag[D_ESCAPE] = escape_rate(t, m_h2o, ocean, par) if water > 0.0 else 0.0
 
 
 @njit
@@ -506,7 +507,7 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     """dy/dt at (t, y); also fills ``diag`` and leaves (T_u, T_c) in ``work``."""
     tu, tc = temperatures(y, grid, core, par, law, work)
     d_lid = y[Y_LID]
-    diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag)
+    diagnose(t, tu, tc, d_lid, t_switch, y[Y_WATER], grid, core, iso, par, law, diag)
     area_s = 4.0 * math.pi * par[P_RADIUS] ** 2
     area_c = 4.0 * math.pi * diag[D_RB] ** 2  # the core's radius, or the basal ocean's top
     q_surf = diag[D_QS] * area_s
@@ -533,6 +534,7 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
         dy[Y_EC] = -q_cmb
     dy[Y_LID] = ddl
     dy[Y_OUT] = q_surf - heat
+    dy[Y_WATER] = diag[D_ESCAPE]
 
 
 @njit(inline="always")
@@ -580,7 +582,7 @@ def profile(tu, tc, d_lid, diag, grid, par, law, temp, phi):
 
 
 @njit
-def profile_at(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, temp, phi, diag):
-    """T(r), phi(r) and diagnostics at given temperatures (snapshots and event refinement)."""
-    diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag)
+def profile_at(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, temp, phi, diag):
+    """T(r), phi(r) and diagnostics at given temperatures and water lost (snapshots and event refinement)."""
+    diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag)
     profile(tu, tc, d_lid, diag, grid, par, law, temp, phi)

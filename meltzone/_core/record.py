@@ -15,6 +15,8 @@ from .layout import (D_ATM_CO2, D_ATM_H2O, D_DELTA_C, D_DELTA_U, D_H, D_PHI_TOP,
                      H_TU, I_BOTTOM, I_FULL_BOTTOM, I_FULL_TOP, I_MASS, I_MAX_PHI, I_MEAN_PHI, I_STEP, I_TOP,
                      P_RADIUS, P_STAGNANT, REGIME_STAGNANT_LID, Y_EC, Y_LID, Y_OUT)
 from .layout import D_RB, H_BMO, P_CORE_RADIUS
+from .layout import (D_ABS, D_DISSOLVED, D_OCEAN, D_OLR, D_P_CO2, D_P_H2O, H_ABS, H_DISSOLVED, H_LOST, H_OCEAN,
+                     H_OLR, H_P_CO2, H_P_H2O, Y_WATER)
 from .physics import basal_ocean, core_energy, mantle_energy, profile, temperature_rates
 
 
@@ -103,4 +105,11 @@ def record(t, y, tu, tc, dy, diag, grid, core, par, law, hist, temps, phis, n_h,
     hist[n_h, H_ATM_CO2] = diag[D_ATM_CO2]
     hist[n_h, H_N_IV] = n_iv_new - n_iv
     hist[n_h, H_BMO] = diag[D_RB] - par[P_CORE_RADIUS]
+    hist[n_h, H_ABS] = diag[D_ABS]
+    hist[n_h, H_OLR] = diag[D_OLR]
+    hist[n_h, H_OCEAN] = diag[D_OCEAN]
+    hist[n_h, H_DISSOLVED] = diag[D_DISSOLVED]
+    hist[n_h, H_LOST] = y[Y_WATER]
+    hist[n_h, H_P_H2O] = diag[D_P_H2O]
+    hist[n_h, H_P_CO2] = diag[D_P_CO2]
     return n_iv_new

@@ -148,6 +148,7 @@ def _node_weights(r: np.ndarray, m: np.ndarray, m_bottom: float, m_top: float) -
 def build_inputs(spec, interior, curves):
     """The core's inputs (:class:`~meltzone._core.layout.KernelInputs`) for a spec, its interior and the
     melting curves on the mantle nodes (:func:`meltzone.melting.node_curves`)."""
+    from ..star import fill_parameters
     from .heating import isotope_table
 
     it = interior
@@ -226,6 +227,7 @@ def build_inputs(spec, interior, curves):
     par[k.P_BMO_DEP] = mt.basal_melt_depression_k
     par[k.P_BMO_ENRICH] = mt.basal_melt_enrichment_k
     par[k.P_BMO_MREF] = mt.basal_ocean_reference_fraction * it.mantle_mass
+    fill_parameters(spec, it, par)  # star, steam atmosphere, water, escape (meltzone.star)
     iso = isotope_table(spec.heating.radiogenic_scale)
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
@@ -253,7 +255,7 @@ def initial_state(spec, inputs) -> np.ndarray:
     lid = LID_MIN if inputs.par[k.P_STAGNANT] > 0.5 else 0.0
     y = np.zeros(k.N_Y)
     energy_state(tu, tc, lid, 0.0, inputs.grid, inputs.core, inputs.par, inputs.law, y)
-    state[k.S_Y:k.S_Y + k.N_Y] = y
+    state[k.S_Y:k.S_Y + k.Y_WATER] = y[:k.Y_WATER]  # the water lost (0) has its own slot
     state[k.S_H] = 1.0  # [s]; the controller grows it
     state[k.S_TU] = tu
     state[k.S_TC] = tc
@@ -363,6 +365,7 @@ class Evaluator:
                      (h["core_temperature"], h["core_temperature_rate"]),
                      (h["lid_thickness"], h["lid_rate"])]
         self.stagnant = self.inputs.par[k.P_STAGNANT] > 0.5
+        self.lost = h["water_lost"] if "water_lost" in h else np.zeros_like(h.time)
         switch = h.switch_times.get(SWITCH)
         self.t_switch = k.NOT_YET if switch is None else float(switch)
 
@@ -389,7 +392,8 @@ class Evaluator:
         temp = np.empty(n)
         phi = np.empty(n)
         diag = np.empty(k.N_D)
-        profile_at(float(t), tu, tc, lid, self.t_switch, grid, core, iso, par, law, temp, phi, diag)
+        lost = float(np.interp(t, self.t, self.lost))  # the water lost, linear inside the step
+        profile_at(float(t), tu, tc, lid, self.t_switch, lost, grid, core, iso, par, law, temp, phi, diag)
         return InStep(temperature=temp, melt_fraction=phi, regime_melt_fraction=float(diag[k.D_PHI_TOP]),
                       centre_freezing_margin_k=float(core[k.C_TMELT, 0] - tc * core[k.C_F, 0]))
 

@@ -46,6 +46,14 @@ SERIES = {
     "core_temperature_rate": ("K/s", "dT_c/dt", False),
     "lid_rate": ("m/s", "d(lid)/dt", False),
     "basal_ocean_thickness": ("m", "thickness of the basal magma ocean between core and solid mantle (0: none)", False),
+    "absorbed_flux": ("W/m^2", "absorbed stellar flux per unit surface (sigma T_eq^4 without a star)", False),
+    "outgoing_radiation": ("W/m^2", "outgoing radiation at the top of the atmosphere (net surface loss + absorbed "
+                           "flux)", False),
+    "water_ocean": ("kg", "water condensed in a surface ocean", False),
+    "water_dissolved": ("kg", "water dissolved in the melt", False),
+    "water_lost": ("kg", "water lost to space (escape of its hydrogen)", False),
+    "pressure_h2o": ("Pa", "partial pressure of H2O at the surface (its column weight)", False),
+    "pressure_co2": ("Pa", "partial pressure of CO2 at the surface (its column weight)", False),
 }
 
 REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID, REGIME_STAGNANT_LID = 0, 1, 2

@@ -1,0 +1,198 @@
+"""Surface radiation and water in the core: the grey and bare laws, the steam atmosphere with its radiation
+limit, water dissolved in the melt, condensed to an ocean and lost to space.
+
+Both schemes' surface balances call :func:`net_radiation` with a radiation state ``rad`` = (law, emissivity,
+absorbed flux / sigma [K^4], radiating temperature [K]) made once per evaluation by :func:`radiation_state`;
+the absorbed stellar flux comes from :func:`meltzone._core.star.absorbed_flux_t4` alone.
+
+* law 0 (``"none"``, ``"grey"``): net = eps sigma (T_s^4 - F_abs / sigma) (Abe & Matsui 1985, JGR 90:C545;
+  Elkins-Tanton 2008, EPSL 271:181; from memory), eps = 2 / (tau + 2), tau_i = (3 M_i / (8 pi R^2))
+  sqrt(kappa_i g / (3 P0)), kappa_H2O = 0.01, kappa_CO2 = 0.001 m^2/kg (from memory);
+* law 1 (``"steam"``): outgoing = max(OLR_steam(T_s), eps sigma T_s^4), net = outgoing - F_abs. OLR_steam is the
+  runaway-greenhouse limit F_lim = 282 W/m^2 (Goldblatt et al. 2013, Nature Geosci. 6:661, abstract checked)
+  joined smoothly to sigma T_s^4 at low T_s, ((sigma T_s^4)^-4 + F_lim^-4)^(-1/4), times 1 + (T_s / T_w)^k
+  with T_w = 1800 K and k = 20 for the near-infrared window that opens at high T_s (the limit holds from
+  ~400 K to ~1600-1800 K, Goldblatt et al. 2013, Fig. 1; Goldblatt & Watson 2012, Phil. Trans. A 370:4197
+  give ~1400 K; the window's form, T_w and k are this model's choice, a shape after those figures from
+  memory, not a fit to tabulated values), at most sigma T_s^4. The grey term takes over once escape has
+  thinned the steam (an optically thin atmosphere radiates like the grey law); this model's choice;
+* water (law 1): H2O dissolves in the melt as X = 647 ppmw (p / 1 bar)^0.5 (Sossi et al. 2023, EPSL 601:117894,
+  peridotite liquids at 2173 K and 1 bar, f_H2O < 0.03 bar, with the peridotite-glass absorption coefficient;
+  524 ppmw with the basaltic one; abstract checked; used here far above its pressures), CO2 as the grey law's
+  X = 4.4e-12 P; each gas's partial pressure is its own column weight M_i g / (4 pi R^2) (as the grey law).
+  The melt is the adiabat's (boundary-layer scheme) or the cells' (mixing-length scheme); water is returned
+  to the atmosphere as the melt crystallises (none is kept in the solids). Where T_s is below the saturation
+  temperature of the vapour's pressure (and below the critical point, 647.096 K), vapour condenses until
+  p_H2O = p_sat(T_s): the rest, less the dissolved water, is the surface ocean. p_sat: Wagner & Pruss 1993,
+  J. Phys. Chem. Ref. Data 22:783 (IAPWS saturation-pressure equation, 273.16-647.096 K; from memory; it
+  gives 101.3 kPa at 373.12 K, tested). The radiation uses the vapour before condensation (not iterated);
+* escape (with a star; grey or steam atmosphere): energy-limited escape of hydrogen, dM_H/dt = eta pi R^3 F_XUV / (G M) (Watson, Donahue &
+  Walker 1981, Icarus 48:150; Lammer et al. 2003, ApJ 598:L121; from memory) with F_XUV = L_XUV / (4 pi a^2)
+  and the planet's radius for the absorbing radius; water is lost at 9 times the hydrogen's mass (H2O per
+  2 H) while vapour is in the atmosphere and no ocean has condensed (a cold trap then holds the water,
+  Hamano et al. 2013, Nature 497:607, from memory). The oxygen stays behind and is taken up by the magma
+  ocean (oxidising it; as Hamano et al. 2013 assume, checked in their institute's summary); it is not tracked.
+"""
+
+from __future__ import annotations
+
+import math
+
+from ..constants import (STANDARD_ATMOSPHERE, STEFAN_BOLTZMANN, WATER_CRITICAL_PRESSURE,
+                         WATER_CRITICAL_TEMPERATURE)
+from ._jit import njit
+from .layout import (P_CO2_TOTAL, P_ESCAPE, P_G_SURF, P_H2O_SOL_C, P_H2O_SOL_E, P_H2O_TOTAL, P_RADIUS, P_STAR,
+                     P_T_EQ)
+from .roots import bisect
+from .star import absorbed_flux_t4, xuv_luminosity
+
+#: runaway-greenhouse limit of the outgoing longwave radiation [W/m^2] (Goldblatt et al. 2013)
+RADIATION_LIMIT = 282.0
+#: surface temperature [K] around which the near-infrared window opens, and the steepness (this model's choice)
+WINDOW_TEMPERATURE = 1800.0
+WINDOW_EXPONENT = 20.0
+#: exponent of the smooth minimum of sigma T^4 and the limit (this model's choice)
+JOIN_EXPONENT = 4.0
+#: the IAPWS saturation-pressure coefficients a1..a6 (Wagner & Pruss 1993; from memory)
+SAT_A = (-7.85951783, 1.84408259, -11.7866497, 22.6807411, -15.9618719, 1.80122502)
+#: bracket of the radiating temperature of the steam law [K]
+T_RAD_LO, T_RAD_HI = 1.0, 1.0e5
+LAW_GREY, LAW_STEAM = 0.0, 1.0
+
+
+@njit
+def _dissolved_residual(m_atm, args):
+    total, melt_mass, coeff, expo, g, area = args
+    p = m_atm * g / area
+    return m_atm + coeff * p ** expo * melt_mass - total
+
+
+@njit
+def atmosphere_mass(total, melt_mass, par, coeff, expo):
+    """Atmospheric mass [kg] of a volatile in solubility equilibrium with the melt.
+
+    Mass balance M_total = M_atm + X(P) M_melt, P = M_atm g / (4 pi R^2), X = coeff P^expo
+    (mass fraction); solved by bisection (monotone in M_atm)."""
+    if total <= 0.0:
+        return 0.0
+    if melt_mass <= 0.0:
+        return total
+    area = 4.0 * math.pi * par[P_RADIUS] ** 2
+    args = (total, melt_mass, coeff, expo, par[P_G_SURF], area)
+    return bisect(_dissolved_residual, args, 0.0, total, 1e-12 * total, 0.0, 60)
+
+
+@njit
+def emissivity_of(m_h2o, m_co2, par):
+    """Grey emissivity eps = 2 / (tau + 2) of an atmosphere holding m_h2o and m_co2 [kg] (see the module)."""
+    area = 4.0 * math.pi * par[P_RADIUS] ** 2
+    tau = 0.0
+    tau += 3.0 * m_h2o / (2.0 * area) * math.sqrt(0.01 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
+    tau += 3.0 * m_co2 / (2.0 * area) * math.sqrt(0.001 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
+    return 2.0 / (tau + 2.0)
+
+
+@njit
+def olr_steam(ts):
+    """Outgoing longwave radiation [W/m^2] of a thick steam atmosphere over a surface at ts [K] (the module)."""
+    bb = STEFAN_BOLTZMANN * ts ** 4
+    joined = (bb ** -JOIN_EXPONENT + RADIATION_LIMIT ** -JOIN_EXPONENT) ** (-1.0 / JOIN_EXPONENT)
+    return min(joined * (1.0 + (ts / WINDOW_TEMPERATURE) ** WINDOW_EXPONENT), bb)
+
+
+@njit
+def outgoing(ts, rad):
+    """The radiation law's emitted part [W/m^2] at surface temperature ts (law 0: eps sigma T_s^4)."""
+    if rad[0] > 0.5:
+        return max(olr_steam(ts), rad[1] * STEFAN_BOLTZMANN * ts ** 4)
+    return rad[1] * STEFAN_BOLTZMANN * ts ** 4
+
+
+@njit
+def net_radiation(ts, rad):
+    """Net radiation [W/m^2] leaving a surface at ts [K]: emitted minus absorbed (the module's laws)."""
+    if rad[0] > 0.5:
+        return outgoing(ts, rad) - STEFAN_BOLTZMANN * rad[2]
+    return rad[1] * STEFAN_BOLTZMANN * (ts ** 4 - rad[2])
+
+
+@njit
+def _net_at(ts, rad):
+    return net_radiation(ts, rad)
+
+
+@njit
+def radiation_state(t, eps, steam, par):
+    """(law, eps, absorbed flux / sigma [K^4], radiating temperature [K]) at model time t: the radiating
+    temperature is where the net radiation vanishes (T_eq itself without a star and without steam)."""
+    f4 = absorbed_flux_t4(t, par)
+    if steam:
+        rad = (LAW_STEAM, eps, f4, 0.0)
+        return (LAW_STEAM, eps, f4, bisect(_net_at, rad, T_RAD_LO, T_RAD_HI, 1e-9, 1e-13, 200))
+    if par[P_STAR] > 0.5:
+        return (LAW_GREY, eps, f4, f4 ** 0.25)
+    return (LAW_GREY, eps, f4, par[P_T_EQ])
+
+
+@njit
+def saturation_pressure(t):
+    """Saturation vapour pressure of water [Pa] at t [K] (Wagner & Pruss 1993; 273.16-647.096 K; the critical
+    pressure above the critical temperature)."""
+    tc = WATER_CRITICAL_TEMPERATURE
+    if t >= tc:
+        return WATER_CRITICAL_PRESSURE
+    tau = 1.0 - t / tc
+    a = SAT_A
+    s = (a[0] * tau + a[1] * tau ** 1.5 + a[2] * tau ** 3 + a[3] * tau ** 3.5 + a[4] * tau ** 4
+         + a[5] * tau ** 7.5)
+    return WATER_CRITICAL_PRESSURE * math.exp(tc / t * s)
+
+
+@njit
+def _sat_residual(t, p):
+    return saturation_pressure(t) - p
+
+
+@njit
+def saturation_temperature(p):
+    """Temperature [K] at which water's vapour pressure is p [Pa] (the critical temperature at or above the
+    critical pressure); bisection, saturation_pressure rises with t."""
+    if p >= WATER_CRITICAL_PRESSURE:
+        return WATER_CRITICAL_TEMPERATURE
+    return bisect(_sat_residual, p, 150.0, WATER_CRITICAL_TEMPERATURE, 1e-9, 0.0, 100)
+
+
+@njit
+def volatiles(m_melt, lost, coeff, expo, par):
+    """(eps, M_H2O vapour, M_CO2, M_H2O dissolved, M_H2O left) [kg] before condensation: the water left
+    (inventory less the escaped) in solubility equilibrium with ``m_melt`` of melt, X_H2O = coeff P^expo
+    (the steam atmosphere's Sossi et al. 2023 law, or the grey law's 6.8e-8 P^0.7), CO2 as X = 4.4e-12 P."""
+    water = max(par[P_H2O_TOTAL] - lost, 0.0)
+    m_h2o = atmosphere_mass(water, m_melt, par, coeff, expo)
+    m_co2 = atmosphere_mass(par[P_CO2_TOTAL], m_melt, par, 4.4e-12, 1.0)
+    return emissivity_of(m_h2o, m_co2, par), m_h2o, m_co2, water - m_h2o, water
+
+
+@njit
+def condense(ts, water, m_melt, m_h2o, dissolved, par):
+    """(vapour, ocean, dissolved) [kg] at surface temperature ts: where ts is below the saturation temperature
+    of the vapour's pressure, the vapour falls to p_sat(ts) and the melt holds the solubility at that pressure;
+    the rest of the water is the ocean."""
+    area = 4.0 * math.pi * par[P_RADIUS] ** 2
+    g = par[P_G_SURF]
+    p = m_h2o * g / area
+    if ts >= WATER_CRITICAL_TEMPERATURE or m_h2o <= 0.0 or p <= saturation_pressure(ts):
+        return m_h2o, 0.0, dissolved
+    p_sat = saturation_pressure(ts)
+    vapour = p_sat * area / g
+    melt_part = min(par[P_H2O_SOL_C] * p_sat ** par[P_H2O_SOL_E] * m_melt, water - vapour)
+    return vapour, max(water - vapour - melt_part, 0.0), melt_part
+
+
+@njit
+def escape_rate(t, m_h2o, ocean, par):
+    """Water lost to space [kg/s] at model time t (energy-limited escape of its hydrogen; 0 without a star,
+    without vapour or under an ocean)."""
+    if par[P_STAR] < 0.5 or m_h2o <= 0.0 or ocean > 0.0:
+        return 0.0
+    return par[P_ESCAPE] * xuv_luminosity(t, par)
