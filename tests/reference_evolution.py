@@ -212,15 +212,18 @@ def build_inputs(spec, interior=None):
     return phys, mantle, core
 
 
-def initial_temperatures(spec, mantle):
+def initial_temperatures(spec, mantle, core=None):
     """(T_u, T_c) at the start: the configured values, or by default 50 K above the liquidus at every node
-    (T_u = max(T_liq / f) + 50 K) and the core the mantle adiabat at the CMB plus the initial CMB jump."""
+    (T_u = max(T_liq / f) + 50 K) and the core the mantle adiabat at the CMB plus the initial CMB jump, but
+    at least 50 K above the iron curve at every core node (T_c >= max(T_m / f_core) + 50 K)."""
     tu = spec.initial.upper_temperature_k
     if tu <= 0.0:
         tu = float(np.max(mantle.liquidus / mantle.adiabat)) + 50.0
     tc = spec.initial.core_temperature_k
     if tc <= 0.0:
         tc = tu * mantle.adiabat[0] + spec.initial.initial_cmb_jump_k
+        if core is not None:
+            tc = max(tc, float(np.max(core.melting / core.adiabat)) + 50.0)
     return tu, tc
 
 
@@ -520,7 +523,7 @@ class ReferenceModel:
         nfev."""
         t_eval = np.asarray(t_eval, dtype=float)
         ph = self.ph
-        tu0, tc0 = initial_temperatures(self.spec, self.mantle)
+        tu0, tc0 = initial_temperatures(self.spec, self.mantle, self.core)
         self._guess = [tu0, tc0]
         d0 = LID_MIN if ph.stagnant_lid else 0.0
         y0 = self.state(tu0, tc0, d0)

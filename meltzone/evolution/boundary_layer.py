@@ -230,16 +230,25 @@ def build_inputs(spec, interior, curves):
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
 
+#: Margin of the default (fully molten) start above the melting curves, mantle and core [K] (this model's choice).
+MOLTEN_MARGIN_K = 50.0
+
+
 def initial_temperatures(spec, inputs) -> tuple[float, float]:
     """(T_u, T_c) at the start: by default 50 K above the liquidus at every mantle node (fully molten),
-    and the core the mantle adiabat at the CMB plus ``initial.initial_cmb_jump_k``."""
-    grid = inputs.grid
+    and the core the mantle adiabat at the CMB plus ``initial.initial_cmb_jump_k``, but at least 50 K above
+    the core alloy's melting curve at every core node, so that the default start is molten in the core too
+    (no inner core at t = 0). The floor matters only where the core adiabat meets a steeper iron curve
+    above the mantle's liquidus at the CMB (measured: from ~13 M_E at core fraction 0.325)."""
+    grid, core = inputs.grid, inputs.core
     tu = spec.initial.upper_temperature_k
     if tu <= 0.0:
-        tu = float(np.max(grid[k.G_TLIQ] / grid[k.G_F])) + 50.0
+        tu = float(np.max(grid[k.G_TLIQ] / grid[k.G_F])) + MOLTEN_MARGIN_K
     tc = spec.initial.core_temperature_k
     if tc <= 0.0:
         tc = tu * grid[k.G_F, 0] + spec.initial.initial_cmb_jump_k
+        if core[k.C_W].sum() > 0.0:
+            tc = max(tc, float(np.max(core[k.C_TMELT] / core[k.C_F])) + MOLTEN_MARGIN_K)
     return float(tu), float(tc)
 
 
