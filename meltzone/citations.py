@@ -84,6 +84,9 @@ REGISTRY = {
     "kraus2022": Citation("iron melting measured to 1000 GPa by laser shock (range checked in the abstract; the points "
                           "the Anzellini fit is held to, 556 GPa / 8085 K and 991 GPa / 10766 K, from memory)",
                           "Kraus et al. 2022, Science 375:202", MEMORY),
+    "latent_scaling": Citation("inner-core latent heat L(P) = L_ICB T_m(P) / T_m(330 GPa): a constant entropy of "
+                               "melting (ab initio iron, Alfe et al. 2002, PRB 65:165118)", "core.core_latent_heat",
+                               MEMORY),
     "alfe2003": Citation("light-element depression of the core's melting curve (~-700 K at the ICB; pure iron "
                          "6350 +- 600 K there)", "Alfe, Price & Gillan 2003, Mineral. Mag. 67:113 (abstract)",
                          CHECKED),
@@ -128,7 +131,7 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     cv = spec.convection
     keys = ["tosi2017", "stevenson1983", "dormand1980", "mei2002", "abe1997", "solomatov2015", "roscoe1952",
             "lejeune1995", "karki2010", "rheology_blend", "mckenzie1988", "labrosse2015", "anzellini2013",
-            "alfe2003", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
+            "alfe2003", "latent_scaling", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
     if cv.activation_volume_decay_pa > 0.0:
         keys.append("activation_volume_decay")
     if cv.beta != 1.0 / 3.0 or cv.nusselt_prefactor != 1.0:
@@ -147,7 +150,8 @@ def mixing_length_keys(spec) -> tuple[str, ...]:
     """Registry keys of the laws a mixing-length run of ``spec`` uses."""
     keys = ["tosi2017", "abe1997_mlt", "bower2018", "two_phase_adiabat", "patankar1980", "stevenson1983",
             "mei2002", "abe1997", "solomatov2015", "roscoe1952", "lejeune1995", "karki2010", "rheology_blend",
-            "labrosse2015", "anzellini2013", "alfe2003", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
+            "labrosse2015", "anzellini2013", "alfe2003", "latent_scaling", "turcotte_schubert", "mcdonough1995",
+            "mcdonough2020"]
     if spec.convection.activation_volume_decay_pa > 0.0:
         keys.append("activation_volume_decay")
     if spec.convection.regime == "mobile-lid":

@@ -39,6 +39,9 @@ ANZELLINI2013_TRIPLE_POINT_GPA = 98.5
 #: Top of the static experiments behind the fit [Pa]: Anzellini et al. 2013 reached 200 GPa (checked in the
 #: paper's summary; their 330 GPa value is an extrapolation). Earth's inner core (330-364 GPa) lies beyond.
 IRON_STATIC_MAX_PA = 200.0 * GPA
+#: Pressure of Earth's inner-core boundary [Pa], where the core's latent heat is given (PREM: 329 GPa,
+#: Dziewonski & Anderson 1981; the round value of Anzellini et al. 2013).
+EARTH_ICB_PRESSURE_PA = 330.0 * GPA
 #: Top of the laser-shock melting data on iron [Pa]: 1000 GPa (Kraus et al. 2022, Science 375:202, checked
 #: against the abstract); the Anzellini et al. 2013 fit is not fitted to them (see the module).
 IRON_SHOCK_MAX_PA = 1000.0 * GPA

@@ -62,3 +62,54 @@ def test_no_inner_core_at_the_start_of_a_default_run():
     assert r.history["inner_core_radius"][0] == 0.0
     nucleation = r.summary()["inner_core_nucleation_yr"]
     assert nucleation is not None and nucleation > 0.0
+
+
+def test_inner_core_heat_follows_the_melting_temperature():
+    """Latent heat at a constant entropy of melting (Clausius-Clapeyron with Richards' rule; from memory):
+    L(P) = L_ICB T_m(P) / T_m(330 GPa). The kernel's released heat grows with the inner core's mass at
+    L(P) + E_g per kg: near Earth's ICB (330 GPa) at the configured 7.5e5 + 3e5 J/kg (tolerance 1%: one core
+    interval), at the centre of 10 M_E about 4x that latent heat (its T_m is 4.1x Earth's ICB value);
+    and it equals the plain reference (tests/reference_evolution.py, its own node masses) to 1e-3."""
+    import reference_evolution as ref
+
+    from meltzone._core import layout as k
+    from meltzone._core.inner_core import inner_core_heat
+    from meltzone.interior import build_interior
+
+    for mass in (1.0, 10.0):
+        spec, inputs = _inputs(mass)
+        core = inputs.core
+        per_kg = np.diff(core[k.C_EIC]) / np.diff(core[k.C_MCUM])
+        t_mid = 0.5 * (core[k.C_TMELT, 1:] + core[k.C_TMELT, :-1])
+        t_icb = iron.iron_melting_temperature(330 * GPA, spec.melting.core_melting_depression_k)
+        latent = per_kg - spec.core.gravitational_energy
+        np.testing.assert_allclose(latent, spec.core.core_latent_heat * t_mid / t_icb, rtol=1e-12)
+        if mass == 1.0:
+            icb = int(np.argmin(np.abs(core[k.C_R, 1:] - 1221.5e3)))
+            assert per_kg[icb] == pytest.approx(7.5e5 + 3.0e5, rel=0.01)
+        else:
+            assert latent[0] / spec.core.core_latent_heat == pytest.approx(t_mid[0] / t_icb, rel=1e-12)
+            assert 3.5 < latent[0] / spec.core.core_latent_heat < 4.5
+        ph, _, core_ref = ref.build_inputs(spec, build_interior(spec))
+        for tc in np.linspace(0.7, 1.0, 7) * float(np.max(core[k.C_TMELT] / core[k.C_F])):
+            m_ic = ref.inner_core(tc, core_ref)[1]
+            assert inner_core_heat(tc, core) == pytest.approx(ref.inner_core_release(m_ic, ph, core_ref), rel=1e-3)
+
+
+def test_run_file_without_the_inner_core_heat_row(tmp_path):
+    """A run written before the inner core's heat row (a core array of 5 rows) still evaluates inside a step:
+    the row is rebuilt with the law those files used, (L + E_g) x enclosed mass (common practice: old files keep
+    loading). Checked on Earth to 4.5 Gyr, which has an inner core at its end."""
+    from meltzone._core import layout as k
+    from meltzone.evolution.boundary_layer import Evaluator, complete_core
+
+    r = evolve(PlanetSpec(mass_earth=1.0, end_time_gyr=4.5))
+    h = r.history
+    assert h["inner_core_radius"][-1] > 0.0
+    old = np.ascontiguousarray(h.scheme_data["core"][:k.C_EIC])
+    par = h.scheme_data["par"]
+    rebuilt = complete_core(old, par)
+    np.testing.assert_allclose(rebuilt[k.C_EIC], (par[k.P_LC] + par[k.P_EG]) * old[k.C_MCUM], rtol=1e-15)
+    h.scheme_data["core"] = old
+    inside = 0.5 * (h.time[-2] + h.time[-1])
+    assert np.all(np.isfinite(Evaluator(h).at(inside).temperature))

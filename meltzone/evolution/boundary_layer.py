@@ -66,7 +66,9 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   after the magma ocean (an upper bound on the blanketing);
 * core: adiabatic core of temperature T_c f_core(r), an inner core where it falls
   below the iron-alloy melting curve, releasing latent and gravitational energy
-  (Stevenson et al. 1983; Labrosse 2015, PEPI 247:36);
+  (Stevenson et al. 1983; Labrosse 2015, PEPI 247:36); the latent heat scales with
+  the alloy's melting temperature at the inner core's edge (constant entropy of
+  melting, :func:`inner_core_heat_row`), ~4x Earth's at the centre of a 10 M_E core;
 * basal magma ocean (``melting.basal_magma_ocean = "reservoir"``, experimental and off by default; Labrosse, Hernlund & Coltice
   2007, Nature 450:866; parameterised models: Blanc, Stegman & Ziegler 2020, EPSL 534; O'Rourke 2020, GRL 47;
   abstracts seen, details from memory): a well-mixed melt layer on the core at the core's temperature T_c.
@@ -125,7 +127,7 @@ import numpy as np
 from .._core import layout as k
 from ..constants import GYR, MYR, YEAR
 from ..errors import ConvergenceError
-from ..iron import iron_melting_temperature
+from ..iron import EARTH_ICB_PRESSURE_PA, iron_melting_temperature
 from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid
 from .schemes import Scheme
 
@@ -143,6 +145,19 @@ def _node_weights(r: np.ndarray, m: np.ndarray, m_bottom: float, m_top: float) -
     m_mid = np.interp(mid, r, m)
     edges = np.concatenate([[m_bottom], m_mid, [m_top]])
     return np.diff(edges)
+
+
+def inner_core_heat_row(enclosed_mass, melting_k, latent_ref, gravitational, melting_ref_k):
+    """Heat [J] released by an inner core grown to each core node: the integral over its mass of the latent heat
+    L(P) + the gravitational energy E_g (both J/kg). L = L_ref T_m(P) / T_m,ref: the entropy of melting
+    L / T_m is held at its value at Earth's ICB (``core.core_latent_heat`` at 330 GPa), so the latent heat grows
+    with the alloy's melting temperature (Clausius-Clapeyron at a constant entropy of fusion, Richards' rule;
+    ab initio entropies of melting of iron vary little along the curve, Alfe et al. 2002, PRB 65:165118; from
+    memory). Each interval between nodes uses the mean of its two nodes' T_m; E_g is constant (as configured)."""
+    m = np.asarray(enclosed_mass, dtype=float)
+    t_mid = 0.5 * (melting_k[1:] + melting_k[:-1])
+    per_kg = latent_ref * t_mid / melting_ref_k + gravitational
+    return np.concatenate([[0.0], np.cumsum(np.diff(m) * per_kg)])
 
 
 def build_inputs(spec, interior, curves):
@@ -172,6 +187,10 @@ def build_inputs(spec, interior, curves):
         core[k.C_W] = _node_weights(it.r[cs], it.m[cs], 0.0, it.core_mass)
         core[k.C_TMELT] = iron_melting_temperature(it.P[cs], spec.melting.core_melting_depression_k)
         core[k.C_MCUM] = it.m[cs]
+        depression = spec.melting.core_melting_depression_k
+        core[k.C_EIC] = inner_core_heat_row(core[k.C_MCUM], core[k.C_TMELT], spec.core.core_latent_heat,
+                                            spec.core.gravitational_energy,
+                                            float(iron_melting_temperature(EARTH_ICB_PRESSURE_PA, depression)))
     else:  # coreless planet: a dummy core without heat capacity that never freezes
         core[k.C_F] = 1.0
         core[k.C_W] = 0.0
@@ -345,6 +364,15 @@ def run(spec, interior, curves, progress=None, *, history_rows=4096, interval_ro
     return history
 
 
+def complete_core(core, par):
+    """The core array of a run file written before the inner core's heat row: that row added with the law those
+    files used, (L + E_g) x enclosed mass (constant latent heat)."""
+    if core.shape[0] >= k.N_C:
+        return core
+    row = (par[k.P_LC] + par[k.P_EG]) * core[k.C_MCUM]
+    return np.ascontiguousarray(np.vstack([core, row[None, :]]))
+
+
 def _hermite(t, t0, t1, y0, y1, d0, d1):
     h = t1 - t0
     s = (t - t0) / h
@@ -365,6 +393,7 @@ class Evaluator:
                                                                                               "par"))
         if len(par) < k.N_PAR:  # a file written before the basal-ocean parameters: zeros, i.e. no basal ocean
             par = np.concatenate([par, np.zeros(k.N_PAR - len(par))])
+        core = complete_core(core, par)
         self.inputs = k.KernelInputs(grid, core, iso, par, int(d["law"]))
         h = history
         self.t = h.time
