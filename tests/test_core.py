@@ -113,3 +113,22 @@ def test_run_file_without_the_inner_core_heat_row(tmp_path):
     h.scheme_data["core"] = old
     inside = 0.5 * (h.time[-2] + h.time[-1])
     assert np.all(np.isfinite(Evaluator(h).at(inside).temperature))
+
+
+def test_inner_core_grows_where_the_core_adiabat_crosses_the_melting_curve():
+    """The inner core is where the core adiabat T_c f(r) lies below the alloy's curve (Stevenson et al. 1983;
+    common practice): none above T_c = T_m(centre) / f(centre), a nucleus just below it, and at
+    T_c = T_m(r) / f(r) for r = 1221.5 km a radius of 1221.5 km (tolerance 2 km: both curves are linear between
+    core nodes, ~55 km apart). Earth needs T_c = 4213 K at the CMB for PREM's inner core (measured)."""
+    from meltzone._core import layout as k
+    from meltzone._core.physics import inner_core
+
+    spec, inputs = _inputs(1.0)
+    core = inputs.core
+    t_nucleate = core[k.C_TMELT, 0] / core[k.C_F, 0]
+    assert inner_core(t_nucleate + 0.01, core)[0] == 0.0
+    assert 0.0 < inner_core(t_nucleate - 0.01, core)[0] < 100e3
+    r = core[k.C_R]
+    t_prem = np.interp(1221.5e3, r, core[k.C_TMELT]) / np.interp(1221.5e3, r, core[k.C_F])
+    assert inner_core(t_prem, core)[0] == pytest.approx(1221.5e3, abs=2e3)
+    assert t_prem == pytest.approx(4213.0, abs=5.0)
