@@ -75,14 +75,21 @@ REGISTRY = {
     "elkins_tanton2008": Citation("grey atmosphere over a magma ocean", "Elkins-Tanton 2008, EPSL 271:181", MEMORY),
     "lebrun2013": Citation("H2O and CO2 solubility in the melt, X_H2O = 6.8e-8 P^0.7, X_CO2 = 4.4e-12 P",
                            "Lebrun et al. 2013, JGR Planets 118:1155", MEMORY),
-    "labrosse2015": Citation("inner-core latent and gravitational energy", "Labrosse 2015, PEPI 247:36", MEMORY),
-    "anzellini2013": Citation("iron melting curve (Simon-Glatzel fit; 6230 +- 500 K at 330 GPa checked)",
+    "labrosse2015": Citation("inner-core latent and gravitational energy (values from memory); a CMB heat flow above "
+                             "the isentropic 13.25 TW gives an inner core < 700 Myr old (abstract checked)",
+                             "Labrosse 2015, PEPI 247:36", MEMORY),
+    "anzellini2013": Citation("iron melting curve (Simon-Glatzel fit from memory; data to 200 GPa and 6230 +- 500 K "
+                              "extrapolated to 330 GPa checked)",
                               "Anzellini et al. 2013, Science 340:464", MEMORY),
     "kraus2022": Citation("iron melting measured to 1000 GPa by laser shock (range checked in the abstract; the points "
                           "the Anzellini fit is held to, 556 GPa / 8085 K and 991 GPa / 10766 K, from memory)",
                           "Kraus et al. 2022, Science 375:202", MEMORY),
-    "alfe2002": Citation("light-element depression of the core's melting curve (~700 K)",
-                         "Alfe et al. 2002, EPSL 195:91", MEMORY),
+    "latent_scaling": Citation("inner-core latent heat L(P) = L_ICB T_m(P) / T_m(330 GPa): a constant entropy of "
+                               "melting (ab initio iron, Alfe et al. 2002, PRB 65:165118)", "core.core_latent_heat",
+                               MEMORY),
+    "alfe2003": Citation("light-element depression of the core's melting curve (~-700 K at the ICB; pure iron "
+                         "6350 +- 600 K there)", "Alfe, Price & Gillan 2003, Mineral. Mag. 67:113 (abstract)",
+                         CHECKED),
     # basal magma ocean (boundary-layer scheme)
     "labrosse2007": Citation("basal magma ocean: a well-mixed, iron-enriched melt layer on the core that crystallises "
                              "from its top as the core cools", "Labrosse, Hernlund & Coltice 2007, Nature 450:866",
@@ -151,7 +158,7 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     cv = spec.convection
     keys = ["tosi2017", "stevenson1983", "dormand1980", "mei2002", "abe1997", "solomatov2015", "roscoe1952",
             "lejeune1995", "karki2010", "rheology_blend", "mckenzie1988", "labrosse2015", "anzellini2013",
-            "alfe2002", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
+            "alfe2003", "latent_scaling", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
     if cv.activation_volume_decay_pa > 0.0:
         keys.append("activation_volume_decay")
     if cv.beta != 1.0 / 3.0 or cv.nusselt_prefactor != 1.0:
@@ -171,7 +178,8 @@ def mixing_length_keys(spec) -> tuple[str, ...]:
     """Registry keys of the laws a mixing-length run of ``spec`` uses."""
     keys = ["tosi2017", "abe1997_mlt", "bower2018", "two_phase_adiabat", "patankar1980", "stevenson1983",
             "mei2002", "abe1997", "solomatov2015", "roscoe1952", "lejeune1995", "karki2010", "rheology_blend",
-            "labrosse2015", "anzellini2013", "alfe2002", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
+            "labrosse2015", "anzellini2013", "alfe2003", "latent_scaling", "turcotte_schubert", "mcdonough1995",
+            "mcdonough2020"]
     if spec.convection.activation_volume_decay_pa > 0.0:
         keys.append("activation_volume_decay")
     if spec.convection.regime == "mobile-lid":

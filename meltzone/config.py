@@ -97,7 +97,10 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                    "G3 4:1073 fit (<~1-2 wt% of melt-bearing peridotite, from memory)"),
         "core_melting_depression_k": Key(700.0, "K", "lowering of the iron melting curve by light elements",
                                          lo=0.0, hi=3000.0,
-                                         source="~700 K for Earth's core, Alfe et al. 2002, EPSL 195:91 (from memory)"),
+                                         source="~700 K at Earth's ICB for the proposed core composition, pure "
+                                                "iron 6350 +- 600 K there (Alfe, Price & Gillan 2003, Mineral. Mag. "
+                                                "67:113; abstract checked); one constant at every pressure (this "
+                                                "model's choice)"),
         # basal magma ocean (boundary-layer scheme; see meltzone.evolution.boundary_layer)
         "basal_magma_ocean": Key("off", "", "basal magma ocean between core and solid mantle: 'reservoir' (a "
                                  "well-mixed layer at the core's temperature that cools with the core; experimental: "
@@ -184,8 +187,12 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
     "core": {
         "core_heat_capacity": Key(800.0, "J/kg/K", "core specific heat", lo=100.0, hi=5000.0,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
-        "core_latent_heat": Key(7.5e5, "J/kg", "latent heat of inner-core crystallisation", lo=0.0, hi=5.0e6,
-            source='order of published values, 6e5-1e6 J/kg (e.g. Labrosse 2015, PEPI 247:36; from memory)'),
+        "core_latent_heat": Key(7.5e5, "J/kg", "latent heat of inner-core crystallisation at Earth's ICB (330 GPa); "
+                                "elsewhere scaled with the alloy's melting temperature (constant entropy of melting)",
+                                lo=0.0, hi=5.0e6,
+            source='order of published values, 6e5-1e6 J/kg (e.g. Labrosse 2015, PEPI 247:36; from memory); the '
+                   'scaling: Clausius-Clapeyron with a constant entropy of fusion (Alfe et al. 2002, PRB 65:165118; '
+                   'from memory)'),
         "gravitational_energy": Key(3.0e5, "J/kg", "gravitational energy released per kg of inner core",
                                     lo=0.0, hi=5.0e6,
             source='order of published values (Labrosse 2015; from memory)'),
@@ -230,7 +237,8 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
             source=f"limits: {MIN_INITIAL_TEMPERATURE_K:g} K, " + _COLD_START_REASON + "; 20000 K: this model's "
                    "choice, ten times the liquidus at the surface (~2000 K)"),
         "core_temperature_k": Key(0.0, "K", "initial temperature at the top of the core; 0 = the mantle adiabat "
-                                  "at the CMB plus initial_cmb_jump_k", lo=MIN_INITIAL_TEMPERATURE_K, hi=30000.0,
+                                  "at the CMB plus initial_cmb_jump_k, at least 50 K above the core's melting curve "
+                                  "(a molten start)", lo=MIN_INITIAL_TEMPERATURE_K, hi=30000.0,
                                   special=0.0,
             source=f"limits: {MIN_INITIAL_TEMPERATURE_K:g} K, " + _COLD_START_REASON + "; 30000 K: above the iron "
                    "melting curve at any CMB pressure of an allowed planet (27540 K at 5 TPa, this code)"),

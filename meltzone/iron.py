@@ -1,13 +1,22 @@
 """Melting of the core's iron alloy: the curve that sets the inner core, and its validated range.
 
-Pure iron after Anzellini et al. 2013 (Science 340:464; static data to ~330 GPa), lowered by a light-element
-depression (``melting.core_melting_depression_k``, ~700 K for Earth's core, Alfe et al. 2002, EPSL 195:91; from
-memory). Above the static data the same fit is extrapolated. Laser-shock melting data reach 1000 GPa (Kraus et
-al. 2022, Science 375:202, checked against the abstract) and two of their points, recalled from memory (liquid at
-556 GPa / 8085 K, solid at 991 GPa / 10766 K, tests/test_melting.py), are consistent with the fit; their own
-Simon-Glatzel coefficients could not be verified here, so they are not used. The curve is flagged beyond the
-static data (:data:`IRON_STATIC_MAX_PA`) by :func:`meltzone.phases.core_flags`: "medium" up to the shock data's
-1000 GPa (:data:`IRON_SHOCK_MAX_PA`), "low" above. Results are model estimates.
+Pure iron after Anzellini et al. 2013 (Science 340:464): laser-heated diamond-cell melting to 200 GPa (the
+range checked in the paper's summary), extrapolated by the authors to 6230 +- 500 K at the inner-core boundary
+(330 GPa, checked). The alloy's curve is lowered by a light-element depression
+(``melting.core_melting_depression_k``, default 700 K): Alfe, Price & Gillan 2003 (Mineral. Mag. 67:113,
+abstract checked) find pure iron melting at 6350 +- 600 K at the ICB and a shift of ~-700 K for their
+proposed core composition, so an ICB temperature of 5650 +- 600 K; with Anzellini's curve the default gives
+5530 K there. The depression is one constant in kelvin at every pressure (this model's choice: the published
+value is for Earth's ICB only), applied to every use of the curve (inner core of both evolution schemes, the
+default molten start). Results are model estimates.
+
+Beyond 200 GPa the fit is extrapolated. Laser-shock melting data reach 1000 GPa (Kraus et al. 2022, Science
+375:202, range checked against the abstract); two of their points, recalled from memory (liquid at 556 GPa /
+8085 K, solid at 991 GPa / 10766 K, tests/test_melting.py), are consistent with the extrapolated fit. Their
+own Simon-Glatzel coefficients could not be verified (searched: the abstract pages, papers citing it, public
+code; none quoted them), so they are not used. The curve is flagged beyond the static data
+(:data:`IRON_STATIC_MAX_PA`) by :func:`meltzone.phases.core_flags`: "medium" up to the shock data's 1000 GPa
+(:data:`IRON_SHOCK_MAX_PA`), "low" above.
 """
 
 from __future__ import annotations
@@ -27,8 +36,12 @@ from .melting import simon_glatzel
 ANZELLINI2013_BRANCHES = ((1991.0, 5.2, 27.39, 2.38), (3712.0, 98.5, 161.2, 1.72))
 #: Pressure of the gamma-epsilon-liquid triple point of iron [GPa] (Anzellini et al. 2013).
 ANZELLINI2013_TRIPLE_POINT_GPA = 98.5
-#: Top of the static experiments on iron melting [Pa] (Anzellini et al. 2013: to ~330 GPa).
-IRON_STATIC_MAX_PA = 330.0 * GPA
+#: Top of the static experiments behind the fit [Pa]: Anzellini et al. 2013 reached 200 GPa (checked in the
+#: paper's summary; their 330 GPa value is an extrapolation). Earth's inner core (330-364 GPa) lies beyond.
+IRON_STATIC_MAX_PA = 200.0 * GPA
+#: Pressure of Earth's inner-core boundary [Pa], where the core's latent heat is given (PREM: 329 GPa,
+#: Dziewonski & Anderson 1981; the round value of Anzellini et al. 2013).
+EARTH_ICB_PRESSURE_PA = 330.0 * GPA
 #: Top of the laser-shock melting data on iron [Pa]: 1000 GPa (Kraus et al. 2022, Science 375:202, checked
 #: against the abstract); the Anzellini et al. 2013 fit is not fitted to them (see the module).
 IRON_SHOCK_MAX_PA = 1000.0 * GPA
@@ -40,8 +53,8 @@ def iron_melting_temperature(pressure_pa, depression_k: float = 0.0):
     Simon-Glatzel branches of Anzellini et al. 2013, Science 340:464 (6230 +- 500 K at
     330 GPa, checked; fit coefficients from memory): T = 1991 ((P - 5.2)/27.39 + 1)^(1/2.38)
     up to the triple point at 98.5 GPa / 3712 K, then 3712 ((P - 98.5)/161.2 + 1)^(1/1.72).
-    Static data to ~330 GPa; laser-shock points to 1000 GPa lie on it (Kraus et al. 2022, Science 375:202),
-    so it counts as measured to 1000 GPa. Beyond, the fit is extrapolated (a monotone power law). Below 5.2 GPa
+    Static data to 200 GPa; two laser-shock points to 1000 GPa (Kraus et al. 2022, Science 375:202; recalled from
+    memory) lie near it. Beyond 200 GPa the fit is extrapolated (a monotone power law). Below 5.2 GPa
     the first branch is used down to 0 GPa (1822 K at 1 bar against 1811 K measured for iron).
 
     Parameters
@@ -49,7 +62,8 @@ def iron_melting_temperature(pressure_pa, depression_k: float = 0.0):
     pressure_pa : array_like
         Pressure [Pa], >= 0.
     depression_k : float
-        Lowering by light elements [K], >= 0 (``melting.core_melting_depression_k``).
+        Lowering by light elements [K], >= 0 (``melting.core_melting_depression_k``; ~700 K at Earth's ICB,
+        Alfe, Price & Gillan 2003, Mineral. Mag. 67:113, checked).
     """
     p_gpa = np.asarray(pressure_pa, dtype=float) / GPA
     if not np.all(np.isfinite(p_gpa)) or np.any(p_gpa < 0.0):

@@ -227,7 +227,7 @@ def flags(depth_m, pressure_pa, temperature_k, melting_model, *, eos_limit_pa: f
 
 def core_flags(depth_m, pressure_pa) -> list[dict]:
     """High-pressure flags of the core: depths where the iron melting curve (which sets the inner core) is used
-    beyond its static experiments (:data:`meltzone.iron.IRON_STATIC_MAX_PA`, ~330 GPa; Anzellini et al. 2013,
+    beyond its static experiments (:data:`meltzone.iron.IRON_STATIC_MAX_PA`, 200 GPa; Anzellini et al. 2013,
     Science 340:464). Kind ``extrapolated-iron-melting``; confidence ``medium`` up to the laser-shock data
     (:data:`meltzone.iron.IRON_SHOCK_MAX_PA`, 1000 GPa; Kraus et al. 2022, Science 375:202), ``low`` above.
     Same zone dicts as :func:`flags`."""
@@ -241,7 +241,7 @@ def core_flags(depth_m, pressure_pa) -> list[dict]:
     confidence = np.where(p <= IRON_SHOCK_MAX_PA, "medium", "low")
     return _mask_zones("extrapolated-iron-melting",
                        f"iron melting curve beyond its static experiments (to {IRON_STATIC_MAX_PA / GPA:g} GPa)",
-                       "Anzellini et al. 2013, Science 340:464 (static data to ~330 GPa); Kraus et al. 2022, "
+                       "Anzellini et al. 2013, Science 340:464 (static data to 200 GPa); Kraus et al. 2022, "
                        "Science 375:202 (laser shock to 1000 GPa)", depth, p, p > IRON_STATIC_MAX_PA, confidence)
 
 

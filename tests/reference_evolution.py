@@ -106,6 +106,7 @@ class Physics:
     core_heat_capacity: float
     core_latent_heat: float
     core_gravitational_energy: float
+    core_melting_depression: float
     equilibrium_temperature: float
     grey_atmosphere: bool
     water_kg: float
@@ -203,6 +204,7 @@ def build_inputs(spec, interior=None):
         critical_melt_fraction=cv.critical_melt_fraction, blend_width=cv.rheology_blend_width,
         core_heat_capacity=spec.core.core_heat_capacity, core_latent_heat=spec.core.core_latent_heat,
         core_gravitational_energy=spec.core.gravitational_energy,
+        core_melting_depression=spec.melting.core_melting_depression_k,
         equilibrium_temperature=sf.equilibrium_temperature_k, grey_atmosphere=sf.atmosphere == "grey",
         water_kg=sf.water_inventory_kg, co2_kg=sf.co2_inventory_kg, stagnant_lid=cv.regime == "stagnant-lid",
         start_age_s=spec.heating.start_age_gyr * 1e9 * YEAR,
@@ -212,15 +214,18 @@ def build_inputs(spec, interior=None):
     return phys, mantle, core
 
 
-def initial_temperatures(spec, mantle):
+def initial_temperatures(spec, mantle, core=None):
     """(T_u, T_c) at the start: the configured values, or by default 50 K above the liquidus at every node
-    (T_u = max(T_liq / f) + 50 K) and the core the mantle adiabat at the CMB plus the initial CMB jump."""
+    (T_u = max(T_liq / f) + 50 K) and the core the mantle adiabat at the CMB plus the initial CMB jump, but
+    at least 50 K above the iron curve at every core node (T_c >= max(T_m / f_core) + 50 K)."""
     tu = spec.initial.upper_temperature_k
     if tu <= 0.0:
         tu = float(np.max(mantle.liquidus / mantle.adiabat)) + 50.0
     tc = spec.initial.core_temperature_k
     if tc <= 0.0:
         tc = tu * mantle.adiabat[0] + spec.initial.initial_cmb_jump_k
+        if core is not None:
+            tc = max(tc, float(np.max(core.melting / core.adiabat)) + 50.0)
     return tu, tc
 
 
@@ -342,11 +347,22 @@ def inner_core(tc, core):
             float(core.enclosed[j - 1] + s * (core.enclosed[j] - core.enclosed[j - 1])))
 
 
+def inner_core_release(m_ic, ph, core):
+    """Latent + gravitational energy [J] released by an inner core of mass m_ic: the integral over its mass of
+    L + E_g with L = L_ICB T_m / T_m(330 GPa) (constant entropy of melting; T_m the alloy's curve, each interval
+    between core nodes at the mean of its ends) and E_g constant; linear in mass inside an interval."""
+    t_ref = float(iron_melting_temperature(330e9, ph.core_melting_depression))
+    per_kg = ph.core_latent_heat * 0.5 * (core.melting[1:] + core.melting[:-1]) / t_ref + ph.core_gravitational_energy
+    edges = core.enclosed
+    done = np.clip(m_ic - edges[:-1], 0.0, np.diff(edges))  # mass of each interval inside the inner core
+    return float(np.sum(done * per_kg))
+
+
 def core_heat(tc, ph, core):
     """E_c [J]: sensible heat on the core adiabat less the latent and gravitational energy of the inner core
     (Stevenson et al. 1983, Icarus 54:466; Labrosse 2015, PEPI 247:36)."""
     return (float(np.sum(core.mass * ph.core_heat_capacity * tc * core.adiabat))
-            - (ph.core_latent_heat + ph.core_gravitational_energy) * inner_core(tc, core)[1])
+            - inner_core_release(inner_core(tc, core)[1], ph, core))
 
 
 def atmosphere_mass(total, melt_mass, coeff, expo, ph):
@@ -520,7 +536,7 @@ class ReferenceModel:
         nfev."""
         t_eval = np.asarray(t_eval, dtype=float)
         ph = self.ph
-        tu0, tc0 = initial_temperatures(self.spec, self.mantle)
+        tu0, tc0 = initial_temperatures(self.spec, self.mantle, self.core)
         self._guess = [tu0, tc0]
         d0 = LID_MIN if ph.stagnant_lid else 0.0
         y0 = self.state(tu0, tc0, d0)

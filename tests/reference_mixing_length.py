@@ -55,7 +55,7 @@ class Reference:
         self.f_face = np.interp(rf, r, f)
         self.mobile = spec.convection.regime == "mobile-lid"
         self.heat_share = self.mantle.mass / self.mantle.mass.sum()
-        tu, self.tc0 = ref.initial_temperatures(spec, self.mantle)
+        tu, self.tc0 = ref.initial_temperatures(spec, self.mantle, self.core)
         t0 = tu * f
         self.y0 = np.concatenate([[ref.core_heat(self.tc0, self.ph, self.core) if self.core else 0.0],
                                   self.mantle.mass * self.enthalpy(t0)])

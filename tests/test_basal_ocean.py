@@ -16,9 +16,10 @@ from meltzone.constants import GPA, YEAR
 
 #: Earth's inner-core radius, PREM (Dziewonski & Anderson 1981, PEPI 25:297).
 PREM_INNER_CORE_M = 1221.5e3
-#: Published inner-core ages [Gyr]: ~0.5-1.5 (Labrosse 2015, PEPI 247:36, high core conductivity; from memory),
-#: disputed (palaeomagnetic estimates up to ~1.5 Gyr, Biggin et al. 2015, Nature 526:245; from memory).
-INNER_CORE_AGE_GYR = (0.5, 1.5)
+#: Published inner-core ages [Gyr]: baseline 0.5, up to 1.7 within the parameter uncertainty (Nimmo 2015,
+#: Treatise on Geophysics 2nd ed. vol. 8, "Thermal and compositional evolution of the core", abstract checked);
+#: < 0.7 for a CMB heat flow above the isentropic 13.25 TW (Labrosse 2015, PEPI 247:36, abstract checked).
+INNER_CORE_AGE_GYR = (0.5, 1.7)
 
 
 @pytest.fixture(scope="module")
@@ -29,7 +30,7 @@ def earth():
 
 @pytest.fixture(scope="module")
 def five():
-    """5 M_E to 3 Gyr at 256 and 512 mantle nodes (its basal ocean freezes at ~2.0 Gyr)."""
+    """5 M_E to 3 Gyr at 256 and 512 mantle nodes (its basal ocean freezes at ~2.4 Gyr)."""
     return {n: evolve(PlanetSpec(mass_earth=5.0, end_time_gyr=3.0, mantle_nodes=n, basal_magma_ocean="reservoir")) for n in (256, 512)}
 
 
@@ -44,7 +45,7 @@ def _lifetime(result):
 def test_reservoir_converges_with_the_mantle_nodes(five):
     """Doubling interior.mantle_nodes (256 -> 512) changes the basal ocean's largest thickness and its lifetime by
     <= 5% (the thickness is interpolated between nodes, not a node count). Tolerance 5%: asked of this model;
-    measured 0.02% and 0.03% (134.0 km, 2.02 Gyr)."""
+    measured 0.02% and 0.14% (134.0 km, 2.42 Gyr)."""
     a, b = five[256], five[512]
     assert a.history["basal_ocean_thickness"].max() > 50e3
     assert b.history["basal_ocean_thickness"].max() == pytest.approx(a.history["basal_ocean_thickness"].max(),
@@ -104,7 +105,7 @@ def test_basal_layer_summary_reads_the_series(five):
 
 def test_core_times_in_the_summary(five, earth):
     """Summary keys inner_core_nucleation_yr (the inner-core-nucleated event) and core_solid_yr (the inner core
-    fills the core; None if never): the 5 M_E core nucleates within the run and freezes at ~1.8 Gyr (measured),
+    fills the core; None if never): the 5 M_E core nucleates within the run and freezes at ~2.2 Gyr (measured),
     Earth's has not frozen; when present, the nucleation precedes the freezing."""
     s5 = five[256].summary()
     assert s5["inner_core_nucleation_yr"] is not None and s5["core_solid_yr"] is not None
@@ -117,22 +118,32 @@ def test_core_times_in_the_summary(five, earth):
     assert se["inner_core_nucleation_yr"] == (nucleated[0] if nucleated else None)
 
 
-@pytest.mark.xfail(strict=True, reason="measured 1837 km at 4.5 Gyr (1647 km without the basal ocean): the core "
-                   "is ~110 K colder at the CMB than a 1221.5 km inner core needs on this core adiabat and the "
-                   "Anzellini 2013 curve less 700 K (4215 K); not tuned")
+#: Why Earth misses PREM here (measured, defaults, 4.5 Gyr): a 1221.5 km inner core needs T_c = 4213 K at the CMB
+#: on this core adiabat (f = 1.312 at the ICB, constant Grueneisen 1.5) and the alloy curve (5530 K at 330 GPa);
+#: the run ends at 4103 K with the reservoir (4143 K without). Not a too-steep curve (dT_m/dP 9.2 K/GPa at the
+#: ICB, Labrosse 2015's 9 K/GPa) nor a too-high CMB heat flow (6.6 TW today, the low end of 12 +- 5 TW, Nimmo
+#: 2015): the core leaves the magma ocean at ~4830 K (set by when the lower boundary layer freezes) and loses
+#: ~700 K after, inside Nimmo's 600-1600 K over 4 Gyr. The radius moves ~5.6 km per K of T_c, so 10% of PREM
+#: asks T_c to +-20 K while the curve alone is uncertain by +-500 K (Anzellini 2013): a calibration, not done.
+_TOO_COLD = ("the core ends ~110 K colder (4103 K) than the 4213 K a 1221.5 km inner core needs on this adiabat and "
+             "curve; every ingredient within its published range; not tuned")
+
+
+@pytest.mark.xfail(strict=True, reason="measured 1841 km at 4.5 Gyr (1649 km without the basal ocean): " + _TOO_COLD)
 def test_earth_inner_core_radius_against_prem(earth):
-    """Earth today (4.5 Gyr, defaults with the reservoir): inner-core radius against PREM's 1221.5 km (Dziewonski & Anderson 1981),
-    tolerance 10% (122 km). The radius moves ~5.6 km per kelvin of core temperature here (measured), so 10% is
-    ~20 K of CMB temperature, well inside the ~+-300 K spread of published present CMB temperatures (from
-    memory): a test that the physics lands on Earth, not a fit."""
+    """Earth today (4.5 Gyr, defaults with the reservoir): inner-core radius against PREM's 1221.5 km (Dziewonski
+    & Anderson 1981), tolerance 10% (122 km). The radius moves ~5.6 km per kelvin of core temperature here
+    (measured), so 10% is ~20 K of CMB temperature, well inside the +-500 K uncertainty of the iron curve at the
+    ICB (Anzellini et al. 2013): a test that the physics lands on Earth, not a fit."""
     assert earth.history["inner_core_radius"][-1] == pytest.approx(PREM_INNER_CORE_M, rel=0.10)
 
 
-@pytest.mark.xfail(strict=True, reason="measured 2.7 Gyr (nucleation at 1.80 Gyr of 4.5; 2.3 Gyr without the "
-                   "basal ocean): the same too-cold core as the radius test")
+@pytest.mark.xfail(strict=True, reason="measured 2.70 Gyr (nucleation at 1.80 Gyr of 4.5; 2.29 Gyr without the "
+                   "basal ocean): " + _TOO_COLD)
 def test_earth_inner_core_age(earth):
-    """Earth's inner-core age (4.5 Gyr minus its nucleation) inside the published 0.5-1.5 Gyr (Labrosse 2015,
-    PEPI 247:36; disputed, Biggin et al. 2015, Nature 526:245; both from memory); no extra tolerance."""
+    """Earth's inner-core age (4.5 Gyr minus its nucleation) inside the published 0.5-1.7 Gyr (Nimmo 2015,
+    Treatise; Labrosse 2015, PEPI 247:36: < 0.7 Gyr at high CMB heat flow; both abstracts checked); no extra
+    tolerance."""
     nucleation = earth.summary()["inner_core_nucleation_yr"]
     assert nucleation is not None
     age = 4.5 - nucleation / 1e9
@@ -140,19 +151,20 @@ def test_earth_inner_core_age(earth):
 
 
 def test_iron_curve_flagged_beyond_its_static_experiments():
-    """The iron melting curve (Anzellini et al. 2013) rests on static data to ~330 GPa; laser-shock data reach
-    1000 GPa (Kraus et al. 2022, Science 375:202, range checked in the abstract) but the fit is not fitted to
-    them: the core flag starts above 330 GPa, 'medium' to 1000 GPa and 'low' above."""
+    """The iron melting curve (Anzellini et al. 2013) rests on static data to 200 GPa (checked in the paper's
+    summary; its 330 GPa value is extrapolated); laser-shock data reach 1000 GPa (Kraus et al. 2022, Science
+    375:202, range checked in the abstract) but the fit is not fitted to them: the core flag starts above
+    200 GPa, 'medium' to 1000 GPa and 'low' above."""
     from meltzone.iron import IRON_SHOCK_MAX_PA, IRON_STATIC_MAX_PA
     from meltzone.phases import core_flags
 
-    assert IRON_STATIC_MAX_PA == 330.0 * GPA and IRON_SHOCK_MAX_PA == 1000.0 * GPA
-    p = np.array([100.0, 330.0, 600.0, 999.0, 1001.0, 2000.0]) * GPA
+    assert IRON_STATIC_MAX_PA == 200.0 * GPA and IRON_SHOCK_MAX_PA == 1000.0 * GPA
+    p = np.array([100.0, 200.0, 600.0, 999.0, 1001.0, 2000.0]) * GPA
     depth = np.linspace(3000e3, 5000e3, len(p))
     zones = core_flags(depth, p)
     assert [z["confidence"] for z in zones] == ["medium", "low"]
     assert all(z["kind"] == "extrapolated-iron-melting" for z in zones)
-    assert 330.0 * GPA < zones[0]["top_pressure_pa"] <= 600.0 * GPA and zones[1]["top_pressure_pa"] > 999.0 * GPA
+    assert 200.0 * GPA < zones[0]["top_pressure_pa"] <= 600.0 * GPA and zones[1]["top_pressure_pa"] > 999.0 * GPA
     assert not core_flags(depth[:2], p[:2])
 
 

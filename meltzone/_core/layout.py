@@ -37,6 +37,9 @@ G_R, G_P, G_F, G_W, G_TSOL, G_TLIQ, G_AUX1, G_AUX2 = range(N_G := len(GRID_ROWS)
 # ------------------------------------------------------------ core grid rows (nodes centre -> CMB)
 CORE_ROWS = ("radius", "adiabat", "mass", "melting_temperature", "enclosed_mass")
 C_R, C_F, C_W, C_TMELT, C_MCUM = range(N_C := len(CORE_ROWS))
+# heat released by an inner core grown to the node [J]: the integral of latent + gravitational energy over its mass
+CORE_ROWS += ("inner_core_heat",)
+C_EIC, = range(N_C, N_C := len(CORE_ROWS))
 
 # ------------------------------------------------------------ isotope table columns
 ISOTOPE_COLUMNS = ("heat_today", "decay_constant")

@@ -18,13 +18,14 @@ from ._jit import njit
 from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DELTA_C, D_DELTA_U, D_DLID, D_EPS,
                      D_ETA_C, D_ETA_U, D_H, D_PHI_SURF, D_PHI_TOP, D_QC, D_QS, D_QU, D_REGIME, D_RIC, D_TB, D_TL,
                      D_TS, G_AUX1, G_AUX2, G_F, G_R, G_TLIQ, G_TSOL, G_W, ISO_DECAY, ISO_HEAT, P_A_RH, P_A_VISC,
-                     P_ALPHA, P_ATMOSPHERE, P_BETA, P_BLEND, P_CC, P_CM, P_CORE_RADIUS, P_E_ACT, P_EG,
-                     P_ETA_LIQ, P_G_CMB, P_G_SURF, P_K, P_KAPPA, P_LATENT, P_LC, P_LID_MIN,
+                     P_ALPHA, P_ATMOSPHERE, P_BETA, P_BLEND, P_CC, P_CM, P_CORE_RADIUS, P_E_ACT,
+                     P_ETA_LIQ, P_G_CMB, P_G_SURF, P_K, P_KAPPA, P_LATENT, P_LID_MIN,
                      P_MANTLE_MASS, P_MELT_WEAK, P_NU_A, P_P_CMB, P_P_TOP, P_PHI_C, P_RA_CR, P_RADIUS,
                      P_RHO_MANTLE, P_RHO_TOP,
                      P_STAGNANT, P_START_AGE, P_T_EQ, P_V_ACT, P_V_DECAY, REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID,
                      REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
 from .basal import basal_ocean, basal_top_energy
+from .inner_core import inner_core_heat
 from .layout import D_MB, D_RB, G_P, P_BMO, P_BMO_MREF
 from .melt import melt_fraction
 from .roots import bisect, illinois
@@ -172,13 +173,13 @@ def inner_core(tc, core):
 @njit
 def core_energy(tc, grid, core, par):
     """Stored heat of the core [J]: sensible heat on the core adiabat minus latent + gravitational
-    energy already released by the inner core; with a basal magma ocean, plus its sensible heat at tc and its
-    latent heat (the core and the ocean are one reservoir of temperature tc)."""
+    energy already released by the inner core (its integral over the inner core's mass, tabulated on the core
+    nodes); with a basal magma ocean, plus its sensible heat at tc and its latent heat (the core and the ocean
+    are one reservoir of temperature tc)."""
     e = 0.0
     for j in range(core.shape[1]):
         e += core[C_W, j] * par[P_CC] * tc * core[C_F, j]
-    r_ic, m_ic = inner_core(tc, core)
-    e = e - (par[P_LC] + par[P_EG]) * m_ic
+    e = e - inner_core_heat(tc, core)
     if par[P_BMO] > 0.5:
         r_b, m_b, x_b = basal_ocean(tc, grid, par)
         e += m_b * (par[P_CM] * tc + par[P_LATENT])

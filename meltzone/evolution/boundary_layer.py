@@ -66,7 +66,9 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   after the magma ocean (an upper bound on the blanketing);
 * core: adiabatic core of temperature T_c f_core(r), an inner core where it falls
   below the iron-alloy melting curve, releasing latent and gravitational energy
-  (Stevenson et al. 1983; Labrosse 2015, PEPI 247:36);
+  (Stevenson et al. 1983; Labrosse 2015, PEPI 247:36); the latent heat scales with
+  the alloy's melting temperature at the inner core's edge (constant entropy of
+  melting, :func:`inner_core_heat_row`), ~4x Earth's at the centre of a 10 M_E core;
 * basal magma ocean (``melting.basal_magma_ocean = "reservoir"``, experimental and off by default; Labrosse, Hernlund & Coltice
   2007, Nature 450:866; parameterised models: Blanc, Stegman & Ziegler 2020, EPSL 534; O'Rourke 2020, GRL 47;
   abstracts seen, details from memory): a well-mixed melt layer on the core at the core's temperature T_c.
@@ -84,8 +86,13 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   pressure and solidus there), and the CMB heat flow series is the reservoir's loss, Q_b plus the heat of the
   mass it hands over. The History's ``basal_ocean_thickness`` is r_b - r_c; in the profiles the ocean's nodes
   are at T_c with the mantle's melt law of T_c (that law does not know the enrichment). ``"off"`` (the default)
-  gives the scheme without it (the lower boundary layer on the core). Off by default because its melting-curve
-  form and its three parameters are this model's choice and its lifetime still falls with planet mass;
+  gives the scheme without it (the lower boundary layer on the core). Off by default: its melting-curve form
+  and its three parameters are this model's choice; at 0.5-2 M_E it stays at its cap for > 10 Gyr while the
+  mixing-length scheme's basal layer ends at 1.1-1.6 Gyr; and it moves Earth's inner core further from PREM
+  (1841 against 1649 km without it). Its lifetime falls with planet mass (2.4 Gyr at 5 M_E, 0.31 at 10), as
+  the mixing-length scheme's does, against the published rise (Lherm, Nakajima & Blackman 2026, JGR Planets 131;
+  abstract checked): with a constant activation volume both schemes keep it > 10 Gyr at 5-10 M_E, so the fall
+  comes from the deep mantle's viscosity law (``convection.activation_volume_decay_pa``), not the reservoir;
 * energy: the stored heat (sensible heat on the adiabat, latent heat of the
   melt, the lid's conductive profile, core sensible heat less the inner core's
   latent and gravitational energy) is one function of (T_u, lid) for the mantle
@@ -125,7 +132,7 @@ import numpy as np
 from .._core import layout as k
 from ..constants import GYR, MYR, YEAR
 from ..errors import ConvergenceError
-from ..iron import iron_melting_temperature
+from ..iron import EARTH_ICB_PRESSURE_PA, iron_melting_temperature
 from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid
 from .schemes import Scheme
 
@@ -143,6 +150,19 @@ def _node_weights(r: np.ndarray, m: np.ndarray, m_bottom: float, m_top: float) -
     m_mid = np.interp(mid, r, m)
     edges = np.concatenate([[m_bottom], m_mid, [m_top]])
     return np.diff(edges)
+
+
+def inner_core_heat_row(enclosed_mass, melting_k, latent_ref, gravitational, melting_ref_k):
+    """Heat [J] released by an inner core grown to each core node: the integral over its mass of the latent heat
+    L(P) + the gravitational energy E_g (both J/kg). L = L_ref T_m(P) / T_m,ref: the entropy of melting
+    L / T_m is held at its value at Earth's ICB (``core.core_latent_heat`` at 330 GPa), so the latent heat grows
+    with the alloy's melting temperature (Clausius-Clapeyron at a constant entropy of fusion, Richards' rule;
+    ab initio entropies of melting of iron vary little along the curve, Alfe et al. 2002, PRB 65:165118; from
+    memory). Each interval between nodes uses the mean of its two nodes' T_m; E_g is constant (as configured)."""
+    m = np.asarray(enclosed_mass, dtype=float)
+    t_mid = 0.5 * (melting_k[1:] + melting_k[:-1])
+    per_kg = latent_ref * t_mid / melting_ref_k + gravitational
+    return np.concatenate([[0.0], np.cumsum(np.diff(m) * per_kg)])
 
 
 def build_inputs(spec, interior, curves):
@@ -173,6 +193,10 @@ def build_inputs(spec, interior, curves):
         core[k.C_W] = _node_weights(it.r[cs], it.m[cs], 0.0, it.core_mass)
         core[k.C_TMELT] = iron_melting_temperature(it.P[cs], spec.melting.core_melting_depression_k)
         core[k.C_MCUM] = it.m[cs]
+        depression = spec.melting.core_melting_depression_k
+        core[k.C_EIC] = inner_core_heat_row(core[k.C_MCUM], core[k.C_TMELT], spec.core.core_latent_heat,
+                                            spec.core.gravitational_energy,
+                                            float(iron_melting_temperature(EARTH_ICB_PRESSURE_PA, depression)))
     else:  # coreless planet: a dummy core without heat capacity that never freezes
         core[k.C_F] = 1.0
         core[k.C_W] = 0.0
@@ -232,16 +256,25 @@ def build_inputs(spec, interior, curves):
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
 
+#: Margin of the default (fully molten) start above the melting curves, mantle and core [K] (this model's choice).
+MOLTEN_MARGIN_K = 50.0
+
+
 def initial_temperatures(spec, inputs) -> tuple[float, float]:
     """(T_u, T_c) at the start: by default 50 K above the liquidus at every mantle node (fully molten),
-    and the core the mantle adiabat at the CMB plus ``initial.initial_cmb_jump_k``."""
-    grid = inputs.grid
+    and the core the mantle adiabat at the CMB plus ``initial.initial_cmb_jump_k``, but at least 50 K above
+    the core alloy's melting curve at every core node, so that the default start is molten in the core too
+    (no inner core at t = 0). The floor matters only where the core adiabat meets a steeper iron curve
+    above the mantle's liquidus at the CMB (measured: from ~13 M_E at core fraction 0.325)."""
+    grid, core = inputs.grid, inputs.core
     tu = spec.initial.upper_temperature_k
     if tu <= 0.0:
-        tu = float(np.max(grid[k.G_TLIQ] / grid[k.G_F])) + 50.0
+        tu = float(np.max(grid[k.G_TLIQ] / grid[k.G_F])) + MOLTEN_MARGIN_K
     tc = spec.initial.core_temperature_k
     if tc <= 0.0:
         tc = tu * grid[k.G_F, 0] + spec.initial.initial_cmb_jump_k
+        if core[k.C_W].sum() > 0.0:
+            tc = max(tc, float(np.max(core[k.C_TMELT] / core[k.C_F])) + MOLTEN_MARGIN_K)
     return float(tu), float(tc)
 
 
@@ -338,6 +371,15 @@ def run(spec, interior, curves, progress=None, *, history_rows=4096, interval_ro
     return history
 
 
+def complete_core(core, par):
+    """The core array of a run file written before the inner core's heat row: that row added with the law those
+    files used, (L + E_g) x enclosed mass (constant latent heat)."""
+    if core.shape[0] >= k.N_C:
+        return core
+    row = (par[k.P_LC] + par[k.P_EG]) * core[k.C_MCUM]
+    return np.ascontiguousarray(np.vstack([core, row[None, :]]))
+
+
 def _hermite(t, t0, t1, y0, y1, d0, d1):
     h = t1 - t0
     s = (t - t0) / h
@@ -358,6 +400,7 @@ class Evaluator:
                                                                                               "par"))
         if len(par) < k.N_PAR:  # a file written before the basal-ocean parameters: zeros, i.e. no basal ocean
             par = np.concatenate([par, np.zeros(k.N_PAR - len(par))])
+        core = complete_core(core, par)
         self.inputs = k.KernelInputs(grid, core, iso, par, int(d["law"]))
         h = history
         self.t = h.time

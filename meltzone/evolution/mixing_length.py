@@ -67,7 +67,7 @@ import numpy as np
 from .._core import layout as k
 from ..constants import GYR, YEAR
 from ..errors import ConfigError, ConvergenceError
-from .boundary_layer import build_inputs, initial_temperatures
+from .boundary_layer import build_inputs, complete_core, initial_temperatures
 from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid
 from .schemes import Scheme
 
@@ -253,8 +253,8 @@ class Evaluator:
     def __init__(self, history: History):
         d = history.scheme_data
         self.grid = np.ascontiguousarray(d["grid"], dtype=np.float64)
-        self.core = np.ascontiguousarray(d["core"], dtype=np.float64)
         self.par = np.ascontiguousarray(d["par"], dtype=np.float64)
+        self.core = complete_core(np.ascontiguousarray(d["core"], dtype=np.float64), self.par)
         self.law = int(d["law"])
         self.ec = np.asarray(d["core_energy"], dtype=np.float64)
         self.t = history.time
