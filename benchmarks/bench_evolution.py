@@ -2,7 +2,8 @@
 
 Reports the warm median wall time of the boundary-layer scheme's integrator (interior, curves and input
 packing excluded) and of the whole ``meltzone.evolve`` (included), the number of accepted steps, the cost per
-node-step, the ratio to the same integrator with ``melting.basal_magma_ocean = "off"``, and the ratio to the plain NumPy + scipy solve_ivp reference path (tests/reference_evolution.py) on
+node-step, the ratio to the same integrator with ``melting.basal_magma_ocean = "off"`` and with
+``volcanism.enabled = "off"`` (the kernel without melt extraction), and the ratio to the plain NumPy + scipy solve_ivp reference path (tests/reference_evolution.py) on
 the same planet, all measured in this one process.
 
     python benchmarks/bench_evolution.py
@@ -39,14 +40,18 @@ def main():
     # the default run so that a change of machine load falls on both
     spec_off = spec.replace(basal_magma_ocean="off")
     inputs_off = boundary_layer.build_inputs(spec_off, interior, curves)
-    times, times_off = [], []
+    spec_nov = spec.replace(**{"volcanism.enabled": "off"})
+    inputs_nov = boundary_layer.build_inputs(spec_nov, interior, curves)
+    times, times_off, times_nov = [], [], []
     for _ in range(7):
-        for spec_i, inputs_i, out in ((spec, inputs, times), (spec_off, inputs_off, times_off)):
+        for spec_i, inputs_i, out in ((spec, inputs, times), (spec_off, inputs_off, times_off),
+                                      (spec_nov, inputs_nov, times_nov)):
             t = time.perf_counter()
             boundary_layer.integrate(spec_i, inputs_i)
             out.append(time.perf_counter() - t)
     t_kernel = statistics.median(times)
     t_off = statistics.median(times_off)
+    t_nov = statistics.median(times_nov)
     t_full = statistics.median([(lambda t0: (meltzone.evolve(spec), time.perf_counter() - t0)[1])(time.perf_counter())
                                 for _ in range(5)])
     history = boundary_layer.run(spec, interior, curves)
@@ -56,6 +61,7 @@ def main():
     print(f"integrator: median {1e3 * t_kernel:.1f} ms; evolve() incl. interior and curves: {1e3 * t_full:.1f} ms")
     print(f"cost per node-step: {1e9 * t_kernel / (n_steps * n_nodes):.1f} ns")
     print(f"without the basal magma ocean: median {1e3 * t_off:.1f} ms; with it / without: {t_kernel / t_off:.2f}")
+    print(f"without volcanism: median {1e3 * t_nov:.1f} ms; with it / without: {t_kernel / t_nov:.2f}")
 
     try:
         from reference_evolution import ReferenceModel

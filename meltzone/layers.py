@@ -33,6 +33,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from .constants import YEAR
+from .volcanics import volcanism_outcomes
 
 #: Relative tolerance (of the step length) to which event times are refined.
 EVENT_TIME_TOLERANCE = 1e-6
@@ -283,6 +284,8 @@ def summarize(result, table=None, events=None) -> dict:
         "end_time_yr": float(h["time"][-1] / YEAR),
         # the core: when the inner core nucleated (0 when the run starts with one) and when the core was solid
         **core_times(result, events),
+        # volcanism: when it ended, crust, outgassed H2O and CO2 (None without melt extraction)
+        **volcanism_outcomes(result),
         "events": [{"time_yr": e["time"] / YEAR, "kind": e["kind"], "layer": e["layer"],
                     "depth_m": None if math.isnan(e["depth"]) else e["depth"],
                     "pressure_pa": None if math.isnan(e["pressure"]) else e["pressure"]} for e in events],

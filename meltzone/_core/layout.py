@@ -26,6 +26,11 @@ REACHED_CENTRE, EMPTIED, BLEW_UP, OUT_OF_ROOM = range(4)
 # ------------------------------------------------------------ evolution state y (energies)
 STATE_Y = ("mantle_energy", "core_energy", "lid_thickness", "heat_out_minus_radiogenic")
 Y_EM, Y_EC, Y_LID, Y_OUT = range(N_Y := len(STATE_Y))
+#: the energy block's length (the integrator state keeps y[:N_Y_ENERGY] at S_Y and the rest at S_YV)
+N_Y_ENERGY = N_Y
+# volcanism (boundary-layer scheme): crust thickness [m], H2O and CO2 extracted from the mantle by melt [kg]
+STATE_Y += ("crust_thickness", "extracted_h2o", "extracted_co2")
+Y_CRUST, Y_XH2O, Y_XCO2 = range(N_Y, N_Y := len(STATE_Y))
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 GRID_ROWS = ("radius", "pressure", "adiabat", "mass", "solidus", "liquidus", "aux1", "aux2")
@@ -56,6 +61,13 @@ PARAMETERS = (
 # basal magma ocean (boundary-layer scheme): switch (1 on), solidus depression [K], enrichment [K], reference mass [kg]
 PARAMETERS += ("basal_ocean", "basal_melt_depression", "basal_melt_enrichment", "basal_reference_mass")
 P_BMO, P_BMO_DEP, P_BMO_ENRICH, P_BMO_MREF = range(N_PAR, N_PAR := len(PARAMETERS))
+# volcanism (boundary-layer scheme; meltzone._core.volcanism): switch (1 on), erupted fraction, initial mantle H2O
+# and CO2 [mass fractions], their melt/solid partition coefficients, deepest pressure melt rises from [Pa],
+# basalt-eclogite pressure [Pa], crust density [kg/m^3], ridge length / circumference
+PARAMETERS += ("volcanism", "erupted_fraction", "mantle_h2o", "mantle_co2", "h2o_partition", "co2_partition",
+               "max_extraction_pressure", "eclogite_pressure", "crust_density", "ridge_length_factor")
+(P_VOLC, P_ERUPT, P_X_H2O, P_X_CO2, P_D_H2O, P_D_CO2, P_P_EXTRACT, P_P_ECLOGITE, P_RHO_CRUST,
+ P_RIDGE) = range(N_PAR, N_PAR := len(PARAMETERS))
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",
@@ -68,6 +80,11 @@ DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", 
 # basal magma ocean: radius of its top [m] (the core radius without one) and its mass [kg]
 DIAGNOSTICS += ("basal_ocean_radius", "basal_ocean_mass")
 D_RB, D_MB = range(N_D, N_D := len(DIAGNOSTICS))
+# volcanism: melt extracted [kg/s], heat the erupted melt carries out [W], crust rate [m/s], H2O and CO2
+# extracted from the mantle [kg/s], convective (plate) velocity [m/s]
+DIAGNOSTICS += ("melt_production", "volcanic_heat_flow", "crust_rate", "h2o_extraction", "co2_extraction",
+                "convective_velocity")
+D_MPROD, D_QVOLC, D_DCRUST, D_XH2O, D_XCO2, D_UCONV = range(N_D, N_D := len(DIAGNOSTICS))
 
 # ------------------------------------------------------------ history columns (one row per accepted step)
 HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "lid_thickness", "heat_out_minus_radiogenic",
@@ -79,6 +96,10 @@ HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "lid_thickne
  H_E_STORED, H_DTU, H_DTC, H_DLID, H_PHI_TOP, H_ATM_H2O, H_ATM_CO2, H_N_IV) = range(N_H := len(HISTORY_COLUMNS))
 HISTORY_COLUMNS += ("basal_ocean_thickness",)
 H_BMO, = range(N_H, N_H := len(HISTORY_COLUMNS))
+HISTORY_COLUMNS += ("melt_production", "volcanic_heat_flow", "crust_thickness", "outgassing_h2o_rate",
+                    "outgassing_co2_rate", "outgassed_h2o", "outgassed_co2")
+(H_MPROD, H_QVOLC, H_CRUST, H_OG_H2O_RATE, H_OG_CO2_RATE, H_OG_H2O,
+ H_OG_CO2) = range(N_H, N_H := len(HISTORY_COLUMNS))
 
 # ------------------------------------------------------------ melt-interval columns
 INTERVAL_COLUMNS = ("step", "top_node", "bottom_node", "max_melt_fraction", "melt_mass", "full_top_node",
@@ -95,6 +116,11 @@ STATE = ("time", "mantle_energy", "core_energy", "lid_thickness", "heat_out_minu
  _S_DY2, _S_DY3, S_T_SWITCH) = range(N_STATE := len(STATE))
 #: S_T_SWITCH until the top of the mantle first reaches the rheological transition
 NOT_YET = 1.0e300
+# the state y beyond the energy block (y[N_Y_ENERGY:]) and its last slopes
+STATE += tuple(STATE_Y[N_Y_ENERGY:]) + tuple("rate_" + name for name in STATE_Y[N_Y_ENERGY:])
+S_YV = N_STATE
+S_DYV = S_YV + N_Y - N_Y_ENERGY
+N_STATE = len(STATE)
 
 # ------------------------------------------------------------ mixing-length scheme (implicit.py, mlt_physics.py)
 #: per-face geometry, faces 0 (CMB) .. n (surface) of the n mantle cells

@@ -15,11 +15,13 @@ import numpy as np
 
 from . import dopri
 from ._jit import njit
+from .layout import N_Y_ENERGY, S_DYV, S_YV
 from .layout import (C_W, D_PHI_SURF, G_F, G_TSOL, N_D, N_Y, NOT_YET, P_ATOL, P_CC, P_CM, P_DT_MAX,
                      P_H_MAX, P_MANTLE_MASS, P_PHI_C, P_RTOL, P_T_END, S_DY, S_H, S_N_H, S_N_IV, S_N_REJ,
                      S_SLOPE_C, S_SLOPE_M, S_T, S_T_SWITCH, S_TC, S_TU, S_Y, STATUS_DONE, STATUS_HISTORY_FULL,
                      STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL, Y_EC, Y_EM, Y_LID)
-from .physics import node_melt, rhs_packed, temperature_rates
+from .physics import node_melt, temperature_rates
+from .volcanism import rhs_packed
 from .record import record
 
 #: melt-fraction tolerance with which the loop lands on the first crossing of phi_c (near phi_c the melt
@@ -100,11 +102,23 @@ def _unseen_extremum(tu, tc, tu_new, tc_new, dtu, dtc, dtu1, dtc1, h, grid):
 
 
 @njit
+def y_slot(j):
+    """Index in the integrator state of y[j] (the energy block at S_Y, the rest at S_YV)."""
+    return S_Y + j if j < N_Y_ENERGY else S_YV + j - N_Y_ENERGY
+
+
+@njit
+def dy_slot(j):
+    """Index in the integrator state of the last slope of y[j]."""
+    return S_DY + j if j < N_Y_ENERGY else S_DYV + j - N_Y_ENERGY
+
+
+@njit
 def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch):
     state[S_T] = t
     for j in range(N_Y):
-        state[S_Y + j] = y[j]
-        state[S_DY + j] = k1[j]
+        state[y_slot(j)] = y[j]
+        state[dy_slot(j)] = k1[j]
     state[S_H] = h
     state[S_N_H] = n_h
     state[S_N_IV] = n_iv
@@ -141,7 +155,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     k7 = k[dopri.N_STAGES - 1]
     t = state[S_T]
     for j in range(N_Y):
-        y[j] = state[S_Y + j]
+        y[j] = state[y_slot(j)]
     h = state[S_H]
     n_h = int(state[S_N_H])
     n_iv = int(state[S_N_IV])
@@ -163,7 +177,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
         rhs_packed(t, y, args, k1)
     else:  # resuming: the last accepted stage's slopes (first-same-as-last), exactly as left
         for j in range(N_Y):
-            k1[j] = state[S_DY + j]
+            k1[j] = state[dy_slot(j)]
     tu = work[0]
     tc = work[1]
     top = grid.shape[1] - 1
