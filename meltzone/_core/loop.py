@@ -15,7 +15,7 @@ import numpy as np
 
 from . import dopri
 from ._jit import njit
-from .layout import N_Y_ENERGY, S_DYV, S_YV
+from .layout import N_Y_ENERGY, S_DYV, S_YV, Y_CRUST
 from .layout import (C_W, D_PHI_SURF, G_F, G_TSOL, N_D, N_Y, NOT_YET, P_ATOL, P_CC, P_CM, P_DT_MAX,
                      P_H_MAX, P_MANTLE_MASS, P_PHI_C, P_RTOL, P_T_END, S_DY, S_H, S_N_H, S_N_IV, S_N_REJ,
                      S_SLOPE_C, S_SLOPE_M, S_T, S_T_SWITCH, S_TC, S_TU, S_Y, STATUS_DONE, STATUS_HISTORY_FULL,
@@ -41,6 +41,9 @@ MIN_STEP = 1e-6
 CHECKED_STEP = 1.0
 #: absolute error scale of the lid per kelvin of run.atol_k [m]
 LID_SCALE = 1.0e3
+#: error scales of the crust (a record of the extracted melt, not part of the energy budget): absolute [m] and
+#: relative (this model's choice: enough to keep a stagnant-lid crust below its cap within a step)
+CRUST_ATOL, CRUST_RTOL = 1.0, 1.0e-4
 #: relative end-time slack of the loop
 END_SLACK = 1e-14
 
@@ -135,10 +138,10 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     """Advance from ``state`` until the end time, a full buffer or ``max_steps``; update ``state`` in place (so
     a call can resume) and return a STATUS_* code.
 
-    Error control on the two energies (relative rtol plus the heat of atol_k) and on the lid (relative plus
-    atol_k x LID_SCALE); every step also keeps |dT_u|, |dT_c| <= P_DT_MAX, and a step with a temperature
-    extremum inside it is shortened when the interpolated extremum would change which nodes are above the
-    solidus while neither end shows it, so that no melt layer appears and vanishes unseen between two recorded
+    Error control on the two energies (relative rtol plus the heat of atol_k), on the lid (relative plus
+    atol_k x LID_SCALE) and on the crust (CRUST_ATOL, CRUST_RTOL); every step also keeps |dT_u|, |dT_c| <=
+    P_DT_MAX, and a step with a temperature extremum inside it is shortened when the interpolated extremum would
+    change which nodes are above the solidus while neither end shows it, so that no melt layer appears and vanishes unseen between two recorded
     profiles. The step that first takes the top of the mantle below phi_c ends on the crossing (within
     PHI_TOL), and its end is the rheological switch time (state S_T_SWITCH, NOT_YET before), from which the
     solidified mantle's criterion and law apply; so the switch does not depend on the step size.
@@ -222,6 +225,9 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             e = abs(yerr[j]) / scale
             if e > err:
                 err = e
+        e = abs(yerr[Y_CRUST]) / (CRUST_ATOL + CRUST_RTOL * max(abs(y[Y_CRUST]), abs(ynew[Y_CRUST])))
+        if e > err:
+            err = e
         big_jump = abs(tu_new - tu) > JUMP_LIMIT * dt_max or abs(tc_new - tc) > JUMP_LIMIT * dt_max
         unseen = False
         if err <= 1.0 and not big_jump and h > CHECKED_STEP:
