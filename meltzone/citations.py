@@ -148,6 +148,31 @@ REGISTRY = {
                            CHECKED),
 }
 
+# volcanism of the boundary-layer scheme (meltzone._core.volcanism)
+REGISTRY.update({
+    "morschhauser2011": Citation("melt extraction under a stagnant lid at the convective velocity, crust no thicker "
+                                 "than the lid, heat of the intruded melt", "Morschhauser, Grott & Breuer 2011, "
+                                 "Icarus 212:541; Grott et al. 2011, EPSL 308:391 (forms)", MEMORY),
+    "kite2009": Citation("melt production under ridges (plate speed x ridge length x melt column); deep melt denser "
+                         "than its residue", "Kite, Manga & Gaidos 2009, ApJ 700:1732", MEMORY),
+    "moore2013": Citation("heat pipe: erupted melt carries its heat to the surface", "Moore & Webb 2013, Nature "
+                          "501:501 (abstract)", CHECKED),
+    "crisp1984": Citation("erupted fraction (intrusive:extrusive ~5:1 oceanic, ~10:1 continental); Earth's magma "
+                          "production 26-34 km^3/yr", "Crisp 1984, J. Volcanol. Geotherm. Res. 20:177 (abstract)",
+                          CHECKED),
+    "volatile_partition": Citation("batch melting of H2O and CO2: D = 0.01 and 5.5e-4; mantle 140 ppm H2O, 70 ppm "
+                                   "CO2", "Shaw 1970; Aubaud et al. 2004, GRL 31:L20611; Hauri et al. 2006, EPSL "
+                                   "248:715; Rosenthal et al. 2015, EPSL 412:77; Saal et al. 2002, Nature 419:451",
+                                   MEMORY),
+    "stixrude2009": Citation("deepest pressure melt rises from (melt-solid density crossover, 12 GPa)",
+                             "Stixrude et al. 2009, EPSL 278:226", MEMORY),
+    "orourke2012": Citation("stagnant-lid crust capped where its base turns to eclogite (1.5 GPa)",
+                            "O'Rourke & Korenaga 2012, Icarus 221:1043; Ito & Kennedy 1971", MEMORY),
+    "volcanism_choices": Citation("plate length = mantle depth in the convective velocity; intruded melt's heat "
+                                  "leaves through the lid; mobile-lid crust subducted at u / d; smooth cut-off of "
+                                  "crust growth over 5% of its cap", "meltzone", CHOICE),
+})
+
 #: Melting models whose fits were read in their sources (the tests reproduce the published values); the
 #: others rest on coefficients recalled from memory (see meltzone.melting).
 CHECKED_MELTING_MODELS = ("peridotite-lowp", "katz2003")
@@ -171,6 +196,9 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     keys += surface_keys(spec)
     if spec.melting.basal_magma_ocean == "reservoir":
         keys += ["labrosse2007", "blanc2020", "orourke2020", "basal_ocean_melting"]
+    if spec.volcanism.enabled == "on":
+        keys += ["morschhauser2011", "kite2009", "moore2013", "crisp1984", "volatile_partition", "stixrude2009",
+                 "volcanism_choices"] + (["orourke2012"] if cv.regime == "stagnant-lid" else [])
     return tuple(keys)
 
 

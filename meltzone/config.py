@@ -24,6 +24,7 @@ from types import MappingProxyType
 from typing import Any, Mapping
 
 from .config_key import Key
+from .config_volcanism import VOLCANISM_KEYS
 from .errors import ConfigError
 
 #: Mass range [Earth masses] inside which the models are calibrated; outside it a run warns.
@@ -246,6 +247,7 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                                   "(used when core_temperature_k = 0)", lo=0.0, hi=10000.0,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
     },
+    "volcanism": {name: Key(**kw) for name, kw in VOLCANISM_KEYS.items()},
     "run": {
         "end_time_gyr": Key(10.0, "Gyr", "model time at which the run stops", lo=0.0, lo_open=True, hi=100.0,
             source="limit: 100 Gyr, ~7x the age of the Universe (13.8 Gyr)"),

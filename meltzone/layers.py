@@ -34,6 +34,7 @@ from scipy.optimize import brentq
 
 from .constants import YEAR
 from .water import water_outcomes
+from .volcanics import volcanism_outcomes
 
 #: Relative tolerance (of the step length) to which event times are refined.
 EVENT_TIME_TOLERANCE = 1e-6
@@ -286,6 +287,8 @@ def summarize(result, table=None, events=None) -> dict:
         **core_times(result, events),
         # water: the ocean, the escape and the solidification type (meltzone.water)
         **water_outcomes(result, mo_end_s),
+        # volcanism: when it ended, crust, outgassed H2O and CO2 (None without melt extraction)
+        **volcanism_outcomes(result),
         "events": [{"time_yr": e["time"] / YEAR, "kind": e["kind"], "layer": e["layer"],
                     "depth_m": None if math.isnan(e["depth"]) else e["depth"],
                     "pressure_pa": None if math.isnan(e["pressure"]) else e["pressure"]} for e in events],

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .constants import YEAR as _YEAR
 from .errors import MeltzoneError
 from .figstyle import (CONFIDENCE_COLOURS, FIGURE_FORMATS, LINE_COLOURS, OKABE_ITO, add_note,  # noqa: F401
                        figure_format, log_time_axis, new_figure, save, stack_labels, zero_position)
@@ -481,6 +482,10 @@ def _has_atmosphere(result) -> bool:
             or any(np.any(h[k] > 0.0) for k in ("atmosphere_h2o", "atmosphere_co2")))
 
 
+#: Factors from the History's SI units to the units a history panel shows (by the panel label's unit).
+UNIT_SCALE = {"[km]": 1e-3, "[km^3/yr]": _YEAR / 1e9, "[kg/yr]": _YEAR}
+
+
 def _surface_panels(h) -> list:
     """The atmosphere's panels of a run with the surface series: partial pressures; outgoing radiation against the
     absorbed stellar flux; water in the ocean, in the melt and lost to space (only the ones that are not all 0)."""
@@ -518,8 +523,15 @@ def build_history(result):
                                   ("radiogenic_power", "radiogenic heating", "-")]),
         ("melt mass [kg]", "log", [("melt_mass", "melt in the mantle", "-")]),
         ("thickness, radius [km]", "linear", [("lid_thickness", "stagnant lid", "-"),
-                                             ("inner_core_radius", "inner-core radius", "-")]),
+                                             ("inner_core_radius", "inner-core radius", "-")]
+         + ([("crust_thickness", "crust", "-")] if "crust_thickness" in h else [])),
     ]
+    if "melt_production" in h:  # volcanism: melt extraction and the outgassing of its erupted part
+        for ylabel, series in (("melt production [km^3/yr]", [("melt_production", "extracted melt", "-")]),
+                               ("outgassing [kg/yr]", [("outgassing_h2o_rate", "H2O", "-"),
+                                                       ("outgassing_co2_rate", "CO2", "-")])):
+            some = any(np.any(h[name] > 0.0) for name, _, _ in series)
+            panels.append((ylabel, "log" if some else "linear", series))
     if _has_atmosphere(result):
         some = any(np.any(h[k] > 0.0) for k in ("atmosphere_h2o", "atmosphere_co2"))
         panels.append(("atmosphere [kg]", "log" if some else "linear",
@@ -530,7 +542,7 @@ def build_history(result):
     axes = fig.subplots(len(panels), 1, sharex=True)
     for ax, (ylabel, scale, series) in zip(axes, panels):
         for i, (name, label, line) in enumerate(series):
-            scale_by = 1e-3 if ylabel.endswith("[km]") else 1.0
+            scale_by = UNIT_SCALE.get(ylabel[ylabel.rfind("["):], 1.0)
             values = h[name] * scale_by
             colour = LINE_COLOURS[i]
             ax.plot(t, positive(values[keep]) if scale == "log" else values[keep], ls=line, color=colour,
@@ -550,8 +562,8 @@ def build_history(result):
 
 
 def history(result, path):
-    """Temperatures, heat flows, melt mass, lid thickness and inner-core radius (and, for a planet with an
-    atmosphere, its H2O and CO2) against model time on a log axis with the values at t = 0; ``result`` and
+    """Temperatures, heat flows, melt mass, lid and crust thickness and inner-core radius (and, for a planet
+    with an atmosphere, its H2O and CO2; with volcanism, melt production and outgassing) against model time on a log axis with the values at t = 0; ``result`` and
     ``path`` as in :func:`meltmap`; returns the file written."""
     return _save_new(build_history, path, result)
 

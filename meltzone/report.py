@@ -207,6 +207,20 @@ def _water_text(s: dict) -> str:
     return f"{ocean}; {s.get('water_lost_kg', 0.0):.3g} kg lost to space{kind}"
 
 
+def _volcanism_text(s: dict) -> str:
+    if s.get("crust_thickness_m") is None:
+        return "not modelled (volcanism.enabled = \"off\", or a scheme without melt extraction)"
+    if s["volcanism_at_end"]:
+        when = f"active at the end ({s['final_melt_production_km3_yr']:.3g} km^3/yr)"
+    elif s["volcanism_end_yr"] is None:
+        when = "none"
+    else:
+        when = f"ended after {format_years(s['volcanism_end_yr'])}"
+    return (f"{when}, peak {s['peak_melt_production_km3_yr']:.3g} km^3/yr; crust "
+            f"{s['crust_thickness_m'] / 1e3:,.3g} km; outgassed H2O {s['outgassed_h2o_kg']:.3g} kg, CO2 "
+            f"{s['outgassed_co2_kg']:.3g} kg")
+
+
 def head_lines(result, s: dict) -> list[str]:
     """The run's outcome in a few lines (the summary dict ``s`` of :meth:`Result.summary`)."""
     it = result.interior
@@ -227,6 +241,7 @@ def head_lines(result, s: dict) -> list[str]:
         f"partial melt      {_melt_text(s)}",
         f"basal melt layer  {_basal_text(s)}",
         *([f"water             {_water_text(s)}"] if spec.surface.water_inventory_kg > 0 else []),
+        f"volcanism         {_volcanism_text(s)}",
         f"at the end        T_u {s['final_upper_temperature_k']:,.0f} K, surface heat flow "
         f"{s['final_surface_heat_flow_w'] / 1e12:,.3g} TW, CMB heat flow {s['final_cmb_heat_flow_w'] / 1e12:,.3g} TW, "
         f"inner core {s['inner_core_radius_m'] / 1e3:,.0f} km",

@@ -51,8 +51,9 @@ def _rel(a, b):
 
 def compare(spec):
     """(fast-path Result, its summary, reference solution, reference model, dict of largest differences). The
-    reference has no basal magma ocean: both run with ``melting.basal_magma_ocean = "off"``."""
-    spec = spec.replace(basal_magma_ocean="off")
+    reference has no basal magma ocean and no melt extraction (tests/reference_volcanism.py checks that law):
+    both run with ``melting.basal_magma_ocean = "off"`` and ``volcanism.enabled = "off"``."""
+    spec = spec.replace(basal_magma_ocean="off", **{"volcanism.enabled": "off"})
     result = evolve(spec)
     h = result.history
     t = h["time"]

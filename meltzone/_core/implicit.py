@@ -68,9 +68,9 @@ def _surface_state(t, phi, grid, lost, par):
     for i in range(phi.shape[0]):
         m_melt += grid[G_W, i] * phi[i]
     if steam:
-        eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, par[P_H2O_SOL_C], par[P_H2O_SOL_E], par)
+        eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, par[P_H2O_SOL_C], par[P_H2O_SOL_E], par, 0.0, 0.0)
     else:
-        eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par)
+        eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par, 0.0, 0.0)
     return radiation_state(t, eps, steam, par), (m_h2o, m_co2, dissolved, water, m_melt)
 
 

@@ -26,9 +26,14 @@ REACHED_CENTRE, EMPTIED, BLEW_UP, OUT_OF_ROOM = range(4)
 # ------------------------------------------------------------ evolution state y (energies)
 STATE_Y = ("mantle_energy", "core_energy", "lid_thickness", "heat_out_minus_radiogenic")
 Y_EM, Y_EC, Y_LID, Y_OUT = range(N_Y := len(STATE_Y))
-# water lost to space [kg] (escape; its integrator-state slots are appended to STATE below)
+#: the energy block's length (the integrator state keeps y[:N_Y_ENERGY] at S_Y and the rest at S_YV)
+N_Y_ENERGY = N_Y
+# water lost to space [kg] (escape)
 STATE_Y += ("water_lost",)
 Y_WATER, = range(N_Y, N_Y := len(STATE_Y))
+# volcanism (boundary-layer scheme): crust thickness [m], H2O and CO2 extracted from the mantle by melt [kg]
+STATE_Y += ("crust_thickness", "extracted_h2o", "extracted_co2")
+Y_CRUST, Y_XH2O, Y_XCO2 = range(N_Y, N_Y := len(STATE_Y))
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 GRID_ROWS = ("radius", "pressure", "adiabat", "mass", "solidus", "liquidus", "aux1", "aux2")
@@ -78,6 +83,13 @@ N_LUM = 81
 PARAMETERS += tuple(f"log_luminosity_{i:02d}" for i in range(N_LUM))
 P_LUM = N_PAR
 N_PAR = len(PARAMETERS)
+# volcanism (boundary-layer scheme; meltzone._core.volcanism): switch (1 on), erupted fraction, initial mantle H2O
+# and CO2 [mass fractions], their melt/solid partition coefficients, deepest pressure melt rises from [Pa],
+# basalt-eclogite pressure [Pa], crust density [kg/m^3], ridge length / circumference
+PARAMETERS += ("volcanism", "erupted_fraction", "mantle_h2o", "mantle_co2", "h2o_partition", "co2_partition",
+               "max_extraction_pressure", "eclogite_pressure", "crust_density", "ridge_length_factor")
+(P_VOLC, P_ERUPT, P_X_H2O, P_X_CO2, P_D_H2O, P_D_CO2, P_P_EXTRACT, P_P_ECLOGITE, P_RHO_CRUST,
+ P_RIDGE) = range(N_PAR, N_PAR := len(PARAMETERS))
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",
@@ -95,6 +107,11 @@ D_RB, D_MB = range(N_D, N_D := len(DIAGNOSTICS))
 DIAGNOSTICS += ("absorbed_flux", "outgoing_radiation", "water_ocean", "water_dissolved", "water_lost",
                 "pressure_h2o", "pressure_co2", "water_escape_rate")
 (D_ABS, D_OLR, D_OCEAN, D_DISSOLVED, D_LOST, D_P_H2O, D_P_CO2, D_ESCAPE) = range(N_D, N_D := len(DIAGNOSTICS))
+# volcanism: melt extracted [kg/s], heat the erupted melt carries out [W], crust rate [m/s], H2O and CO2
+# extracted from the mantle [kg/s], convective (plate) velocity [m/s]
+DIAGNOSTICS += ("melt_production", "volcanic_heat_flow", "crust_rate", "h2o_extraction", "co2_extraction",
+                "convective_velocity")
+D_MPROD, D_QVOLC, D_DCRUST, D_XH2O, D_XCO2, D_UCONV = range(N_D, N_D := len(DIAGNOSTICS))
 
 # ------------------------------------------------------------ history columns (one row per accepted step)
 HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "lid_thickness", "heat_out_minus_radiogenic",
@@ -109,6 +126,10 @@ H_BMO, = range(N_H, N_H := len(HISTORY_COLUMNS))
 HISTORY_COLUMNS += ("absorbed_flux", "outgoing_radiation", "water_ocean", "water_dissolved", "water_lost",
                     "pressure_h2o", "pressure_co2")
 H_ABS, H_OLR, H_OCEAN, H_DISSOLVED, H_LOST, H_P_H2O, H_P_CO2 = range(N_H, N_H := len(HISTORY_COLUMNS))
+HISTORY_COLUMNS += ("melt_production", "volcanic_heat_flow", "crust_thickness", "outgassing_h2o_rate",
+                    "outgassing_co2_rate", "outgassed_h2o", "outgassed_co2")
+(H_MPROD, H_QVOLC, H_CRUST, H_OG_H2O_RATE, H_OG_CO2_RATE, H_OG_H2O,
+ H_OG_CO2) = range(N_H, N_H := len(HISTORY_COLUMNS))
 
 # ------------------------------------------------------------ melt-interval columns
 INTERVAL_COLUMNS = ("step", "top_node", "bottom_node", "max_melt_fraction", "melt_mass", "full_top_node",
@@ -125,9 +146,11 @@ STATE = ("time", "mantle_energy", "core_energy", "lid_thickness", "heat_out_minu
  _S_DY2, _S_DY3, S_T_SWITCH) = range(N_STATE := len(STATE))
 #: S_T_SWITCH until the top of the mantle first reaches the rheological transition
 NOT_YET = 1.0e300
-# y[Y_WATER] and its rate (the first four components keep their slots above)
-STATE += ("water_lost", "rate_water_lost")
-S_Y_WATER, S_DY_WATER = range(N_STATE, N_STATE := len(STATE))
+# the state y beyond the energy block (y[N_Y_ENERGY:]) and its last slopes
+STATE += tuple(STATE_Y[N_Y_ENERGY:]) + tuple("rate_" + name for name in STATE_Y[N_Y_ENERGY:])
+S_YV = N_STATE
+S_DYV = S_YV + N_Y - N_Y_ENERGY
+N_STATE = len(STATE)
 
 # ------------------------------------------------------------ mixing-length scheme (implicit.py, mlt_physics.py)
 #: per-face geometry, faces 0 (CMB) .. n (surface) of the n mantle cells

@@ -15,12 +15,13 @@ import numpy as np
 
 from . import dopri
 from ._jit import njit
+from .layout import N_Y_ENERGY, S_DYV, S_YV, Y_CRUST
 from .layout import (C_W, D_PHI_SURF, G_F, G_TSOL, N_D, N_Y, NOT_YET, P_ATOL, P_CC, P_CM, P_DT_MAX,
                      P_H_MAX, P_MANTLE_MASS, P_PHI_C, P_RTOL, P_T_END, S_DY, S_H, S_N_H, S_N_IV, S_N_REJ,
                      S_SLOPE_C, S_SLOPE_M, S_T, S_T_SWITCH, S_TC, S_TU, S_Y, STATUS_DONE, STATUS_HISTORY_FULL,
                      STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL, Y_EC, Y_EM, Y_LID)
-from .layout import S_DY_WATER, S_Y_WATER, Y_WATER
-from .physics import node_melt, rhs_packed, temperature_rates
+from .physics import node_melt, temperature_rates
+from .volcanism import rhs_packed
 from .record import record
 
 #: melt-fraction tolerance with which the loop lands on the first crossing of phi_c (near phi_c the melt
@@ -40,6 +41,9 @@ MIN_STEP = 1e-6
 CHECKED_STEP = 1.0
 #: absolute error scale of the lid per kelvin of run.atol_k [m]
 LID_SCALE = 1.0e3
+#: error scales of the crust (a record of the extracted melt, not part of the energy budget): absolute [m] and
+#: relative (this model's choice: enough to keep a stagnant-lid crust below its cap within a step)
+CRUST_ATOL, CRUST_RTOL = 1.0, 1.0e-4
 #: relative end-time slack of the loop
 END_SLACK = 1e-14
 
@@ -101,21 +105,23 @@ def _unseen_extremum(tu, tc, tu_new, tc_new, dtu, dtc, dtu1, dtc1, h, grid):
 
 
 @njit
-def state_slots(j):
-    """(slot of y[j], slot of its rate) in the integrator state: the water lost has its own pair after the
-    original ones."""
-    if j == Y_WATER:
-        return S_Y_WATER, S_DY_WATER
-    return S_Y + j, S_DY + j
+def y_slot(j):
+    """Index in the integrator state of y[j] (the energy block at S_Y, the rest at S_YV)."""
+    return S_Y + j if j < N_Y_ENERGY else S_YV + j - N_Y_ENERGY
+
+
+@njit
+def dy_slot(j):
+    """Index in the integrator state of the last slope of y[j]."""
+    return S_DY + j if j < N_Y_ENERGY else S_DYV + j - N_Y_ENERGY
 
 
 @njit
 def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch):
     state[S_T] = t
     for j in range(N_Y):
-        sy, sdy = state_slots(j)
-        state[sy] = y[j]
-        state[sdy] = k1[j]
+        state[y_slot(j)] = y[j]
+        state[dy_slot(j)] = k1[j]
     state[S_H] = h
     state[S_N_H] = n_h
     state[S_N_IV] = n_iv
@@ -132,10 +138,10 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     """Advance from ``state`` until the end time, a full buffer or ``max_steps``; update ``state`` in place (so
     a call can resume) and return a STATUS_* code.
 
-    Error control on the two energies (relative rtol plus the heat of atol_k) and on the lid (relative plus
-    atol_k x LID_SCALE); every step also keeps |dT_u|, |dT_c| <= P_DT_MAX, and a step with a temperature
-    extremum inside it is shortened when the interpolated extremum would change which nodes are above the
-    solidus while neither end shows it, so that no melt layer appears and vanishes unseen between two recorded
+    Error control on the two energies (relative rtol plus the heat of atol_k), on the lid (relative plus
+    atol_k x LID_SCALE) and on the crust (CRUST_ATOL, CRUST_RTOL); every step also keeps |dT_u|, |dT_c| <=
+    P_DT_MAX, and a step with a temperature extremum inside it is shortened when the interpolated extremum would
+    change which nodes are above the solidus while neither end shows it, so that no melt layer appears and vanishes unseen between two recorded
     profiles. The step that first takes the top of the mantle below phi_c ends on the crossing (within
     PHI_TOL), and its end is the rheological switch time (state S_T_SWITCH, NOT_YET before), from which the
     solidified mantle's criterion and law apply; so the switch does not depend on the step size.
@@ -152,7 +158,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     k7 = k[dopri.N_STAGES - 1]
     t = state[S_T]
     for j in range(N_Y):
-        y[j] = state[state_slots(j)[0]]
+        y[j] = state[y_slot(j)]
     h = state[S_H]
     n_h = int(state[S_N_H])
     n_iv = int(state[S_N_IV])
@@ -174,7 +180,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
         rhs_packed(t, y, args, k1)
     else:  # resuming: the last accepted stage's slopes (first-same-as-last), exactly as left
         for j in range(N_Y):
-            k1[j] = state[state_slots(j)[1]]
+            k1[j] = state[dy_slot(j)]
     tu = work[0]
     tc = work[1]
     top = grid.shape[1] - 1
@@ -219,6 +225,9 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             e = abs(yerr[j]) / scale
             if e > err:
                 err = e
+        e = abs(yerr[Y_CRUST]) / (CRUST_ATOL + CRUST_RTOL * max(abs(y[Y_CRUST]), abs(ynew[Y_CRUST])))
+        if e > err:
+            err = e
         big_jump = abs(tu_new - tu) > JUMP_LIMIT * dt_max or abs(tc_new - tc) > JUMP_LIMIT * dt_max
         unseen = False
         if err <= 1.0 and not big_jump and h > CHECKED_STEP:

@@ -27,6 +27,7 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
 from .basal import basal_ocean, basal_top_energy
 from .inner_core import inner_core_heat
 from .layout import D_MB, D_RB, G_P, P_BMO, P_BMO_MREF
+from .layout import P_ERUPT, Y_XCO2, Y_XH2O
 from .melt import melt_fraction
 from .roots import bisect, illinois
 from .layout import (D_ABS, D_DISSOLVED, D_ESCAPE, D_LOST, D_OCEAN, D_OLR, D_P_CO2, D_P_H2O, P_H2O_SOL_C,
@@ -205,12 +206,20 @@ def melt_mass_adiabat(tu, grid, law):
 
 @njit
 def grey_emissivity(m_melt, par):
+    """:func:`grey_emissivity_with` without volcanic outgassing."""
+    return grey_emissivity_with(m_melt, par, 0.0, 0.0)
+
+
+@njit
+def grey_emissivity_with(m_melt, par, added_h2o, added_co2):
     """(eps, M_H2O, M_CO2) of the grey atmosphere over a mantle holding ``m_melt`` of melt: the volatiles in
     solubility equilibrium with the melt, X_H2O = 6.8e-8 P^0.7 and X_CO2 = 4.4e-12 P (mass fractions, P in Pa;
     as used by Lebrun et al. 2013), grey optical depth tau_i = (3 M_i / (8 pi R^2)) sqrt(kappa_i g / (3 P0)),
     P0 = 1 atm, kappa_H2O = 0.01, kappa_CO2 = 0.001 m^2/kg, eps = 2 / (tau + 2) (Abe & Matsui 1985;
-    Elkins-Tanton 2008). No water lost (see :func:`meltzone._core.radiation.volatiles` for the general form)."""
-    eps, m_h2o, m_co2, _, _ = volatiles(m_melt, 0.0, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par)
+    Elkins-Tanton 2008). ``added_h2o``, ``added_co2`` [kg]: volcanically outgassed masses, added to the
+    inventories of surface.water_inventory_kg and co2_inventory_kg before the solubility partition (see
+    :func:`meltzone._core.radiation.volatiles` for the general form, with water lost to space)."""
+    eps, m_h2o, m_co2, _, _ = volatiles(m_melt, 0.0, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par, added_h2o, added_co2)
     return eps, m_h2o, m_co2
 
 
@@ -371,10 +380,11 @@ def _top_boundary(stagnant, solid, tu, tl, d_lid, d_conv, dtc, eta_u, rad, par):
 
 
 @njit
-def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag):
+def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag, added_h2o, added_co2):
     """Fluxes, boundary layers, surface temperature and regime at (T_u, T_c, lid) and time t; fills ``diag``
     (D_*). ``t_switch``: when the top of the mantle first reached the rheological transition (NOT_YET before);
-    ``lost``: the water lost to space so far [kg]."""
+    ``lost``: the water lost to space so far [kg]; ``added_h2o``, ``added_co2``: volcanically outgassed masses
+    [kg] (in the atmosphere's inventory)."""
     tu = max(tu, 1.0)
     tc = max(tc, 1.0)
     d_lid = max(d_lid, 0.0)
@@ -426,9 +436,11 @@ def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag):
     if steam or par[P_ATMOSPHERE] > 0.5:
         m_melt = melt_mass_adiabat(tu, grid, law_i)
         if steam:
-            eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, par[P_H2O_SOL_C], par[P_H2O_SOL_E], par)
+            eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, par[P_H2O_SOL_C], par[P_H2O_SOL_E], par,
+                                                          added_h2o, added_co2)
         else:
-            eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par)
+            eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par,
+                                                          added_h2o, added_co2)
     rad = radiation_state(t, eps, steam, par)
     # top boundary: the magma ocean (soft-turbulence law) and the solid mantle (the configured law: mobile
     # lid, or the lid over its sublayer in stagnant-lid mode); across the rheological transition
@@ -508,7 +520,9 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     """dy/dt at (t, y); also fills ``diag`` and leaves (T_u, T_c) in ``work``."""
     tu, tc = temperatures(y, grid, core, par, law, work)
     d_lid = y[Y_LID]
-    diagnose(t, tu, tc, d_lid, t_switch, y[Y_WATER], grid, core, iso, par, law, diag)
+    # the erupted share of the volatiles the melt extracted is in the atmosphere (zero without volcanism)
+    diagnose(t, tu, tc, d_lid, t_switch, y[Y_WATER], grid, core, iso, par, law, diag, par[P_ERUPT] * y[Y_XH2O],
+             par[P_ERUPT] * y[Y_XCO2])
     area_s = 4.0 * math.pi * par[P_RADIUS] ** 2
     area_c = 4.0 * math.pi * diag[D_RB] ** 2  # the core's radius, or the basal ocean's top
     q_surf = diag[D_QS] * area_s
@@ -583,7 +597,8 @@ def profile(tu, tc, d_lid, diag, grid, par, law, temp, phi):
 
 
 @njit
-def profile_at(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, temp, phi, diag):
-    """T(r), phi(r) and diagnostics at given temperatures and water lost (snapshots and event refinement)."""
-    diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag)
+def profile_at(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, temp, phi, diag, added_h2o, added_co2):
+    """T(r), phi(r) and diagnostics at given temperatures, water lost and outgassed masses [kg] (snapshots and
+    event refinement; see :func:`diagnose`)."""
+    diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag, added_h2o, added_co2)
     profile(tu, tc, d_lid, diag, grid, par, law, temp, phi)

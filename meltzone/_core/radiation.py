@@ -163,13 +163,14 @@ def saturation_temperature(p):
 
 
 @njit
-def volatiles(m_melt, lost, coeff, expo, par):
+def volatiles(m_melt, lost, coeff, expo, par, added_h2o, added_co2):
     """(eps, M_H2O vapour, M_CO2, M_H2O dissolved, M_H2O left) [kg] before condensation: the water left
-    (inventory less the escaped) in solubility equilibrium with ``m_melt`` of melt, X_H2O = coeff P^expo
-    (the steam atmosphere's Sossi et al. 2023 law, or the grey law's 6.8e-8 P^0.7), CO2 as X = 4.4e-12 P."""
-    water = max(par[P_H2O_TOTAL] - lost, 0.0)
+    (inventory plus the volcanically outgassed ``added_h2o``, less the escaped) in solubility equilibrium with
+    ``m_melt`` of melt, X_H2O = coeff P^expo (the steam atmosphere's Sossi et al. 2023 law, or the grey law's
+    6.8e-8 P^0.7), CO2 (inventory plus ``added_co2``) as X = 4.4e-12 P."""
+    water = max(par[P_H2O_TOTAL] + added_h2o - lost, 0.0)
     m_h2o = atmosphere_mass(water, m_melt, par, coeff, expo)
-    m_co2 = atmosphere_mass(par[P_CO2_TOTAL], m_melt, par, 4.4e-12, 1.0)
+    m_co2 = atmosphere_mass(par[P_CO2_TOTAL] + added_co2, m_melt, par, 4.4e-12, 1.0)
     return emissivity_of(m_h2o, m_co2, par), m_h2o, m_co2, water - m_h2o, water
 
 

@@ -133,7 +133,8 @@ from .._core import layout as k
 from ..constants import GYR, MYR, YEAR
 from ..errors import ConvergenceError
 from ..iron import EARTH_ICB_PRESSURE_PA, iron_melting_temperature
-from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid
+from .contract import (INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, VOLCANISM_SERIES, History, InStep,
+                       MantleGrid)
 from .schemes import Scheme
 
 #: Lid thickness [m] below which a stagnant lid is not resolved (its starting value).
@@ -252,6 +253,17 @@ def build_inputs(spec, interior, curves):
     par[k.P_BMO_ENRICH] = mt.basal_melt_enrichment_k
     par[k.P_BMO_MREF] = mt.basal_ocean_reference_fraction * it.mantle_mass
     fill_parameters(spec, it, par)  # star, steam atmosphere, water, escape (meltzone.star)
+    vc = spec.volcanism
+    par[k.P_VOLC] = 1.0 if vc.enabled == "on" else 0.0
+    par[k.P_ERUPT] = vc.erupted_fraction
+    par[k.P_X_H2O] = vc.mantle_h2o_ppm * 1e-6
+    par[k.P_X_CO2] = vc.mantle_co2_ppm * 1e-6
+    par[k.P_D_H2O] = vc.h2o_partition_coefficient
+    par[k.P_D_CO2] = vc.co2_partition_coefficient
+    par[k.P_P_EXTRACT] = vc.max_extraction_pressure_gpa * 1e9
+    par[k.P_P_ECLOGITE] = vc.eclogite_pressure_gpa * 1e9
+    par[k.P_RHO_CRUST] = vc.crust_density_kg_m3
+    par[k.P_RIDGE] = vc.ridge_length_factor
     iso = isotope_table(spec.heating.radiogenic_scale)
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
@@ -288,7 +300,8 @@ def initial_state(spec, inputs) -> np.ndarray:
     lid = LID_MIN if inputs.par[k.P_STAGNANT] > 0.5 else 0.0
     y = np.zeros(k.N_Y)
     energy_state(tu, tc, lid, 0.0, inputs.grid, inputs.core, inputs.par, inputs.law, y)
-    state[k.S_Y:k.S_Y + k.Y_WATER] = y[:k.Y_WATER]  # the water lost (0) has its own slot
+    state[k.S_Y:k.S_Y + k.N_Y_ENERGY] = y[:k.N_Y_ENERGY]
+    state[k.S_YV:k.S_YV + k.N_Y - k.N_Y_ENERGY] = y[k.N_Y_ENERGY:]
     state[k.S_H] = 1.0  # [s]; the controller grows it
     state[k.S_TU] = tu
     state[k.S_TC] = tc
@@ -348,6 +361,9 @@ def run(spec, interior, curves, progress=None, *, history_rows=4096, interval_ro
     series["regime"] = series["regime"].astype(np.int8)
     if inputs.par[k.P_BMO] < 0.5:  # no basal ocean modelled: no series (consumers fall back to the layer table)
         del series["basal_ocean_thickness"]
+    if inputs.par[k.P_VOLC] < 0.5:  # volcanism off: none of its series (the summary then has nulls)
+        for name in VOLCANISM_SERIES:
+            del series[name]
     # closure: stored-energy loss against the time-integrated (surface heat loss - radiogenic heating)
     de = series["stored_energy"][0] - series["stored_energy"]
     scale = max(float(np.max(np.abs(de))), 1.0)
@@ -411,6 +427,7 @@ class Evaluator:
         self.lost = h["water_lost"] if "water_lost" in h else np.zeros_like(h.time)
         switch = h.switch_times.get(SWITCH)
         self.t_switch = k.NOT_YET if switch is None else float(switch)
+        self.outgassed = [h.series.get(name) for name in ("outgassed_h2o", "outgassed_co2")]
 
     def state(self, t: float) -> tuple[float, float, float]:
         """(T_u [K], T_c [K], lid [m]) at model time ``t`` [s]."""
@@ -436,7 +453,8 @@ class Evaluator:
         phi = np.empty(n)
         diag = np.empty(k.N_D)
         lost = float(np.interp(t, self.t, self.lost))  # the water lost, linear inside the step
-        profile_at(float(t), tu, tc, lid, self.t_switch, lost, grid, core, iso, par, law, temp, phi, diag)
+        added = [0.0 if v is None else float(np.interp(t, self.t, v)) for v in self.outgassed]
+        profile_at(float(t), tu, tc, lid, self.t_switch, lost, grid, core, iso, par, law, temp, phi, diag, *added)
         return InStep(temperature=temp, melt_fraction=phi, regime_melt_fraction=float(diag[k.D_PHI_TOP]),
                       centre_freezing_margin_k=float(core[k.C_TMELT, 0] - tc * core[k.C_F, 0]))
 

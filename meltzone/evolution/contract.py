@@ -54,7 +54,19 @@ SERIES = {
     "water_lost": ("kg", "water lost to space (escape of its hydrogen)", False),
     "pressure_h2o": ("Pa", "partial pressure of H2O at the surface (its column weight)", False),
     "pressure_co2": ("Pa", "partial pressure of CO2 at the surface (its column weight)", False),
+    # volcanism (melt extraction; the boundary-layer scheme with volcanism.enabled = "on")
+    "melt_production": ("m^3/s", "volume rate of melt extracted from the mantle (as crust)", False),
+    "volcanic_heat_flow": ("W", "heat the erupted melt carries to the surface (heat pipe; not in "
+                           "surface_heat_flow)", False),
+    "crust_thickness": ("m", "thickness of the crust made of extracted melt", False),
+    "outgassing_h2o_rate": ("kg/s", "H2O outgassed by erupted melt", False),
+    "outgassing_co2_rate": ("kg/s", "CO2 outgassed by erupted melt", False),
+    "outgassed_h2o": ("kg", "H2O outgassed by erupted melt since the start", False),
+    "outgassed_co2": ("kg", "CO2 outgassed by erupted melt since the start", False),
 }
+#: The series of volcanism (present together or not at all).
+VOLCANISM_SERIES = ("melt_production", "volcanic_heat_flow", "crust_thickness", "outgassing_h2o_rate",
+                    "outgassing_co2_rate", "outgassed_h2o", "outgassed_co2")
 
 REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID, REGIME_STAGNANT_LID = 0, 1, 2
 REGIME_NAMES = {REGIME_MAGMA_OCEAN: "magma ocean", REGIME_MOBILE_LID: "mobile lid",

@@ -56,6 +56,12 @@ METRICS = {
     "end_time_yr": ("yr", "model time reached"),
     "radius_m": ("m", "planet radius from the interior solver"),
     "n_events": ("1", "number of events in the case's event list"),
+    # volcanism (NaN when not modelled)
+    "volcanism_end_yr": ("yr", "time at which melt extraction stopped for good; NaN: still active at the end, "
+                               "none, or not modelled"),
+    "crust_thickness_m": ("m", "crust made of extracted melt at the end of the run"),
+    "outgassed_h2o_kg": ("kg", "H2O outgassed by erupted melt over the run"),
+    "outgassed_co2_kg": ("kg", "CO2 outgassed by erupted melt over the run"),
 }
 
 #: Yes/no outcomes per case: name -> long name. int8: 1 yes, 0 no, -1 no result (failed or rejected case).
@@ -159,6 +165,8 @@ def outcomes(summary: dict, result=None, age_yr: float | None = None) -> tuple[d
         "end_time_yr": float(summary["end_time_yr"]),
         "radius_m": float(summary["radius_m"]),
         "n_events": float(len(summary.get("events", ()))),
+        **{key: _none_nan(summary.get(key)) for key in ("volcanism_end_yr", "crust_thickness_m", "outgassed_h2o_kg",
+                                                        "outgassed_co2_kg")},
     }
     flags = {
         "magma_ocean_persists": _flag(summary.get("magma_ocean_at_end", summary["magma_ocean_end_yr"] is None)),

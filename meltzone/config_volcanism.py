@@ -1,0 +1,64 @@
+"""The ``[volcanism]`` section of the configuration: melt extraction, the heat pipe, crust and outgassing of the
+boundary-layer scheme (physics in :mod:`meltzone._core.volcanism`).
+
+Plain keyword tables (``config.Key`` arguments), kept apart from :mod:`meltzone.config` so that the section
+can grow without that module; :data:`meltzone.config.SCHEMA` wraps each in a ``Key``.
+"""
+
+from __future__ import annotations
+
+#: key -> keyword arguments of meltzone.config.Key
+VOLCANISM_KEYS = {
+    "enabled": dict(
+        default="on", unit="", choices=("on", "off"),
+        doc="melt extraction from the partial-melt zone (boundary-layer scheme): heat pipe, crust growth and "
+            "outgassing; 'off' keeps all melt in the mantle",
+        source="Morschhauser, Grott & Breuer 2011, Icarus 212:541 (stagnant lid); Kite, Manga & Gaidos 2009, "
+               "ApJ 700:1732 (ridges); Moore & Webb 2013, Nature 501:501 (heat pipe)"),
+    "erupted_fraction": dict(
+        default=1.0 / 6.0, unit="1", lo=0.0, hi=1.0,
+        doc="fraction of the extracted melt that erupts (carries its heat to the surface and outgasses); the "
+            "rest intrudes the crust",
+        source="intrusive:extrusive ~5:1 in oceanic and ~10:1 in continental settings (Crisp 1984, J. Volcanol. "
+               "Geotherm. Res. 20:177, abstract checked), i.e. 1/6 and 1/11; limits: none to all"),
+    "mantle_h2o_ppm": dict(
+        default=140.0, unit="ppm", lo=0.0, hi=1.0e5,
+        doc="initial H2O of the solid mantle (by mass) that melting can extract",
+        source="Earth's depleted mantle ~140 ppm H2O (Saal et al. 2002, Nature 419:451; from memory); limit: "
+               "10 wt%"),
+    "mantle_co2_ppm": dict(
+        default=70.0, unit="ppm", lo=0.0, hi=1.0e5,
+        doc="initial CO2 of the solid mantle (by mass) that melting can extract",
+        source="Earth's depleted mantle ~70 ppm CO2 (Saal et al. 2002, Nature 419:451; from memory); limit: 10 wt%"),
+    "h2o_partition_coefficient": dict(
+        default=0.01, unit="1", lo=1.0e-6, hi=1.0,
+        doc="bulk solid/melt partition coefficient of H2O in batch melting",
+        source="~0.006-0.01 for peridotite (Aubaud et al. 2004, GRL 31:L20611; Hauri et al. 2006, EPSL 248:715; "
+               "from memory); limits: 1e-6 (perfectly incompatible) to 1 (no enrichment)"),
+    "co2_partition_coefficient": dict(
+        default=5.5e-4, unit="1", lo=1.0e-6, hi=1.0,
+        doc="bulk solid/melt partition coefficient of CO2 in batch melting",
+        source="~5.5e-4 for peridotite (Rosenthal et al. 2015, EPSL 412:77; from memory); limits as for H2O"),
+    "max_extraction_pressure_gpa": dict(
+        default=12.0, unit="GPa", lo=0.1, hi=1000.0,
+        doc="deepest pressure from which melt rises (deeper melt is denser than its residue and stays)",
+        source="melt-solid density crossover of peridotite melts near 12-13 GPa (Stixrude et al. 2009, EPSL "
+               "278:226; Kite et al. 2009, ApJ 700:1732 discuss it for super-Earths; from memory); limits: the "
+               "shallowest melting to beyond any mantle"),
+    "eclogite_pressure_gpa": dict(
+        default=1.5, unit="GPa", lo=0.1, hi=100.0,
+        doc="pressure at which the base of a stagnant-lid crust turns to eclogite and founders (caps the crust "
+            "at this pressure's depth)",
+        source="basalt-eclogite transition ~1.5-2 GPa (Ito & Kennedy 1971; used for super-Earth crusts by "
+               "O'Rourke & Korenaga 2012, Icarus 221:1043; from memory); 100: no cap"),
+    "crust_density_kg_m3": dict(
+        default=2900.0, unit="kg/m^3", lo=2000.0, hi=4000.0,
+        doc="density of the crust the extracted melt makes (volumes of melt production and crust)",
+        source="basaltic crust, 2900 kg/m^3 (common practice; e.g. Mars, Neumann et al. 2004, JGR 109:E08002, "
+               "from memory)"),
+    "ridge_length_factor": dict(
+        default=1.5, unit="1", lo=0.01, hi=10.0,
+        doc="length of spreading ridges over the planet's circumference (mobile lid)",
+        source="Earth: ~60000 km of ridges over a 40000 km circumference (common practice); Kite et al. 2009 "
+               "scale ridge length with planet size (from memory)"),
+}

@@ -1,0 +1,228 @@
+"""Volcanism of the boundary-layer scheme: the extraction law against its plain reference, Earth's ridges today,
+a Mars-like stagnant-lid planet, the energy budget with the heat of the extracted melt, outgassing into a grey
+atmosphere, the crust's caps, the off switch and the outputs."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from meltzone import melting
+from meltzone.config import PlanetSpec
+from meltzone.constants import YEAR
+from meltzone.evolution import boundary_layer
+from meltzone.interior import build_interior
+from meltzone.layers import ENERGY_CLOSURE_TOLERANCE
+from meltzone.pipeline import evolve
+
+from reference_volcanism import extraction
+
+#: m^3/s -> km^3/yr
+KM3_YR = YEAR / 1e9
+#: The weak mobile-lid scaling calibrated for Earth (tests/test_evolution.py).
+WEAK = {"beta": 0.015, "nusselt_prefactor": 40.0}
+#: Earth's mantle potential temperature today, 1350 C (Herzberg, Condie & Korenaga 2010, EPSL 292:79; checked).
+EARTH_TP_K = 1623.15
+#: A Mars-like planet: 0.107 M_E, core mass fraction 0.24 (common practice for Mars), stagnant lid, 4.5 Gyr.
+MARS = {"mass_earth": 0.107, "core_mass_fraction": 0.24, "regime": "stagnant-lid", "end_time_gyr": 4.5}
+
+
+def kernel_state(spec, tu, lid=0.0, crust=0.0, extracted=(0.0, 0.0)):
+    """(diag, interior) of the kernel at T_u (solid mantle after the rheological switch, T_c 500 K above the
+    adiabat at the CMB), lid, crust and extracted H2O and CO2 [kg]."""
+    from meltzone._core import layout as k
+    from meltzone._core.physics import diagnose
+    from meltzone._core.volcanism import volcanism
+
+    it = build_interior(spec)
+    curves = melting.node_curves(melting.get_model(spec.melting.model), it.P[it.mantle],
+                                 spec.melting.melt_fraction_law)
+    inp = boundary_layer.build_inputs(spec, it, curves)
+    diag = np.zeros(k.N_D)
+    y = np.zeros(k.N_Y)
+    y[k.Y_LID], y[k.Y_CRUST], y[k.Y_XH2O], y[k.Y_XCO2] = lid, crust, *extracted
+    tc = tu * inp.grid[k.G_F, 0] + 500.0
+    diagnose(4.5e9 * YEAR, tu, tc, lid, 0.0, 0.0, inp.grid, inp.core, inp.iso, inp.par, inp.law, diag, 0.0, 0.0)
+    volcanism(tu, y, diag, inp.grid, inp.par, inp.law)
+    return diag, it
+
+
+@pytest.mark.parametrize("case", [
+    dict(planet=MARS, model="peridotite-mantle", tu=1600.0, lid=80e3, crust=30e3, extracted=(1e18, 5e17)),
+    dict(planet=MARS, model="peridotite-mantle", tu=1700.0, lid=50e3, crust=60e3, extracted=(0.0, 0.0)),
+    dict(planet={"mass_earth": 3.0, "regime": "stagnant-lid"}, model="peridotite-mantle", tu=1750.0, lid=60e3,
+         crust=10e3, extracted=(3e19, 1e19)),
+    dict(planet={"mass_earth": 1.0, **WEAK}, model="peridotite-mantle", tu=1650.0, lid=0.0, crust=5e3,
+         extracted=(2e20, 1e20)),
+    dict(planet={"mass_earth": 1.0, "melt_fraction_law": "katz2003", **WEAK}, model="peridotite-mantle",
+         tu=1700.0, lid=0.0, crust=0.0, extracted=(0.0, 0.0)),
+])
+def test_extraction_law_matches_plain_reference(case):
+    """The kernel's extraction (production, heat, crust rate, volatiles, velocity) against the plain reference
+    written from the equations (tests/reference_volcanism.py), stagnant and mobile lid, linear and Katz
+    melt laws, depleted and fresh mantles. Tolerance 1e-9 relative (same sums in another order; the
+    isentropic melt fraction to 1e-13)."""
+    from meltzone._core import layout as k
+
+    spec = PlanetSpec(**case["planet"], model=case["model"])
+    diag, it = kernel_state(spec, case["tu"], case["lid"], case["crust"], case["extracted"])
+    ref = extraction(spec, it, case["tu"], diag[k.D_DELTA_U], diag[k.D_TS], diag[k.D_TL], case["lid"],
+                     case["crust"], *case["extracted"])
+    assert ref["production"] > 0.0
+    got = {"production": diag[k.D_MPROD], "heat": diag[k.D_QVOLC], "crust_rate": diag[k.D_DCRUST],
+           "h2o": diag[k.D_XH2O], "co2": diag[k.D_XCO2], "velocity": diag[k.D_UCONV]}
+    for name, value in ref.items():
+        assert got[name] == pytest.approx(value, rel=1e-9, abs=1e-30), name
+
+
+def test_earth_ridge_melt_production_today():
+    """Present-day Earth (1 M_E, core fraction 0.325, mobile lid with the weak scaling calibrated for Earth,
+    peridotite melting model) at its potential temperature 1350 C (Herzberg et al. 2010, checked): melt made
+    under ridges within ~75% of Crisp 1984's 26-34 km^3/yr of global magma production (ocean ridges ~75% of
+    it; J. Volcanol. Geotherm. Res. 20:177, abstract checked), i.e. 19.5-25.5 km^3/yr; the melt column
+    (production / (2 u L_ridge)) within 6-8 km, the oceanic crust's thickness (~7 km, White, McKenzie &
+    O'Nions 1992, JGR 97:19683; from memory)."""
+    from meltzone._core import layout as k
+
+    spec = PlanetSpec(mass_earth=1.0, core_mass_fraction=0.325, regime="mobile-lid", model="peridotite-mantle",
+                      **WEAK)
+    diag, it = kernel_state(spec, EARTH_TP_K)
+    volume_rate = diag[k.D_MPROD] / spec.volcanism.crust_density_kg_m3
+    assert 0.75 * 26.0 <= volume_rate * KM3_YR <= 0.75 * 34.0
+    column = volume_rate / (2.0 * diag[k.D_UCONV] * spec.volcanism.ridge_length_factor * 2 * np.pi * it.radius)
+    assert 6.0e3 <= column <= 8.0e3
+
+
+@pytest.fixture(scope="module")
+def earth():
+    """Earth (as above) evolved to 4.5 Gyr."""
+    return evolve(PlanetSpec(mass_earth=1.0, core_mass_fraction=0.325, regime="mobile-lid",
+                             model="peridotite-mantle", end_time_gyr=4.5, **WEAK))
+
+
+def test_earth_evolution_melts_under_ridges_today(earth):
+    """The evolved Earth still melts under its ridges at 4.5 Gyr, at a rate no larger than Crisp 1984's global
+    26-34 km^3/yr (its mantle is colder than 1350 C with this melting model, so the rate is lower than
+    today's); its energy budget closes to ENERGY_CLOSURE_TOLERANCE with the heat of the extracted melt."""
+    s = earth.summary()
+    assert s["volcanism_at_end"] and s["volcanism_end_yr"] is None
+    assert 0.0 < s["final_melt_production_km3_yr"] <= 34.0
+    assert s["energy_closure"] <= ENERGY_CLOSURE_TOLERANCE
+    assert s["crust_thickness_m"] > 0.0
+
+
+@pytest.fixture(scope="module")
+def mars():
+    """The Mars-like planet with the default melting model, and with the peridotite model."""
+    return evolve(PlanetSpec(**MARS)), evolve(PlanetSpec(**MARS, model="peridotite-mantle"))
+
+
+@pytest.mark.xfail(strict=True, reason="known limitation: the crust follows the stagnant lid while melting "
+                   "lasts (measured 31 km with the default melting model, whose melting ends within ~0.1 Gyr, and "
+                   "126 km with the peridotite model, melting ~2.5 Gyr); crustal heat sources and mantle "
+                   "depletion, which keep the crust of Morschhauser et al. 2011 below their lid, are not modelled")
+def test_mars_crust_thickness(mars):
+    """Mars-like stagnant-lid planet at 4.5 Gyr: mean crustal thickness 50 +- 12 km (Wieczorek & Zuber 2004,
+    JGR 109:E01009; checked in a review page), with either melting model."""
+    for r in mars:
+        assert 38e3 <= r.summary()["crust_thickness_m"] <= 62e3
+
+
+def test_mars_crust_within_its_caps(mars):
+    """The Mars-like crust never exceeds its caps, the lid and the eclogite depth 1.5 GPa / (rho_cr g) (this
+    model's rule after Morschhauser et al. 2011 and O'Rourke & Korenaga 2012; 0.1% for the smooth cut-off),
+    and reaches at least 20 km (the order of Mars's crust, Wieczorek & Zuber 2004)."""
+    for r in mars:
+        h = r.history
+        cap = 1.5e9 / (2900.0 * r.interior.surface_gravity)
+        lid = h["regime"] == 2  # the history's lid thickness is 0 outside the stagnant-lid regime
+        assert np.all(h["crust_thickness"][lid] <= np.minimum(np.maximum(h["lid_thickness"][lid], 1e3), cap)
+                      * (1 + 1e-3))
+        assert h["crust_thickness"][-1] >= 20e3
+
+
+def test_heat_pipe_keeps_the_energy_budget(mars):
+    """With melt extraction the budget still closes to ENERGY_CLOSURE_TOLERANCE (heat of the extracted melt
+    taken from the mantle and added to the heat out; common practice: the integrated linear invariant), and
+    that heat is a sizeable part of the planet's loss while volcanism lasts (Moore & Webb 2013, Nature
+    501:501: volcanic heat transport matters early): its time integral is > 10% of the conducted one."""
+    for r in mars:
+        assert r.history.energy_closure <= ENERGY_CLOSURE_TOLERANCE
+    h = mars[1].history
+    t = h.time
+    assert np.trapezoid(h["volcanic_heat_flow"], t) > 0.1 * np.trapezoid(h["surface_heat_flow"], t)
+
+
+def test_outgassing_within_the_mantle_inventory(mars):
+    """Outgassed H2O and CO2 are positive, at most the erupted share of the initial mantle inventory (mass
+    balance), and the rates integrate to the totals (trapezoid over the recorded steps, 2% relative)."""
+    for r in mars:
+        h = r.history
+        v = r.spec.volcanism
+        for gas, ppm in (("h2o", v.mantle_h2o_ppm), ("co2", v.mantle_co2_ppm)):
+            total = h[f"outgassed_{gas}"][-1]
+            assert 0.0 < total <= v.erupted_fraction * ppm * 1e-6 * r.interior.mantle_mass * (1 + 1e-9)
+            assert np.all(np.diff(h[f"outgassed_{gas}"]) >= 0.0)
+            assert np.trapezoid(h[f"outgassing_{gas}_rate"], h.time) == pytest.approx(total, rel=2e-2)
+
+
+def test_outgassed_volatiles_enter_the_grey_atmosphere():
+    """With a grey atmosphere the outgassed volatiles join the surface inventory before the solubility partition:
+    at the end, M_atm + X(P) M_melt = inventory + outgassed with X_H2O = 6.8e-8 P^0.7, P = M_atm g / (4 pi R^2)
+    and M_melt the adiabat's melt (the partition the scheme uses, as in Lebrun et al. 2013; from memory), solved
+    here with brentq (1e-6 relative); a run without volcanism keeps just the inventory in the balance."""
+    from scipy.optimize import brentq
+
+    kw = dict(**MARS, atmosphere="grey", water_inventory_kg=1e19, co2_inventory_kg=1e18)
+    r = evolve(PlanetSpec(**kw))
+    h = r.history
+    it = r.interior
+    g = h.grid
+    phi = melting.melt_fraction(h["upper_temperature"][-1] * it.adiabat[it.mantle], g.solidus, g.liquidus,
+                                np.zeros(g.n), np.zeros(g.n), melting.LAW_LINEAR)
+    m_melt = float(np.sum(g.mass * phi))
+    total = 1e19 + h["outgassed_h2o"][-1]
+    area = 4.0 * np.pi * it.radius ** 2
+    m_atm = brentq(lambda m: m + 6.8e-8 * (m * it.surface_gravity / area) ** 0.7 * m_melt - total, 0.0, total,
+                   xtol=1e-6)
+    assert h["outgassed_h2o"][-1] > 0.0
+    assert h["atmosphere_h2o"][-1] == pytest.approx(m_atm, rel=1e-6)
+    off = evolve(PlanetSpec(**kw, **{"volcanism.enabled": "off"})).history
+    assert off["atmosphere_h2o"][-1] < h["atmosphere_h2o"][-1]
+
+
+def test_eclogite_caps_the_crust():
+    """A low basalt-eclogite pressure (0.3 GPa) caps the crust at its depth, P / (rho_cr g) (O'Rourke & Korenaga
+    2012 discuss the transition; the cap is this model's rule), within 0.1%."""
+    r = evolve(PlanetSpec(**{**MARS, "end_time_gyr": 1.0}, model="peridotite-mantle", eclogite_pressure_gpa=0.3))
+    cap = 0.3e9 / (2900.0 * r.interior.surface_gravity)
+    crust = r.history["crust_thickness"]
+    assert crust.max() <= cap * (1 + 1e-3)
+    assert crust[-1] >= 0.9 * cap
+
+
+def test_volcanism_off_gives_nulls():
+    """volcanism.enabled = "off": no volcanism series, and null outcomes (nothing modelled)."""
+    r = evolve(PlanetSpec(**{**MARS, "end_time_gyr": 0.5}, model="peridotite-mantle", **{"volcanism.enabled": "off"}))
+    assert "melt_production" not in r.history
+    s = r.summary()
+    assert all(s[key] is None for key in ("volcanism_end_yr", "crust_thickness_m", "outgassed_h2o_kg",
+                                          "outgassed_co2_kg"))
+
+
+def test_volcanism_outputs_in_file_and_report(mars, tmp_path):
+    """The run file keeps the volcanism series (read back identical) and the report names the outcome; the
+    history figure has its volcanism panels."""
+    from meltzone import plot, report, results
+
+    r = mars[1]
+    path = results.write(r, tmp_path / "mars.h5")
+    back = results.load(path)
+    for name in ("melt_production", "crust_thickness", "outgassed_h2o", "outgassing_co2_rate"):
+        np.testing.assert_array_equal(back.history[name], r.history[name])
+    assert back.summary()["crust_thickness_m"] == r.summary()["crust_thickness_m"]
+    s = r.summary()
+    assert s["volcanism_end_yr"] is not None and not s["volcanism_at_end"]
+    assert "volcanism         ended after" in report.run_text(r)
+    labels = [ax.get_ylabel() for ax in plot.build_history(r).axes]
+    assert "melt production [km^3/yr]" in labels and "outgassing [kg/yr]" in labels
