@@ -113,8 +113,8 @@ REGISTRY = {
     "dormand1980": Citation("Dormand-Prince 5(4) Runge-Kutta pair", "Dormand & Prince 1980, J. Comput. Appl. "
                             "Math. 6:19", CHECKED),
     # host star, steam atmosphere, water, escape (meltzone.star, meltzone._core.radiation)
-    "baraffe2015": Citation("bolometric luminosity of the host star through time (tracks of 0.1, 0.3, 1.0 M_sun, "
-                            "rows copied from the table)", "Baraffe et al. 2015, A&A 577:A42", CHECKED),
+    "baraffe2015": Citation("bolometric luminosity of the host star through time (twelve tracks of 0.08-1.4 "
+                            "M_sun, rows copied from the table)", "Baraffe et al. 2015, A&A 577:A42", CHECKED),
     "star_interpolation": Citation("the star's luminosity between tracks: linear in log age and log mass",
                                    "meltzone.star", CHOICE),
     "ribas2005": Citation("XUV of the Sun through time, power law in age with exponent 1.23 after ~0.1 Gyr",

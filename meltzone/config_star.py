@@ -6,15 +6,15 @@ from .config_key import Key
 from .errors import ConfigError
 
 #: Star masses [M_sun] of the shipped stellar tracks (meltzone.star.MASS_RANGE; a test keeps the two equal).
-STAR_MASS_RANGE = (0.1, 1.0)
+STAR_MASS_RANGE = (0.08, 1.4)
 
 STAR_KEYS = {
     "mass_msun": Key(0.0, "M_sun", "mass of the host star; 0 = no star (surface.equilibrium_temperature_k is "
                      "then the fixed irradiation); with a star, leave surface.equilibrium_temperature_k at its "
                      "default", lo=STAR_MASS_RANGE[0], hi=STAR_MASS_RANGE[1], special=0.0,
-        source="bolometric luminosity from the tracks of Baraffe et al. 2015, A&A 577:A42 (rows for 0.1, 0.3 "
-               "and 1.0 M_sun shipped in meltzone/data/bhac15_luminosity.csv, interpolated in log age and log "
-               "mass); the range is the shipped tracks'"),
+        source="bolometric luminosity from the tracks of Baraffe et al. 2015, A&A 577:A42 (rows of twelve "
+               "tracks, 0.08-1.4 M_sun, shipped in meltzone/data/bhac15_luminosity.csv, interpolated in log age "
+               "and log mass); the range is the shipped tracks' (the table's own upper end is 1.4 M_sun)"),
     "age_at_start_myr": Key(3.0, "Myr", "age of the star at the start of the run (model time 0)", lo=1.0,
                             hi=10000.0,
         source="~3 Myr: about half of young stars have lost their dust disks (the end of gas accretion onto "

@@ -2,10 +2,10 @@
 luminosity, the absorbed flux, and the kernel parameters of the star, the steam atmosphere and escape.
 
 Bolometric luminosity: the tracks of Baraffe et al. 2015, A&A 577:A42 (solar metallicity; pre-main sequence
-included), rows copied into ``meltzone/data/bhac15_luminosity.csv`` for 0.1, 0.3 and 1.0 M_sun (see the file's
-header for what was taken). log L is interpolated linearly in log age along each track (the nearest row outside
+included), rows copied into ``meltzone/data/bhac15_luminosity.csv`` for twelve tracks of 0.08-1.4 M_sun (see
+the file's header for what was taken and where each track's rows end). log L is interpolated linearly in log age along each track (the nearest row outside
 it), then linearly in log mass between the two tracks around the star's mass (this model's choice); masses
-0.1-1.0 M_sun (:data:`MASS_RANGE`). For the kernels it is sampled on N_LUM ages uniform in log age, 1 Myr -
+0.08-1.4 M_sun (:data:`MASS_RANGE`). For the kernels it is sampled on N_LUM ages uniform in log age, 1 Myr -
 10 Gyr (:func:`luminosity_grid`).
 
 XUV: L_XUV = r_sat L_bol while the star is younger than t_sat, then r_sat L_bol(t_sat) (age / t_sat)^-alpha
@@ -27,7 +27,7 @@ from ._core import layout as k
 from .constants import AU, G, GYR, MYR, SOLAR_LUMINOSITY_BHAC15, STEFAN_BOLTZMANN, WATER_PER_HYDROGEN, YEAR
 
 #: Star masses [M_sun] the shipped tracks cover.
-MASS_RANGE = (0.1, 1.0)
+MASS_RANGE = (0.08, 1.4)
 #: log10 of the first age [yr] of the kernels' luminosity grid and its spacing (N_LUM points: 1 Myr - 10 Gyr).
 GRID_LOG_AGE0 = 6.0
 GRID_LOG_AGE_STEP = 4.0 / (k.N_LUM - 1)

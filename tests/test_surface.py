@@ -70,6 +70,27 @@ def test_baraffe2015_solar_track_at_three_ages(log_age, log_l):
     assert float(got) == pytest.approx(log_l, abs=1e-9)
 
 
+@pytest.mark.parametrize("mass, log_age, log_l", [
+    (0.5, 7.000091, -0.908), (0.5, 7.700487, -1.336), (0.5, 9.500558, -1.449),
+    (1.2, 6.502554, 0.074), (1.2, 7.330079, 0.373), (1.2, 9.000204, 0.281)])
+def test_baraffe2015_two_more_tracks_at_three_ages(mass, log_age, log_l):
+    """Baraffe et al. 2015, A&A 577:A42, the 0.5 and 1.2 M_sun tracks (rows of the table, read from the published
+    file): log L/L_sun on the pre-main sequence, near the zero-age main sequence (1.2 M_sun: its luminosity peak at
+    21 Myr) and on the main sequence, reproduced to 1e-9 dex."""
+    assert float(star.log_luminosity(mass, log_age)) == pytest.approx(log_l, abs=1e-9)
+
+
+def test_shipped_tracks_brighten_with_mass_after_4_myr():
+    """Common practice (mass-luminosity relation): at a fixed age the luminosity rises with the star's mass; it holds
+    between every pair of neighbouring shipped tracks from 4 Myr to 10 Gyr (a guard against a mis-copied row;
+    before ~4 Myr deuterium burning makes the 0.08 M_sun star brighter than the 0.1 M_sun one, as in the table)."""
+    tracks = star.tracks()
+    ages = np.linspace(6.6, 10.0, 69)
+    logl = np.array([np.interp(ages, *tracks[m]) for m in sorted(tracks)])
+    assert np.all(np.diff(logl, axis=0) > 0.0)
+    assert sorted(tracks) == [0.08, 0.1, 0.2, 0.3, 0.5, 0.7, 0.8, 0.9, 1.0, 1.1, 1.2, 1.4]
+
+
 def test_star_table_range_and_kernel_grid():
     """The config's star-mass range is the shipped tracks'; the kernel's luminosity (one table in the parameters,
     linear in log age) equals the Python interpolation at the grid ages (1e-12) and stays within 0.02 dex of it
