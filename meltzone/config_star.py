@@ -7,6 +7,8 @@ from .errors import ConfigError
 
 #: Star masses [M_sun] of the shipped stellar tracks (meltzone.star.MASS_RANGE; a test keeps the two equal).
 STAR_MASS_RANGE = (0.08, 1.4)
+#: default L_XUV / L_bol of a saturated star (Jackson, Davis & Wheatley 2012; see the key's source)
+XUV_SATURATION_RATIO = 10.0 ** -3.1
 
 STAR_KEYS = {
     "mass_msun": Key(0.0, "M_sun", "mass of the host star; 0 = no star (surface.equilibrium_temperature_k is "
@@ -20,16 +22,20 @@ STAR_KEYS = {
         source="~3 Myr: about half of young stars have lost their dust disks (the end of gas accretion onto "
                "planets), Haisch, Lada & Lada 2001, ApJ 553:L153 (from memory); limits: the tracks' 1 Myr - "
                "10 Gyr"),
-    "xuv_saturation_ratio": Key(1.0e-3, "1", "L_XUV / L_bol while the star's activity is saturated",
+    "xuv_saturation_ratio": Key(XUV_SATURATION_RATIO, "1", "L_XUV / L_bol while the star's activity is saturated",
                                 lo=0.0, hi=0.1,
-        source="~10^-3 (X-rays ~10^-3.1 for FGK stars, Jackson, Davis & Wheatley 2012, MNRAS 422:2024; from "
-               "memory); 0 = no XUV"),
+        source="10^-3.1: the saturated L_X/L_bol of late K dwarfs, the upper end of 10^-4.3 (early F) - 10^-3.1 "
+               "(Jackson, Davis & Wheatley 2012, MNRAS 422:2024; abstract checked); X-rays only, the EUV adds to "
+               "it; with the default age and exponent it gives the present Sun 1.48x Ribas et al.'s 1-1200 A fit "
+               "(measured); 0 = no XUV"),
     "xuv_saturation_age_gyr": Key(0.1, "Gyr", "age at which the saturated XUV phase ends", lo=0.001, hi=10.0,
-        source="~0.1 Gyr for a Sun-like star (Ribas et al. 2005, ApJ 622:680; Jackson et al. 2012; from "
-               "memory); longer for M dwarfs"),
+        source="0.1 Gyr = 10^8 yr, inside the saturation times 10^7.6 - 10^8.3 yr of FGK stars (Jackson et al. "
+               "2012, abstract checked; no clear trend with spectral type there); longer for M dwarfs"),
     "xuv_decay_exponent": Key(1.23, "1", "exponent alpha of the XUV decay L_XUV ~ age^-alpha after saturation",
                               lo=0.0, hi=5.0,
-        source="1.23: the Sun's 1-1200 A emission, Ribas et al. 2005, ApJ 622:680 (from memory)"),
+        source="1.23: the Sun's 1-1200 A emission, Ribas et al. 2005, ApJ 622:680 (the exponent from memory, "
+               "consistent with the abstract's 2.5x the present flux 2.5 Gyr ago and 6x 3.5 Gyr ago: 1.23 gives "
+               "2.7x and 6.0x; checked so)"),
 }
 
 ORBIT_KEYS = {

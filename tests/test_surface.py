@@ -130,14 +130,18 @@ def test_xuv_and_escape_against_plain_reference():
 
 
 def test_xuv_of_the_present_sun_against_ribas2005():
-    """Ribas et al. 2005, ApJ 622:680 (from memory): the Sun's 1-1200 A flux at 1 AU is 29.7 (age/Gyr)^-1.23
-    erg/s/cm^2. The defaults (saturation 1e-3 of L_bol to 0.1 Gyr, exponent 1.23) give 1.85x that at 4.56 Gyr
-    (measured); tolerance: within a factor 2.5 at 1 and 4.56 Gyr (the default ratio is the X-ray saturation of
-    Jackson et al. 2012, not fitted to Ribas)."""
+    """Ribas et al. 2005, ApJ 622:680: the Sun's 1-1200 A flux at 1 AU is 29.7 (age/Gyr)^-1.23 erg/s/cm^2 (the
+    coefficient from memory; the exponent checked against the abstract's ratios, 2.5x 2.5 Gyr ago and 6x 3.5 Gyr
+    ago, 10%). The defaults (Jackson et al. 2012's saturated 10^-3.1 of L_bol to 0.1 Gyr, exponent 1.23) give 1.48x
+    the fit at 4.56 Gyr (measured); tolerance: within a factor 2 at 1 and 4.56 Gyr (the default ratio is the X-ray
+    saturation, not fitted to Ribas)."""
     for age_gyr in (1.0, 4.56):
         flux = float(star.xuv_luminosity(1.0, age_gyr * 1e9)) / (4 * math.pi * (1.495978707e11) ** 2) * 1e3
         ribas = 29.7 * age_gyr ** -1.23
-        assert 1.0 / 2.5 < flux / ribas < 2.5
+        assert 1.0 / 2.0 < flux / ribas < 2.0
+    now = float(star.xuv_luminosity(1.0, 4.56e9))
+    assert float(star.xuv_luminosity(1.0, 2.06e9)) / now == pytest.approx(2.5, rel=0.1)
+    assert float(star.xuv_luminosity(1.0, 1.06e9)) / now == pytest.approx(6.0, rel=0.1)
 
 
 def _earth(a_au, atmosphere="steam", oceans=1.0, end_gyr=0.05, **extra):
