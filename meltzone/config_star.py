@@ -12,8 +12,8 @@ XUV_SATURATION_RATIO = 10.0 ** -3.1
 
 STAR_KEYS = {
     "mass_msun": Key(0.0, "M_sun", "mass of the host star; 0 = no star (surface.equilibrium_temperature_k is "
-                     "then the fixed irradiation); with a star, leave surface.equilibrium_temperature_k at its "
-                     "default", lo=STAR_MASS_RANGE[0], hi=STAR_MASS_RANGE[1], special=0.0,
+                     "then the fixed irradiation); with a star, do not set surface.equilibrium_temperature_k "
+                     "(not even to its default)", lo=STAR_MASS_RANGE[0], hi=STAR_MASS_RANGE[1], special=0.0,
         source="bolometric luminosity from the tracks of Baraffe et al. 2015, A&A 577:A42 (rows of twelve "
                "tracks, 0.08-1.4 M_sun, shipped in meltzone/data/bhac15_luminosity.csv, interpolated in log age "
                "and log mass); the range is the shipped tracks' (the table's own upper end is 1.4 M_sun)"),
@@ -57,13 +57,14 @@ ESCAPE_KEYS = {
 }
 
 
-def check_star(values, t_eq_default: float) -> bool:
-    """True when a star is set; ConfigError naming both keys when surface.equilibrium_temperature_k is set too."""
+def check_star(values, t_eq_set: bool) -> bool:
+    """True when a star is set; ConfigError naming both keys when surface.equilibrium_temperature_k was set too
+    (explicitly, in the file, with --set or as a keyword: also at its default value)."""
     mass = values["star"]["mass_msun"]
     if mass <= 0.0:
         return False
-    t_eq = values["surface"]["equilibrium_temperature_k"]
-    if t_eq != t_eq_default:
+    if t_eq_set:
+        t_eq = values["surface"]["equilibrium_temperature_k"]
         raise ConfigError(f"star.mass_msun = {mass:g} and surface.equilibrium_temperature_k = {t_eq:g} K are both "
                           "set: the star's flux sets the irradiation; remove surface.equilibrium_temperature_k or set "
                           "star.mass_msun = 0")

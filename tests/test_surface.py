@@ -217,6 +217,32 @@ def test_star_and_equilibrium_temperature_together_is_an_error():
     assert SCHEMA["surface"]["atmosphere"].choices == ("none", "grey", "steam")
 
 
+def test_equilibrium_temperature_set_explicitly_at_its_default_with_a_star_is_an_error(tmp_path):
+    """surface.equilibrium_temperature_k written at its default value next to a star is still both keys set: a
+    ConfigError naming both, from a file, from --set and as a keyword (this project's rule: a key the star replaces
+    may not be given); unset, the spec round-trips through its TOML text and replace() (common practice)."""
+    default = SCHEMA["surface"]["equilibrium_temperature_k"].default
+    both = "star.mass_msun.*surface.equilibrium_temperature_k"
+    cfg = tmp_path / "p.toml"
+    cfg.write_text(f"[star]\nmass_msun = 0.5\n[surface]\nequilibrium_temperature_k = {default!r}\n")
+    with pytest.raises(ConfigError, match=both):
+        PlanetSpec.from_toml(cfg)
+    cfg.write_text("[star]\nmass_msun = 0.5\n")
+    with pytest.raises(ConfigError, match=both):
+        PlanetSpec.from_toml(cfg, overrides=[f"surface.equilibrium_temperature_k={default!r}"])
+    with pytest.raises(ConfigError, match=both):
+        PlanetSpec(mass_msun=0.5, equilibrium_temperature_k=default)
+    spec = PlanetSpec.from_toml(cfg)
+    with pytest.raises(ConfigError, match=both):
+        spec.replace(equilibrium_temperature_k=default)
+    assert spec.replace(semi_major_axis_au=0.7).orbit.semi_major_axis_au == 0.7
+    text = spec.to_toml()
+    assert "\n# equilibrium_temperature_k" in text
+    (tmp_path / "back.toml").write_text(text)
+    assert PlanetSpec.from_toml(tmp_path / "back.toml") == spec
+    assert f"equilibrium_temperature_k = {default!r}" in PlanetSpec().to_toml()  # without a star: a plain key
+
+
 def test_cli_bad_star_input_exits_2(tmp_path):
     """The CLI prints one line naming both keys and exits 2 (common practice of this project)."""
     from click.testing import CliRunner
