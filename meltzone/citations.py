@@ -128,7 +128,8 @@ REGISTRY = {
     "goldblatt2013": Citation("runaway-greenhouse limit of outgoing longwave radiation, 282 W/m^2",
                               "Goldblatt et al. 2013, Nature Geosci. 6:661", CHECKED),
     "steam_window": Citation("the steam law's join to sigma T^4 and its near-infrared window opening near 1800 K "
-                             "(shape after Goldblatt et al. 2013 Fig. 1, from memory; not fitted)",
+                             "(shape after Goldblatt et al. 2013 Fig. 1, from memory; not fitted: no published "
+                             "OLR(T_s) table could be verified; the grey law weighs in only as exp(-tau_H2O))",
                              "meltzone._core.radiation.olr_steam", CHOICE),
     "sossi2023": Citation("H2O solubility in peridotite melt, 647 ppmw bar^-0.5 (X ~ p^0.5)",
                           "Sossi et al. 2023, EPSL 601:117894", CHECKED),
