@@ -120,20 +120,23 @@ REGISTRY = {
     "dormand1980": Citation("Dormand-Prince 5(4) Runge-Kutta pair", "Dormand & Prince 1980, J. Comput. Appl. "
                             "Math. 6:19", CHECKED),
     # host star, steam atmosphere, water, escape (meltzone.star, meltzone._core.radiation)
-    "baraffe2015": Citation("bolometric luminosity of the host star through time (tracks of 0.1, 0.3, 1.0 M_sun, "
-                            "rows copied from the table)", "Baraffe et al. 2015, A&A 577:A42", CHECKED),
+    "baraffe2015": Citation("bolometric luminosity of the host star through time (twelve tracks of 0.08-1.4 "
+                            "M_sun, rows copied from the table)", "Baraffe et al. 2015, A&A 577:A42", CHECKED),
     "star_interpolation": Citation("the star's luminosity between tracks: linear in log age and log mass",
                                    "meltzone.star", CHOICE),
-    "ribas2005": Citation("XUV of the Sun through time, power law in age with exponent 1.23 after ~0.1 Gyr",
-                          "Ribas et al. 2005, ApJ 622:680", MEMORY),
-    "jackson2012": Citation("saturated X-ray emission L_X/L_bol ~ 10^-3.1 until ~0.1 Gyr",
-                            "Jackson, Davis & Wheatley 2012, MNRAS 422:2024", MEMORY),
+    "ribas2005": Citation("XUV of the Sun through time, power law in age with exponent 1.23 after ~0.1 Gyr (the "
+                          "exponent agrees with the abstract's 2.5x 2.5 Gyr ago and 6x 3.5 Gyr ago; the coefficient "
+                          "29.7 erg/s/cm^2 from memory)", "Ribas et al. 2005, ApJ 622:680", CHECKED),
+    "jackson2012": Citation("saturated X-ray emission L_X/L_bol 10^-4.3 (early F) - 10^-3.1 (late K), saturation "
+                            "times 10^7.6 - 10^8.3 yr (abstract)", "Jackson, Davis & Wheatley 2012, MNRAS 422:2024",
+                            CHECKED),
     "haisch2001": Citation("the star's age at the start: disk dispersal after ~3 Myr", "Haisch, Lada & Lada 2001, "
                            "ApJ 553:L153", MEMORY),
     "goldblatt2013": Citation("runaway-greenhouse limit of outgoing longwave radiation, 282 W/m^2",
                               "Goldblatt et al. 2013, Nature Geosci. 6:661", CHECKED),
     "steam_window": Citation("the steam law's join to sigma T^4 and its near-infrared window opening near 1800 K "
-                             "(shape after Goldblatt et al. 2013 Fig. 1, from memory; not fitted)",
+                             "(shape after Goldblatt et al. 2013 Fig. 1, from memory; not fitted: no published "
+                             "OLR(T_s) table could be verified; the grey law weighs in only as exp(-tau_H2O))",
                              "meltzone._core.radiation.olr_steam", CHOICE),
     "sossi2023": Citation("H2O solubility in peridotite melt, 647 ppmw bar^-0.5 (X ~ p^0.5)",
                           "Sossi et al. 2023, EPSL 601:117894", CHECKED),

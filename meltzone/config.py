@@ -349,8 +349,9 @@ def check_value(section: str, name: str, key: Key, value: Any) -> Any:
     return value
 
 
-def _check_together(values: Mapping[str, Mapping[str, Any]]) -> None:
-    """Checks that involve more than one key (each message names every key involved)."""
+def _check_together(values: Mapping[str, Mapping[str, Any]], explicit: set) -> None:
+    """Checks that involve more than one key (each message names every key involved); ``explicit`` holds the
+    (section, key) pairs the input set (file, ``--set`` or keyword), whatever their values."""
     cv = values["convection"]
     if cv["critical_melt_fraction"] + cv["rheology_blend_width"] >= 1.0:
         raise ConfigError(f"convection.critical_melt_fraction + convection.rheology_blend_width = "
@@ -364,7 +365,7 @@ def _check_together(values: Mapping[str, Mapping[str, Any]]) -> None:
         raise ConfigError(f"melting.table_file = {_show(melt['table_file'])} is only read with melting.model = "
                           f"'table', not {melt['model']!r}: set melting.model = \"table\" or remove the table file")
     t_eq = values["surface"]["equilibrium_temperature_k"]
-    if check_star(values, SCHEMA["surface"]["equilibrium_temperature_k"].default):
+    if check_star(values, ("surface", "equilibrium_temperature_k") in explicit):
         return  # with a star, T_eq is not the irradiation
     for name in ("upper_temperature_k", "core_temperature_k"):
         t = values["initial"][name]
@@ -456,6 +457,7 @@ class PlanetSpec:
 
     def __init__(self, data: Mapping[str, Any] | None = None, /, **flat: Any):
         values = {sec: {k: key.default for k, key in keys.items()} for sec, keys in SCHEMA.items()}
+        given: dict[str, dict[str, Any]] = {}  # the keys the input set explicitly, as given
         if data is not None and not isinstance(data, Mapping):
             raise ConfigError(f"a config must be a table of sections, not {_kind_name(data)}")
         for sec, content in (data or {}).items():
@@ -468,14 +470,17 @@ class PlanetSpec:
                 if k not in SCHEMA[sec]:
                     raise ConfigError(_unknown_key(sec, k))
                 values[sec][k] = check_value(sec, k, SCHEMA[sec][k], v)
+                given.setdefault(sec, {})[k] = v
         for k, v in flat.items():
             sec, name = _split_key(k)
             if sec not in SCHEMA or name not in SCHEMA[sec]:
                 raise ConfigError(_unknown_key(sec, name) if sec in SCHEMA else
                                   f"unknown key {_show(k)}{_suggest(k, _ALL_KEYS)}; see `meltzone config --example`")
             values[sec][name] = check_value(sec, name, SCHEMA[sec][name], v)
-        _check_together(values)
+            given.setdefault(sec, {})[name] = v
+        _check_together(values, {(sec, k) for sec, keys in given.items() for k in keys})
         self._values = values
+        object.__setattr__(self, "_given", given)
         for sec in SCHEMA:
             object.__setattr__(self, sec, Section(sec, values[sec]))
         cmf = values["planet"]["core_mass_fraction"]
@@ -516,8 +521,9 @@ class PlanetSpec:
         return cls(merged)
 
     def replace(self, **flat: Any) -> "PlanetSpec":
-        """A copy with some keys changed (flat or ``section.key`` names)."""
-        return PlanetSpec(self.as_dict(), **flat)
+        """A copy with some keys changed (flat or ``section.key`` names); the keys set explicitly stay so, the
+        others keep their defaults (so a check on explicitly set keys sees the same input)."""
+        return PlanetSpec(self._given, **flat)
 
     def as_dict(self) -> dict[str, dict[str, Any]]:
         return {sec: dict(vals) for sec, vals in self._values.items()}
@@ -528,12 +534,15 @@ class PlanetSpec:
         for sec, keys in SCHEMA.items():
             lines.append(f"[{sec}]")
             for name, key in keys.items():
+                unused = sec == "surface" and name == "equilibrium_temperature_k" and self.star.mass_msun > 0.0
                 if comments:
                     unit = f" [{key.unit}]" if key.unit and key.unit != "1" else ""
                     lines.append(f"# {key.doc}{unit}; {key.allowed()}; default {toml_value(key.default)}")
                     if key.source:
                         lines.append(f"#   source: {key.source}")
-                lines.append(f"{name} = {toml_value(self._values[sec][name])}")
+                line = f"{name} = {toml_value(self._values[sec][name])}"
+                # with a star this key is unused and may not be set (meltzone.config_star.check_star)
+                lines.append(f"# {line}  (unused: star.mass_msun sets the irradiation)" if unused else line)
             lines.append("")
         return "\n".join(lines)
 

@@ -6,30 +6,36 @@ from .config_key import Key
 from .errors import ConfigError
 
 #: Star masses [M_sun] of the shipped stellar tracks (meltzone.star.MASS_RANGE; a test keeps the two equal).
-STAR_MASS_RANGE = (0.1, 1.0)
+STAR_MASS_RANGE = (0.08, 1.4)
+#: default L_XUV / L_bol of a saturated star (Jackson, Davis & Wheatley 2012; see the key's source)
+XUV_SATURATION_RATIO = 10.0 ** -3.1
 
 STAR_KEYS = {
     "mass_msun": Key(0.0, "M_sun", "mass of the host star; 0 = no star (surface.equilibrium_temperature_k is "
-                     "then the fixed irradiation); with a star, leave surface.equilibrium_temperature_k at its "
-                     "default", lo=STAR_MASS_RANGE[0], hi=STAR_MASS_RANGE[1], special=0.0,
-        source="bolometric luminosity from the tracks of Baraffe et al. 2015, A&A 577:A42 (rows for 0.1, 0.3 "
-               "and 1.0 M_sun shipped in meltzone/data/bhac15_luminosity.csv, interpolated in log age and log "
-               "mass); the range is the shipped tracks'"),
+                     "then the fixed irradiation); with a star, do not set surface.equilibrium_temperature_k "
+                     "(not even to its default)", lo=STAR_MASS_RANGE[0], hi=STAR_MASS_RANGE[1], special=0.0,
+        source="bolometric luminosity from the tracks of Baraffe et al. 2015, A&A 577:A42 (rows of twelve "
+               "tracks, 0.08-1.4 M_sun, shipped in meltzone/data/bhac15_luminosity.csv, interpolated in log age "
+               "and log mass); the range is the shipped tracks' (the table's own upper end is 1.4 M_sun)"),
     "age_at_start_myr": Key(3.0, "Myr", "age of the star at the start of the run (model time 0)", lo=1.0,
                             hi=10000.0,
         source="~3 Myr: about half of young stars have lost their dust disks (the end of gas accretion onto "
                "planets), Haisch, Lada & Lada 2001, ApJ 553:L153 (from memory); limits: the tracks' 1 Myr - "
                "10 Gyr"),
-    "xuv_saturation_ratio": Key(1.0e-3, "1", "L_XUV / L_bol while the star's activity is saturated",
+    "xuv_saturation_ratio": Key(XUV_SATURATION_RATIO, "1", "L_XUV / L_bol while the star's activity is saturated",
                                 lo=0.0, hi=0.1,
-        source="~10^-3 (X-rays ~10^-3.1 for FGK stars, Jackson, Davis & Wheatley 2012, MNRAS 422:2024; from "
-               "memory); 0 = no XUV"),
+        source="10^-3.1: the saturated L_X/L_bol of late K dwarfs, the upper end of 10^-4.3 (early F) - 10^-3.1 "
+               "(Jackson, Davis & Wheatley 2012, MNRAS 422:2024; abstract checked); X-rays only, the EUV adds to "
+               "it; with the default age and exponent it gives the present Sun 1.48x Ribas et al.'s 1-1200 A fit "
+               "(measured); 0 = no XUV"),
     "xuv_saturation_age_gyr": Key(0.1, "Gyr", "age at which the saturated XUV phase ends", lo=0.001, hi=10.0,
-        source="~0.1 Gyr for a Sun-like star (Ribas et al. 2005, ApJ 622:680; Jackson et al. 2012; from "
-               "memory); longer for M dwarfs"),
+        source="0.1 Gyr = 10^8 yr, inside the saturation times 10^7.6 - 10^8.3 yr of FGK stars (Jackson et al. "
+               "2012, abstract checked; no clear trend with spectral type there); longer for M dwarfs"),
     "xuv_decay_exponent": Key(1.23, "1", "exponent alpha of the XUV decay L_XUV ~ age^-alpha after saturation",
                               lo=0.0, hi=5.0,
-        source="1.23: the Sun's 1-1200 A emission, Ribas et al. 2005, ApJ 622:680 (from memory)"),
+        source="1.23: the Sun's 1-1200 A emission, Ribas et al. 2005, ApJ 622:680 (the exponent from memory, "
+               "consistent with the abstract's 2.5x the present flux 2.5 Gyr ago and 6x 3.5 Gyr ago: 1.23 gives "
+               "2.7x and 6.0x; checked so)"),
 }
 
 ORBIT_KEYS = {
@@ -51,13 +57,14 @@ ESCAPE_KEYS = {
 }
 
 
-def check_star(values, t_eq_default: float) -> bool:
-    """True when a star is set; ConfigError naming both keys when surface.equilibrium_temperature_k is set too."""
+def check_star(values, t_eq_set: bool) -> bool:
+    """True when a star is set; ConfigError naming both keys when surface.equilibrium_temperature_k was set too
+    (explicitly, in the file, with --set or as a keyword: also at its default value)."""
     mass = values["star"]["mass_msun"]
     if mass <= 0.0:
         return False
-    t_eq = values["surface"]["equilibrium_temperature_k"]
-    if t_eq != t_eq_default:
+    if t_eq_set:
+        t_eq = values["surface"]["equilibrium_temperature_k"]
         raise ConfigError(f"star.mass_msun = {mass:g} and surface.equilibrium_temperature_k = {t_eq:g} K are both "
                           "set: the star's flux sets the irradiation; remove surface.equilibrium_temperature_k or set "
                           "star.mass_msun = 0")

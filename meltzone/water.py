@@ -5,7 +5,7 @@ Definitions (this model's, after Hamano et al. 2013: type I planets solidify wit
 their water; type II planets, inside a critical distance, keep their magma ocean until hydrodynamic escape has
 desiccated them; abstract checked): with a host star, a water inventory and a magma ocean at the start, the
 type is ``"II"`` when at least half of the water has been lost to space by the time the surface magma ocean
-ends, ``"I"`` when less has; null when the magma ocean outlives the run with less than half lost (undecided),
+ends (the summary's ``magma_ocean_end_yr``, whatever definition of the end it uses), ``"I"`` when less has; null when the magma ocean outlives the run with less than half lost (undecided),
 or without a star, water or magma ocean. Reads only the History (no kernel).
 """
 

@@ -34,7 +34,7 @@ def water_escape_rate(efficiency, radius, mass, l_xuv, a_au):
     return efficiency * math.pi * radius ** 3 * flux / (G * mass) * (18.015 / 2.016)
 
 
-def xuv(l_bol_at, age_yr, ratio=1e-3, t_sat_yr=1e8, alpha=1.23):
+def xuv(l_bol_at, age_yr, ratio=10.0 ** -3.1, t_sat_yr=1e8, alpha=1.23):
     """Saturated L_XUV = ratio L_bol until t_sat, then ratio L_bol(t_sat) (age / t_sat)^-alpha."""
     if age_yr <= t_sat_yr:
         return ratio * l_bol_at(age_yr)

@@ -70,6 +70,27 @@ def test_baraffe2015_solar_track_at_three_ages(log_age, log_l):
     assert float(got) == pytest.approx(log_l, abs=1e-9)
 
 
+@pytest.mark.parametrize("mass, log_age, log_l", [
+    (0.5, 7.000091, -0.908), (0.5, 7.700487, -1.336), (0.5, 9.500558, -1.449),
+    (1.2, 6.502554, 0.074), (1.2, 7.330079, 0.373), (1.2, 9.000204, 0.281)])
+def test_baraffe2015_two_more_tracks_at_three_ages(mass, log_age, log_l):
+    """Baraffe et al. 2015, A&A 577:A42, the 0.5 and 1.2 M_sun tracks (rows of the table, read from the published
+    file): log L/L_sun on the pre-main sequence, near the zero-age main sequence (1.2 M_sun: its luminosity peak at
+    21 Myr) and on the main sequence, reproduced to 1e-9 dex."""
+    assert float(star.log_luminosity(mass, log_age)) == pytest.approx(log_l, abs=1e-9)
+
+
+def test_shipped_tracks_brighten_with_mass_after_4_myr():
+    """Common practice (mass-luminosity relation): at a fixed age the luminosity rises with the star's mass; it holds
+    between every pair of neighbouring shipped tracks from 4 Myr to 10 Gyr (a guard against a mis-copied row;
+    before ~4 Myr deuterium burning makes the 0.08 M_sun star brighter than the 0.1 M_sun one, as in the table)."""
+    tracks = star.tracks()
+    ages = np.linspace(6.6, 10.0, 69)
+    logl = np.array([np.interp(ages, *tracks[m]) for m in sorted(tracks)])
+    assert np.all(np.diff(logl, axis=0) > 0.0)
+    assert sorted(tracks) == [0.08, 0.1, 0.2, 0.3, 0.5, 0.7, 0.8, 0.9, 1.0, 1.1, 1.2, 1.4]
+
+
 def test_star_table_range_and_kernel_grid():
     """The config's star-mass range is the shipped tracks'; the kernel's luminosity (one table in the parameters,
     linear in log age) equals the Python interpolation at the grid ages (1e-12) and stays within 0.02 dex of it
@@ -109,14 +130,18 @@ def test_xuv_and_escape_against_plain_reference():
 
 
 def test_xuv_of_the_present_sun_against_ribas2005():
-    """Ribas et al. 2005, ApJ 622:680 (from memory): the Sun's 1-1200 A flux at 1 AU is 29.7 (age/Gyr)^-1.23
-    erg/s/cm^2. The defaults (saturation 1e-3 of L_bol to 0.1 Gyr, exponent 1.23) give 1.85x that at 4.56 Gyr
-    (measured); tolerance: within a factor 2.5 at 1 and 4.56 Gyr (the default ratio is the X-ray saturation of
-    Jackson et al. 2012, not fitted to Ribas)."""
+    """Ribas et al. 2005, ApJ 622:680: the Sun's 1-1200 A flux at 1 AU is 29.7 (age/Gyr)^-1.23 erg/s/cm^2 (the
+    coefficient from memory; the exponent checked against the abstract's ratios, 2.5x 2.5 Gyr ago and 6x 3.5 Gyr
+    ago, 10%). The defaults (Jackson et al. 2012's saturated 10^-3.1 of L_bol to 0.1 Gyr, exponent 1.23) give 1.48x
+    the fit at 4.56 Gyr (measured); tolerance: within a factor 2 at 1 and 4.56 Gyr (the default ratio is the X-ray
+    saturation, not fitted to Ribas)."""
     for age_gyr in (1.0, 4.56):
         flux = float(star.xuv_luminosity(1.0, age_gyr * 1e9)) / (4 * math.pi * (1.495978707e11) ** 2) * 1e3
         ribas = 29.7 * age_gyr ** -1.23
-        assert 1.0 / 2.5 < flux / ribas < 2.5
+        assert 1.0 / 2.0 < flux / ribas < 2.0
+    now = float(star.xuv_luminosity(1.0, 4.56e9))
+    assert float(star.xuv_luminosity(1.0, 2.06e9)) / now == pytest.approx(2.5, rel=0.1)
+    assert float(star.xuv_luminosity(1.0, 1.06e9)) / now == pytest.approx(6.0, rel=0.1)
 
 
 def _earth(a_au, atmosphere="steam", oceans=1.0, end_gyr=0.05, **extra):
@@ -131,30 +156,72 @@ def _earth(a_au, atmosphere="steam", oceans=1.0, end_gyr=0.05, **extra):
 
 def test_steam_atmosphere_delays_the_magma_ocean_lebrun2013():
     """Lebrun et al. 2013, JGR Planets 118:1155 (abstract checked): a steam atmosphere delays the end of an Earth
-    magma ocean by typically 1 Myr, and water condenses after ~1.5 Myr at 1 AU. Measured here: 0.13 Myr delay
-    (bare surface 0.20 Myr, steam 0.34 Myr) and an ocean after 0.14 Myr: the window of this model's steam law
-    opens near the surface's rheological transition (1789 K), so the last cooling is fast. Tolerance: the order
-    of magnitude, a delay of 0.1-10 Myr and an ocean within 0.05-5 Myr; energy closure 1e-9."""
+    magma ocean by typically 1 Myr, and water condenses after ~1.5 Myr at 1 AU. The end of the magma ocean is the
+    summary's magma_ocean_end_yr (with the default melting curves: the top of the adiabat below the critical melt
+    fraction). Measured here: 0.15 Myr delay (bare 0.20 Myr, steam 0.35 Myr), an ocean after 0.15 Myr; the energy
+    released until the end (1.0e31 J) would take 10 Myr at the radiation limit (F_lim - F_abs = 60 W/m^2), but
+    this model's near-infrared window (from memory) radiates 760-69000 W/m^2 above 1800 K. Tolerance: the delay
+    between 0.1 Myr (the order of Lebrun's) and the energy bound at the limit (an exact upper bound: no law here
+    radiates less than min(F_lim, sigma T_s^4)); an ocean within 0.05-5 Myr; energy closure 1e-9."""
     bare = _earth(1.0, "none").summary()
-    steam = _earth(1.0).summary()
-    delay = (steam["magma_ocean_end_yr"] - bare["magma_ocean_end_yr"]) / 1e6
-    assert 0.1 < delay < 10.0
+    r = _earth(1.0)
+    steam = r.summary()
+    h = r.history
+    end = steam["magma_ocean_end_yr"] * 3.15576e7
+    released = h["stored_energy"][0] - np.interp(end, h.time, h["stored_energy"])
+    i_end = np.searchsorted(h.time, end)
+    net_at_limit = 282.0 - np.mean(h["absorbed_flux"][:i_end])
+    bound_yr = released / (net_at_limit * 4 * math.pi * r.interior.radius ** 2) / 3.15576e7
+    delay = steam["magma_ocean_end_yr"] - bare["magma_ocean_end_yr"]
+    assert 0.1e6 < delay < bound_yr
     assert 0.05e6 < steam["water_ocean_formed_yr"] < 5e6
     assert steam["energy_closure"] < 1e-9 and steam["solidification_type"] == "I"
 
 
-def test_hamano2013_two_types_on_either_side_of_a_critical_distance():
-    """Hamano, Abe & Genda 2013, Nature 497:607 (abstract checked): a type II planet, inside a critical distance,
-    keeps its magma ocean until escape has desiccated it; a type I planet, beyond it, solidifies within a few Myr
-    and keeps most of its water as an ocean. Earth mass, one ocean, a Sun-like star: measured critical distance
-    0.523-0.527 AU (0.551-0.555 AU with five oceans; Hamano et al. ~0.74-0.8 AU, from memory, whose criterion is
-    the surface solidus, 1661 K here, not the rheological transition). Checked at 0.45 AU (II) and 0.9 AU (I)."""
-    inner = _earth(0.45, end_gyr=0.2).summary()
-    outer = _earth(0.9, end_gyr=0.2).summary()
+def test_hamano2013_critical_distance_is_where_the_faintest_young_sun_meets_the_radiation_limit():
+    """Hamano, Abe & Genda 2013, Nature 497:607 (abstract checked): type II planets, inside a critical distance,
+    keep their magma ocean until escape has desiccated them; type I planets beyond it solidify within a few Myr
+    and keep most of their water. Their criterion (from memory): type II where the absorbed flux exceeds the
+    radiation limit F_lim = 282 W/m^2 (Goldblatt et al. 2013), so the surface cannot cool below the window. With
+    the shipped Baraffe et al. 2015 solar track the absorbed flux is lowest at 13 Myr (0.443 L_sun): F_abs = F_lim
+    at 0.612 AU (albedo 0.3). The type here: half the water lost before the summary's magma_ocean_end_yr (default
+    curves: the top of the adiabat below the critical melt fraction). Measured: critical distance 0.602-0.606 AU
+    with one ocean. Checked at 0.55 AU (II, 10% inside: the water is lost and no ocean condenses) and 0.67 AU (I,
+    10% outside: an ocean condenses as the magma ocean ends). Beyond it, up to F_abs = F_lim at the zero-age main
+    sequence (0.758 AU), the ocean condenses but boils off again as the Sun brightens (a runaway greenhouse after
+    solidification, measured at 0.67 and 0.75 AU by 0.2 Gyr); at 0.9 AU it stays (common practice: Earth)."""
+    inner = _earth(0.55, end_gyr=0.2).summary()
+    outer = _earth(0.67, end_gyr=0.2).summary()
+    far = _earth(0.9, end_gyr=0.2).summary()
     assert inner["solidification_type"] == "II" and inner["water_ocean_formed_yr"] is None
     assert inner["water_lost_kg"] == pytest.approx(OCEAN, rel=1e-6)
     assert outer["solidification_type"] == "I" and outer["water_ocean_formed_yr"] is not None
-    assert outer["water_lost_kg"] < 0.1 * OCEAN and outer["water_ocean_kg"] > 0.5 * OCEAN
+    assert far["solidification_type"] == "I" and far["water_ocean_kg"] > 0.9 * OCEAN
+
+
+def test_grey_law_takes_over_only_when_the_steam_is_thin():
+    """The steam law (this model's choice, see meltzone._core.radiation): under a thick water column the radiation
+    limit holds whatever the grey law gives (Goldblatt et al. 2013: the limit does not depend on the amount of
+    water once the atmosphere is thick); without water the grey law of the remaining CO2 applies. At 1470 K under
+    half an ocean (grey tau ~ 1e3, eps sigma T^4 = 1.8 F_lim) the outgoing flux is the steam law's within 1e-9;
+    with no water it is the grey law's; in between it lies between the two (plain reference: exp(-tau) weights)."""
+    from meltzone._core.radiation import emissivity_of, optical_depth, outgoing, thin_weight
+
+    par = np.zeros(k.N_PAR)
+    it = meltzone.build_interior(mass_earth=1.0)
+    par[k.P_RADIUS], par[k.P_G_SURF] = it.radius, it.surface_gravity
+    for m_h2o in (0.7e21, 1e17, 0.0):
+        eps = emissivity_of(m_h2o, 1e20, par)
+        w = thin_weight(m_h2o, par)
+        assert w == pytest.approx(math.exp(-optical_depth(m_h2o, 0.01, par)), rel=1e-12)
+        got = outgoing(1470.0, (1.0, eps, 0.0, 0.0, w))
+        grey = eps * 5.670374419e-8 * 1470.0 ** 4
+        want = (1 - w) * olr_steam(1470.0) + w * grey
+        assert got == pytest.approx(float(want), rel=1e-9)
+        if m_h2o > 1e20:
+            assert grey > 1.5 * 282.0 and got == pytest.approx(float(olr_steam(1470.0)), rel=1e-9)
+        if m_h2o == 0.0:
+            assert got == pytest.approx(grey, rel=1e-12)
 
 
 def test_time_varying_flux_keeps_the_energy_closure_and_the_water_budget():
@@ -191,6 +258,32 @@ def test_star_and_equilibrium_temperature_together_is_an_error():
         with pytest.raises(ConfigError, match=key):
             PlanetSpec(**{key: bad})
     assert SCHEMA["surface"]["atmosphere"].choices == ("none", "grey", "steam")
+
+
+def test_equilibrium_temperature_set_explicitly_at_its_default_with_a_star_is_an_error(tmp_path):
+    """surface.equilibrium_temperature_k written at its default value next to a star is still both keys set: a
+    ConfigError naming both, from a file, from --set and as a keyword (this project's rule: a key the star replaces
+    may not be given); unset, the spec round-trips through its TOML text and replace() (common practice)."""
+    default = SCHEMA["surface"]["equilibrium_temperature_k"].default
+    both = "star.mass_msun.*surface.equilibrium_temperature_k"
+    cfg = tmp_path / "p.toml"
+    cfg.write_text(f"[star]\nmass_msun = 0.5\n[surface]\nequilibrium_temperature_k = {default!r}\n")
+    with pytest.raises(ConfigError, match=both):
+        PlanetSpec.from_toml(cfg)
+    cfg.write_text("[star]\nmass_msun = 0.5\n")
+    with pytest.raises(ConfigError, match=both):
+        PlanetSpec.from_toml(cfg, overrides=[f"surface.equilibrium_temperature_k={default!r}"])
+    with pytest.raises(ConfigError, match=both):
+        PlanetSpec(mass_msun=0.5, equilibrium_temperature_k=default)
+    spec = PlanetSpec.from_toml(cfg)
+    with pytest.raises(ConfigError, match=both):
+        spec.replace(equilibrium_temperature_k=default)
+    assert spec.replace(semi_major_axis_au=0.7).orbit.semi_major_axis_au == 0.7
+    text = spec.to_toml()
+    assert "\n# equilibrium_temperature_k" in text
+    (tmp_path / "back.toml").write_text(text)
+    assert PlanetSpec.from_toml(tmp_path / "back.toml") == spec
+    assert f"equilibrium_temperature_k = {default!r}" in PlanetSpec().to_toml()  # without a star: a plain key
 
 
 def test_cli_bad_star_input_exits_2(tmp_path):

@@ -35,7 +35,7 @@ from .record import find_intervals
 from .physics import CORE, GREY_H2O_COEFF, GREY_H2O_EXPONENT, _invert, core_energy, inner_core, radiogenic_power
 from .layout import (MH_ABS, MH_DISSOLVED, MH_LOST, MH_OCEAN, MH_OLR, MH_P_CO2, MH_P_H2O, MS_LOST, P_G_SURF,
                      P_H2O_SOL_C, P_H2O_SOL_E, P_H2O_TOTAL, P_STEAM)
-from .radiation import condense, escape_rate, radiation_state, volatiles
+from .radiation import condense, escape_rate, radiation_state, thin_weight, volatiles
 from .tridiag import solve
 
 #: relative perturbation of the finite-difference Jacobian
@@ -63,7 +63,7 @@ def _surface_state(t, phi, grid, lost, par):
     :mod:`meltzone._core.radiation`; lagged: evaluated at the start of each step)."""
     steam = par[P_STEAM] > 0.5
     if par[P_ATMOSPHERE] <= 0.5 and not steam:
-        return radiation_state(t, 1.0, steam, par), (0.0, 0.0, 0.0, 0.0, 0.0)
+        return radiation_state(t, 1.0, steam, par, 1.0), (0.0, 0.0, 0.0, 0.0, 0.0)
     m_melt = 0.0
     for i in range(phi.shape[0]):
         m_melt += grid[G_W, i] * phi[i]
@@ -71,7 +71,7 @@ def _surface_state(t, phi, grid, lost, par):
         eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, par[P_H2O_SOL_C], par[P_H2O_SOL_E], par, 0.0, 0.0)
     else:
         eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par, 0.0, 0.0)
-    return radiation_state(t, eps, steam, par), (m_h2o, m_co2, dissolved, water, m_melt)
+    return radiation_state(t, eps, steam, par, thin_weight(m_h2o, par)), (m_h2o, m_co2, dissolved, water, m_melt)
 
 
 @njit

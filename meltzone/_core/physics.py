@@ -33,7 +33,7 @@ from .roots import bisect, illinois
 from .layout import (D_ABS, D_DISSOLVED, D_ESCAPE, D_LOST, D_OCEAN, D_OLR, D_P_CO2, D_P_H2O, P_H2O_SOL_C,
                      P_H2O_SOL_E, P_STEAM, Y_WATER)
 from .radiation import (atmosphere_mass, condense, escape_rate, net_radiation, radiation_state,  # noqa: F401
-                        volatiles)
+                        thin_weight, volatiles)
 
 #: the grey atmosphere's H2O solubility, X = 6.8e-8 P^0.7 (P in Pa; as used by Lebrun et al. 2013)
 GREY_H2O_COEFF, GREY_H2O_EXPONENT = 6.8e-8, 0.7
@@ -441,7 +441,7 @@ def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag, 
         else:
             eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par,
                                                           added_h2o, added_co2)
-    rad = radiation_state(t, eps, steam, par)
+    rad = radiation_state(t, eps, steam, par, thin_weight(m_h2o, par))
     # top boundary: the magma ocean (soft-turbulence law) and the solid mantle (the configured law: mobile
     # lid, or the lid over its sublayer in stagnant-lid mode); across the rheological transition
     # (phi_c < phi_top < phi_c + P_BLEND) the two are blended with the same weight as the viscosity,

@@ -8,14 +8,19 @@ the absorbed stellar flux comes from :func:`meltzone._core.star.absorbed_flux_t4
 * law 0 (``"none"``, ``"grey"``): net = eps sigma (T_s^4 - F_abs / sigma) (Abe & Matsui 1985, JGR 90:C545;
   Elkins-Tanton 2008, EPSL 271:181; from memory), eps = 2 / (tau + 2), tau_i = (3 M_i / (8 pi R^2))
   sqrt(kappa_i g / (3 P0)), kappa_H2O = 0.01, kappa_CO2 = 0.001 m^2/kg (from memory);
-* law 1 (``"steam"``): outgoing = max(OLR_steam(T_s), eps sigma T_s^4), net = outgoing - F_abs. OLR_steam is the
-  runaway-greenhouse limit F_lim = 282 W/m^2 (Goldblatt et al. 2013, Nature Geosci. 6:661, abstract checked)
+* law 1 (``"steam"``): outgoing = (1 - w) OLR_steam(T_s) + w eps sigma T_s^4, net = outgoing - F_abs. OLR_steam is
+  the runaway-greenhouse limit F_lim = 282 W/m^2 (Goldblatt et al. 2013, Nature Geosci. 6:661, abstract checked)
   joined smoothly to sigma T_s^4 at low T_s, ((sigma T_s^4)^-4 + F_lim^-4)^(-1/4), times 1 + (T_s / T_w)^k
   with T_w = 1800 K and k = 20 for the near-infrared window that opens at high T_s (the limit holds from
   ~400 K to ~1600-1800 K, Goldblatt et al. 2013, Fig. 1; Goldblatt & Watson 2012, Phil. Trans. A 370:4197
   give ~1400 K; the window's form, T_w and k are this model's choice, a shape after those figures from
-  memory, not a fit to tabulated values), at most sigma T_s^4. The grey term takes over once escape has
-  thinned the steam (an optically thin atmosphere radiates like the grey law); this model's choice;
+  memory, not a fit to tabulated values: no published table of OLR(T_s) could be verified; uncertainty: the
+  temperature where OLR reaches 2 F_lim is 1800 K here, published ~1800-2300 K depending on the water column,
+  from memory), at most sigma T_s^4. w = exp(-tau_H2O), the grey transmissivity of the water column (tau_H2O
+  of the grey law below): the grey law takes over once escape has thinned the steam (an optically thin
+  atmosphere radiates like the grey law), not while the steam is thick, where the radiation limit holds
+  whatever the grey law would give (this model's choice; the former max(OLR_steam, eps sigma T_s^4) let the
+  grey law of a thick atmosphere exceed the limit, e.g. 1.8 F_lim at 1470 K under 0.5 oceans);
 * water (law 1): H2O dissolves in the melt as X = 647 ppmw (p / 1 bar)^0.5 (Sossi et al. 2023, EPSL 601:117894,
   peridotite liquids at 2173 K and 1 bar, f_H2O < 0.03 bar, with the peridotite-glass absorption coefficient;
   524 ppmw with the basaltic one; abstract checked; used here far above its pressures), CO2 as the grey law's
@@ -55,6 +60,8 @@ WINDOW_EXPONENT = 20.0
 JOIN_EXPONENT = 4.0
 #: the IAPWS saturation-pressure coefficients a1..a6 (Wagner & Pruss 1993; from memory)
 SAT_A = (-7.85951783, 1.84408259, -11.7866497, 22.6807411, -15.9618719, 1.80122502)
+#: grey absorption coefficients at 1 atm [m^2/kg] of water and CO2 (Abe & Matsui 1985; from memory)
+KAPPA_H2O, KAPPA_CO2 = 0.01, 0.001
 #: bracket of the radiating temperature of the steam law [K]
 T_RAD_LO, T_RAD_HI = 1.0, 1.0e5
 LAW_GREY, LAW_STEAM = 0.0, 1.0
@@ -83,13 +90,23 @@ def atmosphere_mass(total, melt_mass, par, coeff, expo):
 
 
 @njit
+def optical_depth(mass, kappa, par):
+    """Grey optical depth of a gas column of ``mass`` [kg] with absorption coefficient kappa [m^2/kg] at 1 atm
+    (see the module): 3 M / (8 pi R^2) sqrt(kappa g / (3 P0))."""
+    area = 4.0 * math.pi * par[P_RADIUS] ** 2
+    return 3.0 * mass / (2.0 * area) * math.sqrt(kappa * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
+
+
+@njit
 def emissivity_of(m_h2o, m_co2, par):
     """Grey emissivity eps = 2 / (tau + 2) of an atmosphere holding m_h2o and m_co2 [kg] (see the module)."""
-    area = 4.0 * math.pi * par[P_RADIUS] ** 2
-    tau = 0.0
-    tau += 3.0 * m_h2o / (2.0 * area) * math.sqrt(0.01 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
-    tau += 3.0 * m_co2 / (2.0 * area) * math.sqrt(0.001 * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
-    return 2.0 / (tau + 2.0)
+    return 2.0 / (optical_depth(m_h2o, KAPPA_H2O, par) + optical_depth(m_co2, KAPPA_CO2, par) + 2.0)
+
+
+@njit
+def thin_weight(m_h2o, par):
+    """Weight w = exp(-tau_H2O) of the grey law in the steam law (1 without water, ~0 under thick steam)."""
+    return math.exp(-optical_depth(m_h2o, KAPPA_H2O, par))
 
 
 @njit
@@ -102,10 +119,12 @@ def olr_steam(ts):
 
 @njit
 def outgoing(ts, rad):
-    """The radiation law's emitted part [W/m^2] at surface temperature ts (law 0: eps sigma T_s^4)."""
+    """The radiation law's emitted part [W/m^2] at surface temperature ts (law 0: eps sigma T_s^4; law 1 the
+    steam law blended with the grey one by the weight rad[4], see the module)."""
+    grey = rad[1] * STEFAN_BOLTZMANN * ts ** 4
     if rad[0] > 0.5:
-        return max(olr_steam(ts), rad[1] * STEFAN_BOLTZMANN * ts ** 4)
-    return rad[1] * STEFAN_BOLTZMANN * ts ** 4
+        return (1.0 - rad[4]) * olr_steam(ts) + rad[4] * grey
+    return grey
 
 
 @njit
@@ -122,16 +141,17 @@ def _net_at(ts, rad):
 
 
 @njit
-def radiation_state(t, eps, steam, par):
-    """(law, eps, absorbed flux / sigma [K^4], radiating temperature [K]) at model time t: the radiating
-    temperature is where the net radiation vanishes (T_eq itself without a star and without steam)."""
+def radiation_state(t, eps, steam, par, thin):
+    """(law, eps, absorbed flux / sigma [K^4], radiating temperature [K], weight of the grey law in the steam
+    law ``thin``, :func:`thin_weight`) at model time t: the radiating temperature is where the net radiation
+    vanishes (T_eq itself without a star and without steam)."""
     f4 = absorbed_flux_t4(t, par)
     if steam:
-        rad = (LAW_STEAM, eps, f4, 0.0)
-        return (LAW_STEAM, eps, f4, bisect(_net_at, rad, T_RAD_LO, T_RAD_HI, 1e-9, 1e-13, 200))
+        rad = (LAW_STEAM, eps, f4, 0.0, thin)
+        return (LAW_STEAM, eps, f4, bisect(_net_at, rad, T_RAD_LO, T_RAD_HI, 1e-9, 1e-13, 200), thin)
     if par[P_STAR] > 0.5:
-        return (LAW_GREY, eps, f4, f4 ** 0.25)
-    return (LAW_GREY, eps, f4, par[P_T_EQ])
+        return (LAW_GREY, eps, f4, f4 ** 0.25, thin)
+    return (LAW_GREY, eps, f4, par[P_T_EQ], thin)
 
 
 @njit

@@ -5,8 +5,8 @@ the start of the run (P_STAR_AGE0 [s]); log10 L [W] on a grid uniform in log10 o
 (P_LUM0.. with its first age P_LUM_AGE0 and spacing P_LUM_DAGE), interpolated linearly in log age and held
 at its end values outside it; the XUV law L_XUV = r_sat L_bol while the star is younger than t_sat, then
 r_sat L_bol(t_sat) (age / t_sat)^-alpha (saturation then power-law decay: Ribas et al. 2005, ApJ 622:680 for
-the Sun, 1-1200 A, alpha = 1.23; Jackson, Davis & Wheatley 2012, MNRAS 422:2024 for other masses, X-rays
-saturated near L_X/L_bol ~ 1e-3.1 until ~0.1 Gyr; both from memory).
+the Sun, 1-1200 A, alpha = 1.23; Jackson, Davis & Wheatley 2012, MNRAS 422:2024, X-rays saturated at L_X/L_bol
+10^-4.3 - 10^-3.1 until 10^7.6 - 10^8.3 yr; statuses in meltzone.star).
 """
 
 from __future__ import annotations
