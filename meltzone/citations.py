@@ -69,7 +69,12 @@ REGISTRY = {
     "grasset1998": Citation("stagnant lid: a_rh ~2.2-2.5", "Grasset & Parmentier 1998, JGR 103:18171", MEMORY),
     "thiriet2019": Citation("stagnant lid: several (a_rh, beta) pairs fit equally",
                             "Thiriet et al. 2019, PEPI 286:138", CHECKED),
-    "schubert1990": Citation("stagnant-lid growth law", "Schubert & Spohn 1990, JGR 95:14095", MEMORY),
+    "schubert1990": Citation("stagnant-lid growth law rho c (T_u - T_l) dD/dt = q_lid - q_u",
+                             "Schubert & Spohn 1990, JGR 95:14095", MEMORY),
+    "morschhauser2011": Citation("stagnant-lid growth law rho c (T_u - T_l) dD/dt = q_lid - q_u (as used)",
+                                 "Morschhauser, Grott & Breuer 2011, Icarus 212:541", MEMORY),
+    "goodman1958": Citation("heat-balance integral of a growing conductive layer with a linear profile",
+                            "Goodman 1958, Trans. ASME 80:335", MEMORY),
     "abe1985": Citation("grey atmosphere emissivity 2/(tau + 2) and H2O/CO2 absorption coefficients",
                         "Abe & Matsui 1985, JGR 90:C545", MEMORY),
     "elkins_tanton2008": Citation("grey atmosphere over a magma ocean", "Elkins-Tanton 2008, EPSL 271:181", MEMORY),
@@ -130,7 +135,8 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     if cv.beta != 1.0 / 3.0 or cv.nusselt_prefactor != 1.0:
         keys += ["korenaga2008", "christensen1985"]
     if cv.regime == "stagnant-lid":
-        keys += ["solomatov2000", "grasset1998", "thiriet2019", "schubert1990"]
+        keys += ["solomatov2000", "grasset1998", "thiriet2019"]
+        keys += ["schubert1990", "morschhauser2011"] if cv.lid_growth_law == "base-flux" else ["goodman1958"]
     if spec.surface.atmosphere == "grey":
         keys += ["abe1985", "elkins_tanton2008", "lebrun2013"]
     keys.append("kraus2022")

@@ -25,6 +25,7 @@ from types import MappingProxyType
 from typing import Any, Mapping
 
 from .errors import ConfigError
+from .mantle_keys import convection_keys
 
 #: Mass range [Earth masses] inside which the models are calibrated; outside it a run warns.
 CALIBRATED_MASS_RANGE = (0.5, 15.0)
@@ -194,6 +195,7 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
         "rheology_a": Key(2.5, "1", "factor of the rheological temperature scale (stagnant lid)",
                           lo=0.5, hi=10.0,
             source='Grasset & Parmentier 1998, JGR 103:18171; Solomatov & Moresi 2000 (2.2-2.5; from memory)'),
+        **convection_keys(Key),
         "melt_weakening": Key(26.0, "1", "melt weakening factor alpha in exp(-alpha phi)", lo=0.0, hi=100.0,
             source='Mei et al. 2002, EPSL 201:491 (from memory)'),
         "liquid_viscosity_pa_s": Key(0.1, "Pa s", "viscosity of the silicate liquid", lo=1.0e-4, hi=1.0e3,

@@ -18,7 +18,9 @@ The model (equations and sources; every law below repeats its own):
   adiabat T_u f(r), less, under a stagnant lid of thickness D, M_lid(D) c_p (T_u - T_lm) with T_lm the
   mean of the lid's linear profile; of the core E_c = sum_j m_j c_c T_c f_j - (L_c + E_G) M_ic(T_c);
 * dE_m/dt = -Q_surface + Q_cmb + H(t), dE_c/dt = -Q_cmb, and under a stagnant lid
-  rho c_p (T_u - T_lm) dD/dt = q_lid - q_u (blended towards the minimum lid over 1 kyr in the magma ocean);
+  rho c_p (T_u - T_l) dD/dt = q_lid - q_u with the thickening lid's cooling rho c_p (T_l - T_lm) dD/dt added to
+  the surface flux (or rho c_p (T_u - T_lm) dD/dt = q_lid - q_u with convection.lid_growth_law =
+  "heat-balance-integral"; blended towards the minimum lid over 1 kyr in the magma ocean);
 * top: the magma ocean's boundary layer (a = 1, beta = 1/3 over the whole mantle, suspension viscosity)
   blended by smoothstep((phi_top - phi_c) / width) with the solid mantle's (mobile lid, or a stagnant lid
   over its sublayer); the solid mantle keeps a = 1, beta = 1/3 until the top first reaches phi_c and takes
@@ -111,6 +113,7 @@ class Physics:
     water_kg: float
     co2_kg: float
     stagnant_lid: bool
+    lid_law: str  # convection.lid_growth_law
     start_age_s: float
     isotope_heat: tuple  # W per kg of mantle today (scaled), one per isotope
     isotope_decay: tuple  # 1/s
@@ -205,6 +208,7 @@ def build_inputs(spec, interior=None):
         core_gravitational_energy=spec.core.gravitational_energy,
         equilibrium_temperature=sf.equilibrium_temperature_k, grey_atmosphere=sf.atmosphere == "grey",
         water_kg=sf.water_inventory_kg, co2_kg=sf.co2_inventory_kg, stagnant_lid=cv.regime == "stagnant-lid",
+        lid_law=cv.lid_growth_law,
         start_age_s=spec.heating.start_age_gyr * 1e9 * YEAR,
         isotope_heat=tuple(scale * iso.element_ppm * 1e-6 * iso.isotope_fraction * iso.heat_w_per_kg
                            for iso in ISOTOPES),
@@ -408,6 +412,20 @@ def lid_top(tu, tl, d_lid, dtc, eta, a, beta, eps, depth, ph):
     return ts, ph.conductivity * (tl - ts) / d_lid, ph.conductivity * (tu - tl) / delta
 
 
+def lid_growth(q_lid, q_u, tu, tl, ph):
+    """(dD/dt, extra surface flux) of a stagnant lid. Base flux (Schubert & Spohn 1990, JGR 95:14095;
+    Morschhauser et al. 2011, Icarus 212:541; from memory): rho c (T_u - T_l) dD/dt = q_lid - q_u, and the heat
+    the thickening linear profile loses as its added rock cools from T_l to the mean T_lm, rho c (T_l - T_lm)
+    dD/dt, leaves through the surface. Heat-balance integral (Goodman 1958): rho c (T_u - T_lm) dD/dt =
+    q_lid - q_u, nothing extra."""
+    rho_c = ph.density_top * ph.heat_capacity
+    t_mean = 0.5 * (ph.equilibrium_temperature + tl)
+    if ph.lid_law == "base-flux":
+        rate = (q_lid - q_u) / (rho_c * max(tu - tl, 1.0))
+        return rate, rho_c * (tl - t_mean) * rate
+    return (q_lid - q_u) / (rho_c * max(tu - t_mean, 1.0)), 0.0
+
+
 # ====================================================================== model
 class ReferenceModel:
     """The reference of one PlanetSpec: ``run(t_eval)`` integrates it, ``diagnostics(t, tu, tc, d)`` gives the
@@ -485,9 +503,9 @@ class ReferenceModel:
                 tl = lid_base_temperature(tu, ph)
                 d_eff = max(d, LID_MIN)
                 _, q_lid, q_u = lid_top(tu, tl, d_eff, dtc, eta_s, a, beta, eps, self.depth, ph)
-                t_lid_mean = 0.5 * (ph.equilibrium_temperature + tl)
-                d_rate += (1.0 - w) * (q_lid - q_u) / (ph.density_top * ph.heat_capacity
-                                                       * max(tu - t_lid_mean, 1.0))
+                rate, q_lid_cooling = lid_growth(q_lid, q_u, tu, tl, ph)
+                d_rate += (1.0 - w) * rate
+                q_lid += q_lid_cooling
             else:
                 q_lid = convecting_top(tu, dtc, eta_s, a, beta, eps, self.depth, ph)[1]
             qs += (1.0 - w) * q_lid

@@ -274,10 +274,11 @@ def test_magma_ocean_steam_atmosphere_lasts_longer():
 @pytest.fixture(scope="module")
 def lid_run():
     """Stagnant lid growing on a mantle that neither convects (huge viscosity: the largest allowed prefactor and
-    activation energy, ~1e47 Pa s at 1600 K) nor is heated: pure conduction."""
+    activation energy, ~1e47 Pa s at 1600 K) nor is heated: pure conduction. The heat-balance-integral growth law
+    (the base-flux law has its own tests in tests/test_lid_growth.py)."""
     spec = PlanetSpec(mass_earth=1.0, regime="stagnant-lid", upper_temperature_k=1600.0, core_temperature_k=2700.0,
                       radiogenic_scale=0.0, viscosity_prefactor_pa_s=1e15, activation_energy_j_mol=1e6,
-                      end_time_gyr=0.2)
+                      end_time_gyr=0.2, lid_growth_law="heat-balance-integral")
     return evolve(spec)
 
 

@@ -140,8 +140,8 @@ def test_solid_start_warms_past_the_batch_threshold():
 
 # ------------------------------------------------------------------ stagnant lid
 def test_stagnant_lid_grows_as_the_reference():
-    """1 M_E stagnant lid (rheological temperature scale, lid growth with the lid's mean temperature in the
-    budget), 1 Gyr: lid thickness within 1e-3 relative (measured 5e-6), trajectory tolerances and magma-ocean
+    """1 M_E stagnant lid (rheological temperature scale, base-flux lid growth with the thickening lid's cooling
+    at the surface), 1 Gyr: lid thickness within 1e-3 relative (measured 5e-6), trajectory tolerances and magma-ocean
     end as above."""
     _, summary, ref, _, diff = compare(PlanetSpec(mass_earth=1.0, end_time_gyr=1.0, mantle_nodes=48,
                                                   regime="stagnant-lid"))

@@ -56,6 +56,10 @@ PARAMETERS = (
 # basal magma ocean (boundary-layer scheme): switch (1 on), solidus depression [K], enrichment [K], reference mass [kg]
 PARAMETERS += ("basal_ocean", "basal_melt_depression", "basal_melt_enrichment", "basal_reference_mass")
 P_BMO, P_BMO_DEP, P_BMO_ENRICH, P_BMO_MREF = range(N_PAR, N_PAR := len(PARAMETERS))
+# stagnant-lid growth law (boundary-layer scheme): 0 heat-balance integral (lid's mean temperature), 1 base flux
+# (T_u - T_l); 0 is the law of files written before the switch existed
+PARAMETERS += ("lid_growth_law",)
+P_LID_LAW, = range(N_PAR, N_PAR := len(PARAMETERS))
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",

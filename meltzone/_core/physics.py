@@ -25,6 +25,7 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
                      P_STAGNANT, P_START_AGE, P_T_EQ, P_V_ACT, P_V_DECAY, REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID,
                      REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
 from .basal import basal_ocean, basal_top_energy
+from .lid import lid_growth
 from .layout import D_MB, D_RB, G_P, P_BMO, P_BMO_MREF
 from .melt import melt_fraction
 from .roots import bisect, illinois
@@ -458,11 +459,9 @@ def diagnose(t, tu, tc, d_lid, t_switch, grid, core, iso, par, law, diag):
             d_conv = max(depth - d_eff, 0.05 * depth)
             ts_s, qs_s, qu_s, du_s = _top_boundary(YES, solidified, tu, tl, d_eff, d_conv, dtc, eta_s,
                                                     eps, par)
-            # rho c (T_u - T_lid,mean) dD/dt = q_lid - q_u: new lid material is cooled from T_u to the mean of
-            # the linear lid profile, the same bookkeeping as mantle_energy (with it, the convecting mantle
-            # loses exactly q_u at the lid base)
-            t_lid_mean = 0.5 * (par[P_T_EQ] + tl)
-            ddl_sl = (qs_s - qu_s) / (par[P_RHO_TOP] * par[P_CM] * max(tu - t_lid_mean, 1.0))
+            # the lid's growth law and the heat its thickening profile releases at the surface (lid.py)
+            ddl_sl, q_lid_cooling = lid_growth(qs_s, qu_s, tu, tl, par)
+            qs_s += q_lid_cooling
         else:
             ts_s, qs_s, qu_s, du_s = _top_boundary(NO, solidified, tu, tu, 0.0, depth, dtc, eta_s, eps, par)
     if w_mo <= 0.0:

@@ -52,9 +52,12 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
 * stagnant lid: rheological temperature scale dT_rh = a_rh R T_u^2 / E
   (Solomatov & Moresi 2000, JGR 105:21795; a_rh ~ 2.2-2.5, Grasset & Parmentier
   1998, JGR 103:18171; Thiriet et al. 2019, PEPI 286:138 show several (a_rh, beta)
-  pairs fit equally), lid growth rho c (T_u - T_lm) dD/dt = -q_u + k (T_l - T_s) / D
-  with T_lm the lid's mean temperature (the usual form, e.g. Schubert & Spohn 1990,
-  has T_l; T_lm keeps the lid's heat content in the budget); blended with the
+  pairs fit equally), lid growth rho c (T_u - T_l) dD/dt = -q_u + k (T_l - T_s) / D
+  (Schubert & Spohn 1990; Morschhauser et al. 2011, Icarus 212:541; from memory) with the
+  thickening lid's own cooling rho c (T_l - T_lm) dD/dt added to the surface flux, T_lm the
+  lid's mean temperature, so the lid's heat stays in the budget; or, with
+  ``convection.lid_growth_law = "heat-balance-integral"``, rho c (T_u - T_lm) dD/dt =
+  -q_u + k (T_l - T_s) / D (:mod:`meltzone._core.lid`); blended with the
   magma-ocean top over the same melt-fraction width;
 * surface: the surface temperature balances the flux through the top layer
   with eps sigma (T_s^4 - T_eq^4), eps = 2 / (tau + 2) (Abe & Matsui 1985;
@@ -226,6 +229,7 @@ def build_inputs(spec, interior, curves):
     par[k.P_BMO_DEP] = mt.basal_melt_depression_k
     par[k.P_BMO_ENRICH] = mt.basal_melt_enrichment_k
     par[k.P_BMO_MREF] = mt.basal_ocean_reference_fraction * it.mantle_mass
+    par[k.P_LID_LAW] = 1.0 if cv.lid_growth_law == "base-flux" else 0.0
     iso = isotope_table(spec.heating.radiogenic_scale)
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
