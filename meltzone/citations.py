@@ -75,6 +75,12 @@ REGISTRY = {
                                  "Morschhauser, Grott & Breuer 2011, Icarus 212:541", MEMORY),
     "goodman1958": Citation("heat-balance integral of a growing conductive layer with a linear profile",
                             "Goodman 1958, Trans. ASME 80:335", MEMORY),
+    "monteux2016": Citation("bottom-up crystallisation of a magma ocean (the base stiffens first)",
+                            "Monteux, Andrault & Samuel 2016, EPSL 448:140 (abstract)", CHECKED),
+    "noack2020": Citation("evolution started after magma-ocean solidification with a superheated core",
+                          "Noack & Lasbleis 2020, A&A 638:A129 (abstract)", CHECKED),
+    "core_start_phi_c": Citation("the core starts initial_cmb_jump_k above the CMB node's rheological transition",
+                                 "initial.core_start = rheological-transition", CHOICE),
     "abe1985": Citation("grey atmosphere emissivity 2/(tau + 2) and H2O/CO2 absorption coefficients",
                         "Abe & Matsui 1985, JGR 90:C545", MEMORY),
     "elkins_tanton2008": Citation("grey atmosphere over a magma ocean", "Elkins-Tanton 2008, EPSL 271:181", MEMORY),
@@ -142,7 +148,15 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     keys.append("kraus2022")
     if spec.melting.basal_magma_ocean == "reservoir":
         keys += ["labrosse2007", "blanc2020", "orourke2020", "basal_ocean_melting"]
-    return tuple(keys)
+    return tuple(keys + _start_keys(spec))
+
+
+def _start_keys(spec) -> list[str]:
+    """Keys of the core's starting temperature (meltzone.evolution.core_start)."""
+    ini = spec.initial
+    if ini.core_temperature_k > 0.0 or ini.core_start == "adiabat":
+        return []
+    return ["monteux2016", "noack2020", "core_start_phi_c"]
 
 
 def mixing_length_keys(spec) -> tuple[str, ...]:
@@ -156,7 +170,7 @@ def mixing_length_keys(spec) -> tuple[str, ...]:
         keys.append("mlt_mobile_lid")
     if spec.surface.atmosphere == "grey":
         keys += ["abe1985", "elkins_tanton2008", "lebrun2013"]
-    return tuple(keys)
+    return tuple(keys + _start_keys(spec))
 
 
 #: convection.scheme -> function(spec) giving the registry keys of the laws that scheme uses. A new scheme

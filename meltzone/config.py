@@ -25,7 +25,7 @@ from types import MappingProxyType
 from typing import Any, Mapping
 
 from .errors import ConfigError
-from .mantle_keys import convection_keys
+from .mantle_keys import convection_keys, initial_keys
 
 #: Mass range [Earth masses] inside which the models are calibrated; outside it a run warns.
 CALIBRATED_MASS_RANGE = (0.5, 15.0)
@@ -257,13 +257,14 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                                    special=0.0,
             source=f"limits: {MIN_INITIAL_TEMPERATURE_K:g} K, " + _COLD_START_REASON + "; 20000 K: this model's "
                    "choice, ten times the liquidus at the surface (~2000 K)"),
-        "core_temperature_k": Key(0.0, "K", "initial temperature at the top of the core; 0 = the mantle adiabat "
-                                  "at the CMB plus initial_cmb_jump_k", lo=MIN_INITIAL_TEMPERATURE_K, hi=30000.0,
+        "core_temperature_k": Key(0.0, "K", "initial temperature at the top of the core; 0 = by the rule of "
+                                  "core_start", lo=MIN_INITIAL_TEMPERATURE_K, hi=30000.0,
                                   special=0.0,
             source=f"limits: {MIN_INITIAL_TEMPERATURE_K:g} K, " + _COLD_START_REASON + "; 30000 K: above the iron "
                    "melting curve at any CMB pressure of an allowed planet (27540 K at 5 TPa, this code)"),
-        "initial_cmb_jump_k": Key(200.0, "K", "initial excess of the core over the mantle adiabat at the CMB "
-                                  "(used when core_temperature_k = 0)", lo=0.0, hi=10000.0,
+        **initial_keys(Key),
+        "initial_cmb_jump_k": Key(200.0, "K", "initial excess of the core over the mantle at the CMB (its adiabat or "
+                                  "rheological transition, see core_start; used when core_temperature_k = 0)", lo=0.0, hi=10000.0,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
     },
     "run": {

@@ -20,3 +20,19 @@ def convection_keys(key) -> dict:
                    "212:541 (form from memory); heat-balance-integral: Goodman 1958, Trans. ASME 80:335 (from "
                    "memory); see meltzone._core.lid"),
     }
+
+
+def initial_keys(key) -> dict:
+    """Keys of [initial]: the rule of the core's starting temperature."""
+    return {
+        "core_start": key(
+            "rheological-transition", "", "the core's starting temperature when core_temperature_k = 0: "
+            "'rheological-transition', the temperature at which the mantle at the CMB holds the critical melt "
+            "fraction (or the starting mantle adiabat there, if colder) plus initial_cmb_jump_k; or 'adiabat', the "
+            "starting mantle adiabat at the CMB plus initial_cmb_jump_k (the rule before this key existed)",
+            choices=("rheological-transition", "adiabat"),
+            source="bottom-up crystallisation of the magma ocean, Monteux, Andrault & Samuel 2016, EPSL 448:140; "
+                   "start after magma-ocean solidification with a superheated core, Noack & Lasbleis 2020, A&A "
+                   "638:A129 (abstracts checked); phi_c as the stiffened base: this model's choice; see "
+                   "meltzone.evolution.core_start"),
+    }

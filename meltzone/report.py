@@ -154,6 +154,13 @@ def event_lines(events) -> list[str]:
     return lines
 
 
+def _start_text(result) -> str:
+    h, ini = result.history, result.spec.initial
+    rule = ("set (initial.core_temperature_k)" if ini.core_temperature_k > 0.0 else
+            f"initial.core_start = {ini.core_start}, +{ini.initial_cmb_jump_k:g} K")
+    return f"T_u {h['upper_temperature'][0]:,.0f} K, core {h['core_temperature'][0]:,.0f} K ({rule})"
+
+
 def _magma_ocean_text(s: dict) -> str:
     mo = s["magma_ocean_end_yr"]
     if not s["magma_ocean_at_start"]:
@@ -213,6 +220,7 @@ def head_lines(result, s: dict) -> list[str]:
         f"evolution         {format_years(result.time[-1] / YEAR)} in {result.n_steps} steps "
         f"({result.wall_time_s:.2g} s), {spec.convection.scheme} scheme, {spec.convection.regime}, melting model "
         f"{result.melting_model}",
+        f"start             {_start_text(result)}",
         f"magma ocean       {_magma_ocean_text(s)}",
         f"crystallisation   {_crystallisation_text(s)}",
         f"partial melt      {_melt_text(s)}",

@@ -218,13 +218,21 @@ def build_inputs(spec, interior=None):
 
 def initial_temperatures(spec, mantle):
     """(T_u, T_c) at the start: the configured values, or by default 50 K above the liquidus at every node
-    (T_u = max(T_liq / f) + 50 K) and the core the mantle adiabat at the CMB plus the initial CMB jump."""
+    (T_u = max(T_liq / f) + 50 K) and the core the initial CMB jump above the mantle at the CMB: its adiabat
+    (initial.core_start = "adiabat"), or the colder of the adiabat and the temperature at which the CMB node holds
+    phi_c (the stiffened base of a magma ocean that crystallises from the bottom up; "rheological-transition")."""
     tu = spec.initial.upper_temperature_k
     if tu <= 0.0:
         tu = float(np.max(mantle.liquidus / mantle.adiabat)) + 50.0
     tc = spec.initial.core_temperature_k
     if tc <= 0.0:
-        tc = tu * mantle.adiabat[0] + spec.initial.initial_cmb_jump_k
+        t_base = tu * mantle.adiabat[0]
+        if spec.initial.core_start == "rheological-transition":
+            phi_c = spec.convection.critical_melt_fraction
+            t_phi_c = brentq(lambda t: float(melt_fraction(np.array([t]), mantle, slice(0, 1))[0]) - phi_c,
+                             mantle.solidus[0], mantle.liquidus[0], xtol=1e-9, rtol=1e-14)
+            t_base = min(t_base, t_phi_c)
+        tc = t_base + spec.initial.initial_cmb_jump_k
     return tu, tc
 
 

@@ -155,10 +155,13 @@ def test_stagnant_lid_grows_as_the_reference():
 def test_grey_atmosphere_water_and_co2():
     """1 M_E under a grey H2O-CO2 atmosphere (1.4e21 kg H2O, 1e20 kg CO2 in solubility equilibrium with the
     melt), 50 Myr: trajectory tolerances and magma-ocean end as above; the blanket makes the magma ocean last
-    longer than on the bare planet (Lebrun et al. 2013, from memory), in both."""
+    longer than on the bare planet (Lebrun et al. 2013, from memory), in both. The fast path runs at rtol 1e-9:
+    the blanketed top approaches phi_c slowly, which magnifies step-control noise in the crossing time (measured
+    with the core started at the base's rheological transition: 1.6e-3 at the default rtol 1e-7, 4e-4 to 1e-3 at
+    2e-8 to 5e-8, 3.7e-5 at 1e-9)."""
     _, summary, ref, _, diff = compare(PlanetSpec(mass_earth=1.0, end_time_gyr=0.05, mantle_nodes=48,
                                                   atmosphere="grey", water_inventory_kg=1.4e21,
-                                                  co2_inventory_kg=1.0e20))
+                                                  co2_inventory_kg=1.0e20, rtol=1e-9))
     assert_trajectory(diff)
     assert_magma_ocean_end(summary, ref)
     bare = ReferenceModel(PlanetSpec(mass_earth=1.0, end_time_gyr=0.05, mantle_nodes=48)).run([1e3 * YEAR,

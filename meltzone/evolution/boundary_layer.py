@@ -236,14 +236,19 @@ def build_inputs(spec, interior, curves):
 
 def initial_temperatures(spec, inputs) -> tuple[float, float]:
     """(T_u, T_c) at the start: by default 50 K above the liquidus at every mantle node (fully molten),
-    and the core the mantle adiabat at the CMB plus ``initial.initial_cmb_jump_k``."""
+    and the core by the rule of ``initial.core_start`` (:mod:`meltzone.evolution.core_start`)."""
+    from .core_start import core_start_temperature, phi_c_temperature
+
     grid = inputs.grid
     tu = spec.initial.upper_temperature_k
     if tu <= 0.0:
         tu = float(np.max(grid[k.G_TLIQ] / grid[k.G_F])) + 50.0
     tc = spec.initial.core_temperature_k
     if tc <= 0.0:
-        tc = tu * grid[k.G_F, 0] + spec.initial.initial_cmb_jump_k
+        t_phi_c = phi_c_temperature(spec.convection.critical_melt_fraction, *(grid[row, 0] for row in (
+            k.G_TSOL, k.G_TLIQ, k.G_AUX1, k.G_AUX2)), inputs.law)
+        tc = core_start_temperature(spec.initial.core_start, tu * grid[k.G_F, 0], spec.initial.initial_cmb_jump_k,
+                                    t_phi_c)
     return float(tu), float(tc)
 
 
