@@ -81,6 +81,21 @@ REGISTRY = {
                           "Noack & Lasbleis 2020, A&A 638:A129 (abstract)", CHECKED),
     "core_start_phi_c": Citation("the core starts initial_cmb_jump_k above the CMB node's rheological transition",
                                  "initial.core_start = rheological-transition", CHOICE),
+    "reynard1990": Citation("Anderson-Grueneisen form alpha = alpha0 (rho0/rho)^delta_T; delta_T 2-3 along the "
+                            "mantle from seismic data, 4-6 within a mineral phase", "Reynard & Price 1990, GRL "
+                            "17:689 (abstract)", CHECKED),
+    "manga1997": Citation("conductivity as a power law of compression; 5-12 W/m/K through the lower mantle",
+                          "Manga & Jeanloz 1997, JGR 102:2999 (abstract)", CHECKED),
+    "haigis2012": Citation("lower-mantle conductivity 9.5-20.5 W/m/K Fe-free, ~half with iron",
+                           "Haigis, Salanne & Jahn 2012, EPSL (abstract)", CHECKED),
+    "property_exponents": Citation("delta_T = 2 and g = 2 with rho0 the surface rock's density",
+                                   "convection.expansivity_density_exponent, conductivity_density_exponent", CHOICE),
+    "rayleigh_point": Citation("the solid upper boundary layer's viscosity at its base (fixed-point passes), or "
+                               "mid-mantle", "convection.rayleigh_viscosity_depth", CHOICE),
+    "stamenkovic2012": Citation("pressure-dependent viscosity and properties make super-Earth lower mantles "
+                                "sluggish", "Stamenkovic et al. 2012, ApJ 748:41 (abstract)", CHECKED),
+    "tackley2013": Citation("viscosity and conductivity rise and expansivity falls with pressure in super-Earths; "
+                            "self-regulated deep viscosity", "Tackley et al. 2013, Icarus 225:50 (abstract)", CHECKED),
     "abe1985": Citation("grey atmosphere emissivity 2/(tau + 2) and H2O/CO2 absorption coefficients",
                         "Abe & Matsui 1985, JGR 90:C545", MEMORY),
     "elkins_tanton2008": Citation("grey atmosphere over a magma ocean", "Elkins-Tanton 2008, EPSL 271:181", MEMORY),
@@ -148,6 +163,10 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     keys.append("kraus2022")
     if spec.melting.basal_magma_ocean == "reservoir":
         keys += ["labrosse2007", "blanc2020", "orourke2020", "basal_ocean_melting"]
+    if cv.mantle_properties == "density":
+        keys += ["reynard1990", "manga1997", "haigis2012", "property_exponents"]
+    if cv.rayleigh_viscosity_depth != "surface":
+        keys += ["rayleigh_point", "stamenkovic2012", "tackley2013"]
     return tuple(keys + _start_keys(spec))
 
 

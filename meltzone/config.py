@@ -118,9 +118,12 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
             source="common practice (Earth's mantle Mg# ~0.89-0.90)"),
     },
     "melting": {
-        "model": Key("whole-mantle-sg", "", "mantle solidus/liquidus model id (see `meltzone curves`)",
+        "model": Key("peridotite-mantle", "", "mantle solidus/liquidus model id (see `meltzone curves`)",
                       choices=MELTING_MODELS,
-            source="Monteux, Andrault & Samuel 2016, EPSL 448:140 (see `meltzone curves whole-mantle-sg`)"),
+            source="dry peridotite solidus of Hirschmann 2000, G3 1 (1394 K at 0 GPa; Earth's ridges melt today) and "
+                   "Katz et al. 2003 liquidus below 5 GPa, blended over 5-10 GPa into the fits of Monteux, Andrault "
+                   "& Samuel 2016, EPSL 448:140 (see `meltzone curves peridotite-mantle`); whole-mantle-sg, the "
+                   "chondritic default before (1661 K at 0 GPa), stays selectable"),
         "table_file": Key("", "", "CSV table for melting.model = 'table' (pressure, solidus, liquidus with a units "
                           "header); only with that model", max_len=4096,
             source="limit: 4096 characters, the usual longest path (PATH_MAX on Linux)"),
@@ -264,7 +267,8 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                    "melting curve at any CMB pressure of an allowed planet (27540 K at 5 TPa, this code)"),
         **initial_keys(Key),
         "initial_cmb_jump_k": Key(200.0, "K", "initial excess of the core over the mantle at the CMB (its adiabat or "
-                                  "rheological transition, see core_start; used when core_temperature_k = 0)", lo=0.0, hi=10000.0,
+                                  "rheological transition, see core_start; used when core_temperature_k = 0)",
+                                  lo=0.0, hi=10000.0,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
     },
     "run": {

@@ -169,6 +169,10 @@ def _magma_ocean_text(s: dict) -> str:
         text = "still present at the end of the run"
     else:
         text = f"ends after {format_years(mo)}"
+        surface = s.get("surface_magma_ocean_end_yr")
+        if surface is not None and surface != mo:
+            text += f" (< 1% of the mantle above the rheological transition; the top reached it after " \
+                    f"{format_years(surface)})"
     if s.get("magma_ocean_reformed_yr") is not None:
         again = "forms" if not s["magma_ocean_at_start"] else "forms again"
         text += (f"; {again} at {format_years(s['magma_ocean_reformed_yr'])} (the mantle warmed past the "
@@ -191,7 +195,8 @@ def _crystallisation_text(s: dict) -> str:
     rheo = s.get("rheological_transition_yr")
     first = "none fully molten at the start" if depth is None else f"starts at {km(depth)} km depth"
     whole = ("the whole mantle below the rheological transition after " + format_years(rheo)) if rheo is not None \
-        else "some of the mantle above the rheological transition at the end" if s["magma_ocean_at_end"] \
+        else "some of the mantle above the rheological transition at the end" if (
+            s["magma_ocean_at_end"] or s["magma_ocean_at_start"]) \
         else "no part above the rheological transition at the start"
     return f"{first}; {whole}; at most {s.get('max_simultaneous_layers', 0)} melt layers at once"
 

@@ -53,11 +53,10 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   (Solomatov & Moresi 2000, JGR 105:21795; a_rh ~ 2.2-2.5, Grasset & Parmentier
   1998, JGR 103:18171; Thiriet et al. 2019, PEPI 286:138 show several (a_rh, beta)
   pairs fit equally), lid growth rho c (T_u - T_l) dD/dt = -q_u + k (T_l - T_s) / D
-  (Schubert & Spohn 1990; Morschhauser et al. 2011, Icarus 212:541; from memory) with the
-  thickening lid's own cooling rho c (T_l - T_lm) dD/dt added to the surface flux, T_lm the
-  lid's mean temperature, so the lid's heat stays in the budget; or, with
+  (Schubert & Spohn 1990; Morschhauser et al. 2011, Icarus 212:541; from memory), the lid's
+  rock counted at T_l in the stored heat; or, with
   ``convection.lid_growth_law = "heat-balance-integral"``, rho c (T_u - T_lm) dD/dt =
-  -q_u + k (T_l - T_s) / D (:mod:`meltzone._core.lid`); blended with the
+  -q_u + k (T_l - T_s) / D with T_lm the lid's mean temperature (:mod:`meltzone._core.lid`); blended with the
   magma-ocean top over the same melt-fraction width;
 * surface: the surface temperature balances the flux through the top layer
   with eps sigma (T_s^4 - T_eq^4), eps = 2 / (tau + 2) (Abe & Matsui 1985;
@@ -107,9 +106,16 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   calibration) lets the mantle warm to that threshold, where the magma-ocean branch then
   holds it.
 
+* pressure-dependent properties (:mod:`meltzone._core.properties`): alpha, k and kappa of each boundary layer
+  from the density there; the solid upper boundary layer's viscosity (and melt weakening) at the layer's base
+  below the lid (``convection.rayleigh_viscosity_depth``);
+* starting core temperature by ``initial.core_start`` (:mod:`meltzone.evolution.core_start`).
+
 Known limitations: with beta = 1/3 the mantle equilibrates with its heating within
-~1 Gyr, so an Earth hindcast gives a present heat flow of ~31 TW (46 TW observed)
-and a Urey ratio ~0.6 (Korenaga 2008, Rev. Geophys. 46:RG2007 discuss this paradox).
+~1 Gyr, so an Earth hindcast gives a present heat flow of ~28 TW (46 TW observed)
+and a Urey ratio ~0.7 (Korenaga 2008, Rev. Geophys. 46:RG2007 discuss this paradox).
+Without melt extraction, a stagnant-lid mantle warms until the isentropic melt fraction at the surface reaches
+phi_c (1876 K on the default peridotite curves) and stays there for Gyr, with partial melt under the lid.
 A weak scaling (beta = 0.015, a = 40, a calibration of this project for Earth's mobile
 lid) lands the present Earth inside the published ranges (tests/test_evolution.py). The
 configured (a, beta) apply once the top first reaches phi_c (the heat flow jumps there
@@ -138,6 +144,8 @@ LID_MIN = 1.0e3
 PROGRESS_STEPS = 100
 #: The History's switch-time key of the first time the top reached the rheological transition.
 SWITCH = "rheological_switch"
+#: convection.rayleigh_viscosity_depth choices, in the order of the core's RA_VISC_* codes.
+RAYLEIGH_VISCOSITY_DEPTHS = ("surface", "boundary-layer-base", "mid-mantle")
 
 
 def _node_weights(r: np.ndarray, m: np.ndarray, m_bottom: float, m_top: float) -> np.ndarray:
@@ -230,6 +238,12 @@ def build_inputs(spec, interior, curves):
     par[k.P_BMO_ENRICH] = mt.basal_melt_enrichment_k
     par[k.P_BMO_MREF] = mt.basal_ocean_reference_fraction * it.mantle_mass
     par[k.P_LID_LAW] = 1.0 if cv.lid_growth_law == "base-flux" else 0.0
+    grid[k.G_RHO] = it.rho[ms]
+    par[k.P_PROPS] = 1.0 if cv.mantle_properties == "density" else 0.0
+    par[k.P_ALPHA_EXP] = cv.expansivity_density_exponent
+    par[k.P_K_EXP] = cv.conductivity_density_exponent
+    par[k.P_RHO_REF] = it.rho[-1]
+    par[k.P_RA_VISC] = RAYLEIGH_VISCOSITY_DEPTHS.index(cv.rayleigh_viscosity_depth)
     iso = isotope_table(spec.heating.radiogenic_scale)
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
@@ -365,6 +379,8 @@ class Evaluator:
                                                                                               "par"))
         if len(par) < k.N_PAR:  # a file written before the basal-ocean parameters: zeros, i.e. no basal ocean
             par = np.concatenate([par, np.zeros(k.N_PAR - len(par))])
+        if grid.shape[0] < k.N_G:  # a file written before the density row (read only with P_PROPS on)
+            grid = np.concatenate([grid, np.zeros((k.N_G - grid.shape[0], grid.shape[1]))])
         self.inputs = k.KernelInputs(grid, core, iso, par, int(d["law"]))
         h = history
         self.t = h.time
