@@ -69,7 +69,33 @@ REGISTRY = {
     "grasset1998": Citation("stagnant lid: a_rh ~2.2-2.5", "Grasset & Parmentier 1998, JGR 103:18171", MEMORY),
     "thiriet2019": Citation("stagnant lid: several (a_rh, beta) pairs fit equally",
                             "Thiriet et al. 2019, PEPI 286:138", CHECKED),
-    "schubert1990": Citation("stagnant-lid growth law", "Schubert & Spohn 1990, JGR 95:14095", MEMORY),
+    "schubert1990": Citation("stagnant-lid growth law rho c (T_u - T_l) dD/dt = q_lid - q_u",
+                             "Schubert & Spohn 1990, JGR 95:14095", MEMORY),
+    "morschhauser2011": Citation("stagnant-lid growth law rho c (T_u - T_l) dD/dt = q_lid - q_u (as used)",
+                                 "Morschhauser, Grott & Breuer 2011, Icarus 212:541", MEMORY),
+    "goodman1958": Citation("heat-balance integral of a growing conductive layer with a linear profile",
+                            "Goodman 1958, Trans. ASME 80:335", MEMORY),
+    "monteux2016": Citation("bottom-up crystallisation of a magma ocean (the base stiffens first)",
+                            "Monteux, Andrault & Samuel 2016, EPSL 448:140 (abstract)", CHECKED),
+    "noack2020": Citation("evolution started after magma-ocean solidification with a superheated core",
+                          "Noack & Lasbleis 2020, A&A 638:A129 (abstract)", CHECKED),
+    "core_start_phi_c": Citation("the core starts initial_cmb_jump_k above the CMB node's rheological transition",
+                                 "initial.core_start = rheological-transition", CHOICE),
+    "reynard1990": Citation("Anderson-Grueneisen form alpha = alpha0 (rho0/rho)^delta_T; delta_T 2-3 along the "
+                            "mantle from seismic data, 4-6 within a mineral phase", "Reynard & Price 1990, GRL "
+                            "17:689 (abstract)", CHECKED),
+    "manga1997": Citation("conductivity as a power law of compression; 5-12 W/m/K through the lower mantle",
+                          "Manga & Jeanloz 1997, JGR 102:2999 (abstract)", CHECKED),
+    "haigis2012": Citation("lower-mantle conductivity 9.5-20.5 W/m/K Fe-free, ~half with iron",
+                           "Haigis, Salanne & Jahn 2012, EPSL (abstract)", CHECKED),
+    "property_exponents": Citation("delta_T = 2 and g = 2 with rho0 the surface rock's density",
+                                   "convection.expansivity_density_exponent, conductivity_density_exponent", CHOICE),
+    "rayleigh_point": Citation("the solid upper boundary layer's viscosity at its base (fixed-point passes), or "
+                               "mid-mantle", "convection.rayleigh_viscosity_depth", CHOICE),
+    "stamenkovic2012": Citation("pressure-dependent viscosity and properties make super-Earth lower mantles "
+                                "sluggish", "Stamenkovic et al. 2012, ApJ 748:41 (abstract)", CHECKED),
+    "tackley2013": Citation("viscosity and conductivity rise and expansivity falls with pressure in super-Earths; "
+                            "self-regulated deep viscosity", "Tackley et al. 2013, Icarus 225:50 (abstract)", CHECKED),
     "abe1985": Citation("grey atmosphere emissivity 2/(tau + 2) and H2O/CO2 absorption coefficients",
                         "Abe & Matsui 1985, JGR 90:C545", MEMORY),
     "elkins_tanton2008": Citation("grey atmosphere over a magma ocean", "Elkins-Tanton 2008, EPSL 271:181", MEMORY),
@@ -192,7 +218,8 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     if cv.beta != 1.0 / 3.0 or cv.nusselt_prefactor != 1.0:
         keys += ["korenaga2008", "christensen1985"]
     if cv.regime == "stagnant-lid":
-        keys += ["solomatov2000", "grasset1998", "thiriet2019", "schubert1990"]
+        keys += ["solomatov2000", "grasset1998", "thiriet2019"]
+        keys += ["schubert1990", "morschhauser2011"] if cv.lid_growth_law == "base-flux" else ["goodman1958"]
     if spec.surface.atmosphere == "grey":
         keys += ["abe1985", "elkins_tanton2008", "lebrun2013"]
     keys.append("kraus2022")
@@ -202,7 +229,19 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     if spec.volcanism.enabled == "on":
         keys += ["morschhauser2011", "kite2009", "moore2013", "crisp1984", "volatile_partition", "stixrude2009",
                  "volcanism_choices"] + (["orourke2012"] if cv.regime == "stagnant-lid" else [])
-    return tuple(keys)
+    if cv.mantle_properties == "density":
+        keys += ["reynard1990", "manga1997", "haigis2012", "property_exponents"]
+    if cv.rayleigh_viscosity_depth != "surface":
+        keys += ["rayleigh_point", "stamenkovic2012", "tackley2013"]
+    return tuple(keys + _start_keys(spec))
+
+
+def _start_keys(spec) -> list[str]:
+    """Keys of the core's starting temperature (meltzone.evolution.core_start)."""
+    ini = spec.initial
+    if ini.core_temperature_k > 0.0 or ini.core_start == "adiabat":
+        return []
+    return ["monteux2016", "noack2020", "core_start_phi_c"]
 
 
 def mixing_length_keys(spec) -> tuple[str, ...]:
@@ -217,7 +256,7 @@ def mixing_length_keys(spec) -> tuple[str, ...]:
         keys.append("mlt_mobile_lid")
     if spec.surface.atmosphere == "grey":
         keys += ["abe1985", "elkins_tanton2008", "lebrun2013"]
-    return tuple(keys) + surface_keys(spec)
+    return tuple(keys + _start_keys(spec)) + surface_keys(spec)
 
 
 def surface_keys(spec) -> tuple[str, ...]:

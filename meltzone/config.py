@@ -26,6 +26,7 @@ from typing import Any, Mapping
 from .config_key import Key
 from .config_volcanism import VOLCANISM_KEYS
 from .errors import ConfigError
+from .mantle_keys import convection_keys, initial_keys
 
 #: Mass range [Earth masses] inside which the models are calibrated; outside it a run warns.
 CALIBRATED_MASS_RANGE = (0.5, 15.0)
@@ -83,9 +84,12 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
             source="common practice (Earth's mantle Mg# ~0.89-0.90)"),
     },
     "melting": {
-        "model": Key("whole-mantle-sg", "", "mantle solidus/liquidus model id (see `meltzone curves`)",
+        "model": Key("peridotite-mantle", "", "mantle solidus/liquidus model id (see `meltzone curves`)",
                       choices=MELTING_MODELS,
-            source="Monteux, Andrault & Samuel 2016, EPSL 448:140 (see `meltzone curves whole-mantle-sg`)"),
+            source="dry peridotite solidus of Hirschmann 2000, G3 1 (1394 K at 0 GPa; Earth's ridges melt today) and "
+                   "Katz et al. 2003 liquidus below 5 GPa, blended over 5-10 GPa into the fits of Monteux, Andrault "
+                   "& Samuel 2016, EPSL 448:140 (see `meltzone curves peridotite-mantle`); whole-mantle-sg, the "
+                   "chondritic default before (1661 K at 0 GPa), stays selectable"),
         "table_file": Key("", "", "CSV table for melting.model = 'table' (pressure, solidus, liquidus with a units "
                           "header); only with that model", max_len=4096,
             source="limit: 4096 characters, the usual longest path (PATH_MAX on Linux)"),
@@ -163,6 +167,7 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
         "rheology_a": Key(2.5, "1", "factor of the rheological temperature scale (stagnant lid)",
                           lo=0.5, hi=10.0,
             source='Grasset & Parmentier 1998, JGR 103:18171; Solomatov & Moresi 2000 (2.2-2.5; from memory)'),
+        **convection_keys(Key),
         "melt_weakening": Key(26.0, "1", "melt weakening factor alpha in exp(-alpha phi)", lo=0.0, hi=100.0,
             source='Mei et al. 2002, EPSL 201:491 (from memory)'),
         "liquid_viscosity_pa_s": Key(0.1, "Pa s", "viscosity of the silicate liquid", lo=1.0e-4, hi=1.0e3,
@@ -237,14 +242,16 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                                    special=0.0,
             source=f"limits: {MIN_INITIAL_TEMPERATURE_K:g} K, " + _COLD_START_REASON + "; 20000 K: this model's "
                    "choice, ten times the liquidus at the surface (~2000 K)"),
-        "core_temperature_k": Key(0.0, "K", "initial temperature at the top of the core; 0 = the mantle adiabat "
-                                  "at the CMB plus initial_cmb_jump_k, at least 50 K above the core's melting curve "
-                                  "(a molten start)", lo=MIN_INITIAL_TEMPERATURE_K, hi=30000.0,
+        "core_temperature_k": Key(0.0, "K", "initial temperature at the top of the core; 0 = by the rule of "
+                                  "core_start, at least 50 K above the core's melting curve (a molten start)",
+                                  lo=MIN_INITIAL_TEMPERATURE_K, hi=30000.0,
                                   special=0.0,
             source=f"limits: {MIN_INITIAL_TEMPERATURE_K:g} K, " + _COLD_START_REASON + "; 30000 K: above the iron "
                    "melting curve at any CMB pressure of an allowed planet (27540 K at 5 TPa, this code)"),
-        "initial_cmb_jump_k": Key(200.0, "K", "initial excess of the core over the mantle adiabat at the CMB "
-                                  "(used when core_temperature_k = 0)", lo=0.0, hi=10000.0,
+        **initial_keys(Key),
+        "initial_cmb_jump_k": Key(200.0, "K", "initial excess of the core over the mantle at the CMB (its adiabat or "
+                                  "rheological transition, see core_start; used when core_temperature_k = 0)",
+                                  lo=0.0, hi=10000.0,
             source='Tosi et al. 2017, A&A 605:A71, Table 1'),
     },
     "volcanism": {name: Key(**kw) for name, kw in VOLCANISM_KEYS.items()},

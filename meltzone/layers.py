@@ -32,6 +32,7 @@ import math
 import numpy as np
 from scipy.optimize import brentq
 
+from . import magma_ocean
 from .constants import YEAR
 from .water import water_outcomes
 from .volcanics import volcanism_outcomes
@@ -205,13 +206,10 @@ def track(result):
 def _regime_events(h, add_event, n_nodes):
     t = h.time
     regime = h["regime"]
-    phi_c = h.critical_melt_fraction
     top = n_nodes - 1
+    for when, kind in magma_ocean.transitions(h, _refine):  # surface and mass criteria (magma_ocean.py)
+        add_event(when, kind, -1, top)
     for s in range(1, len(t)):
-        was_magma, is_magma = regime[s - 1] == 0, regime[s] == 0
-        if was_magma != is_magma:
-            when = _refine(lambda tt: h.at(tt).regime_melt_fraction - phi_c, t[s - 1], t[s])
-            add_event(when, "magma-ocean-ended" if was_magma else "magma-ocean-reformed", -1, top)
         if regime[s] == 2 and regime[s - 1] != 2:
             add_event(t[s], "stagnant-lid-formed", -1, top)
     ric = h["inner_core_radius"]
@@ -240,12 +238,19 @@ def summarize(result, table=None, events=None) -> dict:
     tell which: ``magma_ocean_at_start`` / ``magma_ocean_at_end`` for ``magma_ocean_end_yr``, ``melt_at_end``
     (and ``n_layers``) for ``last_melt_yr``. ``basal_layer`` is None unless a basal melt layer exists after
     the surface magma ocean has ended (see :func:`basal_layer`).
+
+    A magma ocean is reported while the regime is the magma ocean (the top's melt fraction above phi_c) and at
+    least 1% of the mantle's mass is above phi_c (:mod:`meltzone.magma_ocean`): ``magma_ocean_end_yr``,
+    ``magma_ocean_reformed_yr``, ``magma_ocean_at_start`` and ``magma_ocean_at_end`` use both criteria;
+    ``surface_magma_ocean_end_yr`` and ``surface_magma_ocean_reformed_yr`` the regime alone.
     """
     if table is None or events is None:
         table, events = track(result)
     h = result.history
     it = result.interior
-    at_start = bool(h["regime"][0] == 0)
+    _, mo_state = magma_ocean.states(h)
+    at_start = bool(mo_state[0])
+    surface_end, surface_again = magma_ocean.surface_times(h, _refine)
     ends = [e["time"] for e in events if e["kind"] == "magma-ocean-ended"]
     # the first magma ocean: none when the run starts below the transition (a later one is "reformed")
     mo_end = ends[0] / YEAR if at_start and ends else None
@@ -266,7 +271,9 @@ def summarize(result, table=None, events=None) -> dict:
         "magma_ocean_at_start": at_start,
         "magma_ocean_end_yr": mo_end,
         "magma_ocean_reformed_yr": again[0] / YEAR if again else None,
-        "magma_ocean_at_end": bool(h["regime"][-1] == 0),
+        "magma_ocean_at_end": bool(mo_state[-1]),
+        "surface_magma_ocean_end_yr": None if surface_end is None else surface_end / YEAR,
+        "surface_magma_ocean_reformed_yr": None if surface_again is None else surface_again / YEAR,
         "last_melt_yr": last_melt,
         "melt_at_end": still,
         "basal_layer": basal,

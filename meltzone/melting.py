@@ -18,7 +18,7 @@ Models (ids are this package's own; see :func:`list_models`)
 ``katz2003``
     Katz, Spiegelman & Langmuir 2003 entirely (solidus, lherzolite liquidus and
     liquidus); 0-10 GPa. The reference model of the ``katz2003`` melt-fraction law.
-``whole-mantle-sg`` (the configuration default)
+``whole-mantle-sg``
     Piecewise Simon-Glatzel fits of Monteux, Andrault & Samuel 2016 to the
     experiments of Fiquet et al. 2010 / Andrault et al. 2011 (validated to
     ~140 GPa). Above, each curve is continued by the power-law form
@@ -27,6 +27,10 @@ Models (ids are this package's own; see :func:`list_models`)
     ~267 GPa), so value and slope are continuous. The continuation keeps the
     solidus/liquidus ratio fixed and so avoids the crossing of the two fits
     near 490 GPa. Evaluable to 5 TPa; everything above 140 GPa is extrapolated.
+``peridotite-mantle`` (the configuration default)
+    Hirschmann 2000 solidus and Katz et al. 2003 liquidus below 5 GPa, blended in log T (C1) over 5-10 GPa
+    into ``whole-mantle-sg`` (the solidi meet within 3 K at 10 GPa), so a present-day Earth adiabat
+    crosses the solidus under ridges; ``whole-mantle-sg`` above 10 GPa.
 ``super-earth``
     Identical to ``whole-mantle-sg`` up to 140 GPa; between 140 and 400 GPa it
     blends smoothly (in log T, C1 weight) into an absolute high-pressure law:

@@ -154,6 +154,13 @@ def event_lines(events) -> list[str]:
     return lines
 
 
+def _start_text(result) -> str:
+    h, ini = result.history, result.spec.initial
+    rule = ("set (initial.core_temperature_k)" if ini.core_temperature_k > 0.0 else
+            f"initial.core_start = {ini.core_start}, +{ini.initial_cmb_jump_k:g} K")
+    return f"T_u {h['upper_temperature'][0]:,.0f} K, core {h['core_temperature'][0]:,.0f} K ({rule})"
+
+
 def _magma_ocean_text(s: dict) -> str:
     mo = s["magma_ocean_end_yr"]
     if not s["magma_ocean_at_start"]:
@@ -162,6 +169,10 @@ def _magma_ocean_text(s: dict) -> str:
         text = "still present at the end of the run"
     else:
         text = f"ends after {format_years(mo)}"
+        surface = s.get("surface_magma_ocean_end_yr")
+        if surface is not None and surface != mo:
+            text += f" (< 1% of the mantle above the rheological transition; the top reached it after " \
+                    f"{format_years(surface)})"
     if s.get("magma_ocean_reformed_yr") is not None:
         again = "forms" if not s["magma_ocean_at_start"] else "forms again"
         text += (f"; {again} at {format_years(s['magma_ocean_reformed_yr'])} (the mantle warmed past the "
@@ -184,7 +195,8 @@ def _crystallisation_text(s: dict) -> str:
     rheo = s.get("rheological_transition_yr")
     first = "none fully molten at the start" if depth is None else f"starts at {km(depth)} km depth"
     whole = ("the whole mantle below the rheological transition after " + format_years(rheo)) if rheo is not None \
-        else "some of the mantle above the rheological transition at the end" if s["magma_ocean_at_end"] \
+        else "some of the mantle above the rheological transition at the end" if (
+            s["magma_ocean_at_end"] or s["magma_ocean_at_start"]) \
         else "no part above the rheological transition at the start"
     return f"{first}; {whole}; at most {s.get('max_simultaneous_layers', 0)} melt layers at once"
 
@@ -236,6 +248,7 @@ def head_lines(result, s: dict) -> list[str]:
         f"evolution         {format_years(result.time[-1] / YEAR)} in {result.n_steps} steps "
         f"({result.wall_time_s:.2g} s), {spec.convection.scheme} scheme, {spec.convection.regime}, melting model "
         f"{result.melting_model}",
+        f"start             {_start_text(result)}",
         f"magma ocean       {_magma_ocean_text(s)}",
         f"crystallisation   {_crystallisation_text(s)}",
         f"partial melt      {_melt_text(s)}",

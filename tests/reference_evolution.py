@@ -15,10 +15,12 @@ isotope data.
 The model (equations and sources; every law below repeats its own):
 
 * stored heat of the mantle E_m = sum_i m_i (c_p T_u f_i + L phi_i(T_u f_i)) over the nodes of the
-  adiabat T_u f(r), less, under a stagnant lid of thickness D, M_lid(D) c_p (T_u - T_lm) with T_lm the
-  mean of the lid's linear profile; of the core E_c = sum_j m_j c_c T_c f_j - (L_c + E_G) M_ic(T_c);
+  adiabat T_u f(r), less, under a stagnant lid of thickness D, M_lid(D) c_p (T_u - T_lid) with T_lid the lid's
+  base temperature (base-flux law) or the mean of its linear profile (heat-balance integral); of the core E_c = sum_j m_j c_c T_c f_j - (L_c + E_G) M_ic(T_c);
 * dE_m/dt = -Q_surface + Q_cmb + H(t), dE_c/dt = -Q_cmb, and under a stagnant lid
-  rho c_p (T_u - T_lm) dD/dt = q_lid - q_u (blended towards the minimum lid over 1 kyr in the magma ocean);
+  rho c_p (T_u - T_l) dD/dt = q_lid - q_u (or rho c_p (T_u - T_lm) dD/dt = q_lid - q_u with
+  convection.lid_growth_law = "heat-balance-integral"; blended towards the minimum lid over 1 kyr in the magma
+  ocean);
 * top: the magma ocean's boundary layer (a = 1, beta = 1/3 over the whole mantle, suspension viscosity)
   blended by smoothstep((phi_top - phi_c) / width) with the solid mantle's (mobile lid, or a stagnant lid
   over its sublayer); the solid mantle keeps a = 1, beta = 1/3 until the top first reaches phi_c and takes
@@ -46,6 +48,8 @@ from meltzone import melting
 from meltzone.evolution.heating import ISOTOPES
 from meltzone.interior import build_interior
 from meltzone.iron import iron_melting_temperature
+
+from reference_mantle import lid_growth, lid_heat_temperature, properties
 
 #: Molar gas constant [J/mol/K] (CODATA 2018).
 R_GAS = 8.314462618
@@ -112,6 +116,12 @@ class Physics:
     water_kg: float
     co2_kg: float
     stagnant_lid: bool
+    lid_law: str  # convection.lid_growth_law
+    density_properties: bool  # convection.mantle_properties == "density"
+    expansivity_exponent: float
+    conductivity_exponent: float
+    reference_density: float  # the surface rock's
+    rayleigh_viscosity_depth: str
     start_age_s: float
     isotope_heat: tuple  # W per kg of mantle today (scaled), one per isotope
     isotope_decay: tuple  # 1/s
@@ -130,6 +140,7 @@ class MantleNodes:
     t_cpx: np.ndarray  # Katz: temperature of clinopyroxene exhaustion
     f_cpx: np.ndarray  # Katz: melt fraction at clinopyroxene exhaustion
     katz: bool
+    density: np.ndarray
 
 
 @dataclass(frozen=True)
@@ -180,7 +191,7 @@ def build_inputs(spec, interior=None):
     mantle = MantleNodes(r=r_m, pressure=p_m, adiabat=it.adiabat[nc:],
                          mass=node_masses(r_m, rho_m, it.mantle_mass), solidus=curves["solidus"],
                          liquidus=curves["liquidus"], t_cpx=curves["aux1"], f_cpx=curves["aux2"],
-                         katz=law == "katz2003")
+                         katz=law == "katz2003", density=rho_m)
     core = None
     if nc >= 2:
         r_c, rho_c = it.r[:nc], it.rho[:nc]
@@ -207,6 +218,9 @@ def build_inputs(spec, interior=None):
         core_melting_depression=spec.melting.core_melting_depression_k,
         equilibrium_temperature=sf.equilibrium_temperature_k, grey_atmosphere=sf.atmosphere == "grey",
         water_kg=sf.water_inventory_kg, co2_kg=sf.co2_inventory_kg, stagnant_lid=cv.regime == "stagnant-lid",
+        lid_law=cv.lid_growth_law, density_properties=cv.mantle_properties == "density",
+        expansivity_exponent=cv.expansivity_density_exponent, conductivity_exponent=cv.conductivity_density_exponent,
+        reference_density=float(it.rho[-1]), rayleigh_viscosity_depth=cv.rayleigh_viscosity_depth,
         start_age_s=spec.heating.start_age_gyr * 1e9 * YEAR,
         isotope_heat=tuple(scale * iso.element_ppm * 1e-6 * iso.isotope_fraction * iso.heat_w_per_kg
                            for iso in ISOTOPES),
@@ -216,14 +230,22 @@ def build_inputs(spec, interior=None):
 
 def initial_temperatures(spec, mantle, core=None):
     """(T_u, T_c) at the start: the configured values, or by default 50 K above the liquidus at every node
-    (T_u = max(T_liq / f) + 50 K) and the core the mantle adiabat at the CMB plus the initial CMB jump, but
-    at least 50 K above the iron curve at every core node (T_c >= max(T_m / f_core) + 50 K)."""
+    (T_u = max(T_liq / f) + 50 K) and the core the initial CMB jump above the mantle at the CMB: its adiabat
+    (initial.core_start = "adiabat"), or the colder of the adiabat and the temperature at which the CMB node holds
+    phi_c (the stiffened base of a magma ocean that crystallises from the bottom up; "rheological-transition");
+    in either case at least 50 K above the iron curve at every core node (T_c >= max(T_m / f_core) + 50 K)."""
     tu = spec.initial.upper_temperature_k
     if tu <= 0.0:
         tu = float(np.max(mantle.liquidus / mantle.adiabat)) + 50.0
     tc = spec.initial.core_temperature_k
     if tc <= 0.0:
-        tc = tu * mantle.adiabat[0] + spec.initial.initial_cmb_jump_k
+        t_base = tu * mantle.adiabat[0]
+        if spec.initial.core_start == "rheological-transition":
+            phi_c = spec.convection.critical_melt_fraction
+            t_phi_c = brentq(lambda t: float(melt_fraction(np.array([t]), mantle, slice(0, 1))[0]) - phi_c,
+                             mantle.solidus[0], mantle.liquidus[0], xtol=1e-9, rtol=1e-14)
+            t_base = min(t_base, t_phi_c)
+        tc = t_base + spec.initial.initial_cmb_jump_k
         if core is not None:
             tc = max(tc, float(np.max(core.melting / core.adiabat)) + 50.0)
     return tu, tc
@@ -327,8 +349,8 @@ def mantle_heat(tu, d, ph, mantle):
     t = tu * mantle.adiabat
     e = float(np.sum(mantle.mass * (ph.heat_capacity * t + ph.latent_heat * melt_fraction(t, mantle))))
     if ph.stagnant_lid and d > 0.0:
-        t_mean = 0.5 * (ph.equilibrium_temperature + lid_base_temperature(tu, ph))
-        e += lid_mass(d, ph) * ph.heat_capacity * (t_mean - tu)
+        t_lid = lid_heat_temperature(lid_base_temperature(tu, ph), ph)
+        e += lid_mass(d, ph) * ph.heat_capacity * (t_lid - tu)
     return e
 
 
@@ -465,6 +487,36 @@ class ReferenceModel:
         ec = core_heat(tc, self.ph, self.core) if self.core is not None else 0.0
         return np.array([mantle_heat(tu, d if self.ph.stagnant_lid else 0.0, self.ph, self.mantle), ec, d])
 
+    # ---- the solid branch
+    def solid_viscosity(self, tu, d, phi_surf):
+        """Viscosity of the solidified mantle's upper boundary layer, times (kappa / kappa0) / (alpha / alpha0) at the
+        same point (Ra ~ alpha / (kappa eta)), where convection.rayleigh_viscosity_depth puts it: the surface at T_u
+        with the surface melt fraction ("surface"); the base of the upper boundary layer below the top of the
+        convecting mantle (lid base or surface), on the adiabat, the layer's thickness by three fixed-point passes
+        of Nu = a (Ra / Ra_cr)^beta ("boundary-layer-base"); half way down the convecting mantle ("mid-mantle").
+        Melt weakening by the batch melt fraction there, at most phi_c."""
+        ph, m = self.ph, self.mantle
+        phi_c = ph.critical_melt_fraction
+        if ph.rayleigh_viscosity_depth == "surface":
+            return viscosity(tu, ph.pressure_top, min(phi_surf, phi_c), ph)
+        d_top = max(d, LID_MIN) if ph.stagnant_lid else 0.0
+        d_conv = max(self.depth - d_top, 0.05 * self.depth)
+        mid = ph.rayleigh_viscosity_depth == "mid-mantle"
+        z = d_top + 0.5 * d_conv if mid else d_top
+        d_temp = tu - lid_base_temperature(tu, ph) if ph.stagnant_lid else tu - ph.equilibrium_temperature
+        for _ in range(1 if mid else 3):
+            r = ph.radius - z
+            t = tu * float(np.interp(r, m.r, m.adiabat))
+            j = int(np.clip(np.searchsorted(m.r, r) - 1, 0, len(m.r) - 2))
+            w = (r - m.r[j]) / (m.r[j + 1] - m.r[j])
+            phi = float((1.0 - w) * melt_fraction(np.array([t]), m, slice(j, j + 1))[0]
+                        + w * melt_fraction(np.array([t]), m, slice(j + 1, j + 2))[0])
+            alpha, _, kappa = properties(float(np.interp(r, m.r, m.density)), ph)
+            eta = (viscosity(t, float(np.interp(r, m.r, m.pressure)), min(phi, phi_c), ph)
+                   * (kappa / ph.diffusivity) / (alpha / ph.expansivity))
+            z = d_top + boundary_layer(d_conv, d_temp, eta, ph.nusselt_prefactor, ph.beta, ph)
+        return eta
+
     # ---- fluxes
     def diagnostics(self, t, tu, tc, d):
         """Fluxes and regime at time t [s] and state (T_u, T_c, lid d)."""
@@ -474,7 +526,7 @@ class ReferenceModel:
         solid = t >= self.t_solid
         phi_top = isentropic_top_melt(tu * mantle.adiabat[-1], mantle, ph) if solid else phi_surf
         eta_mo = viscosity(tu, ph.pressure_top, phi_top, ph)
-        eta_s = viscosity(tu, ph.pressure_top, min(phi_surf, phi_c), ph) if solid else eta_mo
+        eta_s = self.solid_viscosity(tu, d, phi_surf) if solid else eta_mo
         # bottom boundary layer: delta_c = (kappa eta_c Ra_cr / (alpha rho g_c |dT_c|))^(1/3) <= D / 2,
         # eta_c at the mean of T_c and the adiabat's base (Stevenson et al. 1983)
         tb = tu * mantle.adiabat[0]
@@ -483,10 +535,11 @@ class ReferenceModel:
         phi_b = float(melt_fraction(np.array([t_mid]), mantle, slice(0, 1))[0])
         eta_c = viscosity(t_mid, ph.pressure_cmb, phi_b, ph)
         q_cmb = 0.0
+        alpha_c, k_c, kappa_c = properties(mantle.density[0], ph)
         if self.core is not None and abs(dtc) > 1e-9 and ph.gravity_cmb > 0.0:
-            delta_c = (ph.diffusivity * eta_c * ph.critical_rayleigh
-                       / (ph.expansivity * ph.density_mantle * ph.gravity_cmb * abs(dtc))) ** (1.0 / 3.0)
-            q_cmb = ph.conductivity * dtc / min(delta_c, 0.5 * self.depth)
+            delta_c = (kappa_c * eta_c * ph.critical_rayleigh
+                       / (alpha_c * ph.density_mantle * ph.gravity_cmb * abs(dtc))) ** (1.0 / 3.0)
+            q_cmb = k_c * dtc / min(delta_c, 0.5 * self.depth)
         eps, m_h2o, m_co2 = emissivity(tu, ph, mantle)
         # magma-ocean top (a = 1, beta = 1/3, whole depth) blended with the solid top across phi_c
         w = smoothstep((phi_top - phi_c) / ph.blend_width)
@@ -501,9 +554,9 @@ class ReferenceModel:
                 tl = lid_base_temperature(tu, ph)
                 d_eff = max(d, LID_MIN)
                 _, q_lid, q_u = lid_top(tu, tl, d_eff, dtc, eta_s, a, beta, eps, self.depth, ph)
-                t_lid_mean = 0.5 * (ph.equilibrium_temperature + tl)
-                d_rate += (1.0 - w) * (q_lid - q_u) / (ph.density_top * ph.heat_capacity
-                                                       * max(tu - t_lid_mean, 1.0))
+                rho_base = float(np.interp(ph.radius - d_eff, mantle.r, mantle.density))
+                q_u *= properties(rho_base, ph)[1] / ph.conductivity  # k at the lid's base
+                d_rate += (1.0 - w) * lid_growth(q_lid, q_u, tu, tl, ph)
             else:
                 q_lid = convecting_top(tu, dtc, eta_s, a, beta, eps, self.depth, ph)[1]
             qs += (1.0 - w) * q_lid

@@ -11,8 +11,9 @@ Tolerances (common practice for a reference of a different integrator and quadra
 * T_u, T_c and the lid thickness within 1e-3 relative over the whole run. Measured <= 2.2e-5; the residual is
   the node-mass quadrature (the reference integrates the density profile, the fast path the enclosed mass;
   with the fast path's masses the two agree to 4e-8).
-* The magma-ocean end (and its reformation) within 1e-3 relative. Measured <= 4.5e-4: the fast path's
-  default run.rtol = 1e-7 (at rtol 1e-10 the end agrees to 2e-5).
+* The magma-ocean end (and its reformation) within 1e-3 relative. The fast path runs at run.rtol = 1e-9
+  (FAST_RTOL): at the default 1e-7 its crossing time wanders by up to 3.7e-3 (measured, Earth with the
+  density-dependent properties; 4.5e-4 with constant ones), at 1e-9 it agrees to ~5e-5.
 * The surface heat flow within 1e-3 relative, away from the rheological transition: while the top's melt
   fraction lies within [phi_c - 0.01, phi_c + blend + 0.01] the heat flow blends between the magma-ocean and
   the solid laws, which differ by up to seven orders of magnitude, so d ln Q / d ln T_u reaches ~1500 there
@@ -41,6 +42,8 @@ REL_RIC_OF_CORE = 1e-3
 PHI_MARGIN = 0.01
 #: Comparison times per run.
 N_TIMES = 40
+#: run.rtol of the fast path in these comparisons (see the module docstring).
+FAST_RTOL = 1e-9
 #: A weak solid-state scaling (a calibration of this project for Earth's mobile lid, tests/test_evolution.py).
 WEAK = {"beta": 0.015, "nusselt_prefactor": 40.0}
 
@@ -53,7 +56,7 @@ def compare(spec):
     """(fast-path Result, its summary, reference solution, reference model, dict of largest differences). The
     reference has no basal magma ocean and no melt extraction (tests/reference_volcanism.py checks that law):
     both run with ``melting.basal_magma_ocean = "off"`` and ``volcanism.enabled = "off"``."""
-    spec = spec.replace(basal_magma_ocean="off", **{"volcanism.enabled": "off"})
+    spec = spec.replace(basal_magma_ocean="off", rtol=min(spec.run.rtol, FAST_RTOL), **{"volcanism.enabled": "off"})
     result = evolve(spec)
     h = result.history
     t = h["time"]
@@ -89,7 +92,7 @@ def assert_trajectory(diff):
 
 
 def assert_magma_ocean_end(summary, ref):
-    end = summary["magma_ocean_end_yr"]
+    end = summary["surface_magma_ocean_end_yr"]  # the reference knows the regime (surface criterion) only
     assert end is not None and ref.t_solid < np.inf
     assert end == pytest.approx(ref.t_solid / YEAR, rel=REL_TIME)
 
@@ -104,7 +107,7 @@ def test_earth_mobile_lid_bare_linear_law():
     assert_trajectory(diff)
     assert_magma_ocean_end(summary, ref)
     assert result.history["inner_core_radius"][-1] > 0.0
-    assert summary["magma_ocean_reformed_yr"] is None and not ref.reformed
+    assert summary["surface_magma_ocean_reformed_yr"] is None and not ref.reformed
 
 
 def test_super_earth_weak_scaling_magma_ocean_forms_again():
@@ -116,7 +119,7 @@ def test_super_earth_weak_scaling_magma_ocean_forms_again():
                                                   nusselt_prefactor=10.0))
     assert_trajectory(diff)
     assert_magma_ocean_end(summary, ref)
-    again = summary["magma_ocean_reformed_yr"]
+    again = summary["surface_magma_ocean_reformed_yr"]
     assert again is not None and ref.reformed
     assert again == pytest.approx(ref.reformed[0] / YEAR, rel=REL_TIME)
 
@@ -126,26 +129,31 @@ def test_solid_start_warms_past_the_batch_threshold():
     is more than phi_c molten at the surface (batch) but stays solid-state convection, because the regime follows
     the isentropic melt fraction (McKenzie & Bickle 1988; the reference solves it in closed form for the linear
     law, the fast path by bisection). No first magma ocean (null end, none at the start) in either; trajectory
-    tolerances as above."""
+    tolerances as above. On the chondritic curves (melting.model = "whole-mantle-sg"), for which the start was
+    chosen: 1788 K at the surface is above the peridotite curves' isentropic phi_c threshold (1876 K) by far less
+    than the warming, so the default curves would turn it into a magma ocean."""
     _, summary, ref, model, diff = compare(PlanetSpec(mass_earth=1.0, end_time_gyr=4.5, mantle_nodes=48,
+                                                      model="whole-mantle-sg",
                                                       upper_temperature_k=1788.0, core_temperature_k=4800.0,
                                                       **WEAK))
     assert_trajectory(diff)
-    assert summary["magma_ocean_end_yr"] is None and not summary["magma_ocean_at_start"] and ref.t_solid == 0.0
+    assert summary["surface_magma_ocean_end_yr"] is None and not summary["magma_ocean_at_start"]
+    assert ref.t_solid == 0.0
     peak = float(np.max(ref.history["upper_temperature"])) * model.mantle.adiabat[-1]
     phi_c = model.ph.critical_melt_fraction
     assert top_melt(peak, model.mantle) > phi_c >= isentropic_top_melt(peak, model.mantle, model.ph)
-    assert summary["magma_ocean_reformed_yr"] is None and not ref.reformed
+    assert summary["surface_magma_ocean_reformed_yr"] is None and not ref.reformed
     assert not summary["magma_ocean_at_end"]
 
 
 # ------------------------------------------------------------------ stagnant lid
 def test_stagnant_lid_grows_as_the_reference():
-    """1 M_E stagnant lid (rheological temperature scale, lid growth with the lid's mean temperature in the
-    budget), 1 Gyr: lid thickness within 1e-3 relative (measured 5e-6), trajectory tolerances and magma-ocean
-    end as above."""
+    """1 M_E stagnant lid (rheological temperature scale, base-flux lid growth), 1 Gyr: lid thickness within 1e-3
+    relative, trajectory tolerances and magma-ocean end as above. The top approaches phi_c slowly (the end falls
+    at ~5.9 Myr), so its crossing time is ill-conditioned: the fast path runs at rtol 1e-11 (measured 1.2e-2,
+    4.5e-3 and 5.4e-4 off the reference at 1e-9, 1e-10 and 1e-11, while the trajectories agree to 2e-5)."""
     _, summary, ref, _, diff = compare(PlanetSpec(mass_earth=1.0, end_time_gyr=1.0, mantle_nodes=48,
-                                                  regime="stagnant-lid"))
+                                                  regime="stagnant-lid", rtol=1e-11))
     assert_trajectory(diff)
     assert_magma_ocean_end(summary, ref)
     assert diff["lid_thickness"] < REL_T
@@ -156,7 +164,8 @@ def test_stagnant_lid_grows_as_the_reference():
 def test_grey_atmosphere_water_and_co2():
     """1 M_E under a grey H2O-CO2 atmosphere (1.4e21 kg H2O, 1e20 kg CO2 in solubility equilibrium with the
     melt), 50 Myr: trajectory tolerances and magma-ocean end as above; the blanket makes the magma ocean last
-    longer than on the bare planet (Lebrun et al. 2013, from memory), in both."""
+    longer than on the bare planet (Lebrun et al. 2013, from memory), in both. (At the default rtol 1e-7 the
+    blanketed top's slow approach to phi_c magnifies step-control noise in the crossing time: 1.6e-3, measured.)"""
     _, summary, ref, _, diff = compare(PlanetSpec(mass_earth=1.0, end_time_gyr=0.05, mantle_nodes=48,
                                                   atmosphere="grey", water_inventory_kg=1.4e21,
                                                   co2_inventory_kg=1.0e20))

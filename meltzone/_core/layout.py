@@ -38,6 +38,9 @@ Y_CRUST, Y_XH2O, Y_XCO2 = range(N_Y, N_Y := len(STATE_Y))
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 GRID_ROWS = ("radius", "pressure", "adiabat", "mass", "solidus", "liquidus", "aux1", "aux2")
 G_R, G_P, G_F, G_W, G_TSOL, G_TLIQ, G_AUX1, G_AUX2 = range(N_G := len(GRID_ROWS))
+# density of the mantle nodes [kg/m^3] (pressure-dependent properties, properties.py)
+GRID_ROWS += ("density",)
+G_RHO, = range(N_G, N_G := len(GRID_ROWS))
 
 # ------------------------------------------------------------ core grid rows (nodes centre -> CMB)
 CORE_ROWS = ("radius", "adiabat", "mass", "melting_temperature", "enclosed_mass")
@@ -90,6 +93,18 @@ PARAMETERS += ("volcanism", "erupted_fraction", "mantle_h2o", "mantle_co2", "h2o
                "max_extraction_pressure", "eclogite_pressure", "crust_density", "ridge_length_factor")
 (P_VOLC, P_ERUPT, P_X_H2O, P_X_CO2, P_D_H2O, P_D_CO2, P_P_EXTRACT, P_P_ECLOGITE, P_RHO_CRUST,
  P_RIDGE) = range(N_PAR, N_PAR := len(PARAMETERS))
+# stagnant-lid growth law (boundary-layer scheme): 0 heat-balance integral (lid's mean temperature), 1 base flux
+# (T_u - T_l); 0 is the law of files written before the switch existed
+PARAMETERS += ("lid_growth_law",)
+P_LID_LAW, = range(N_PAR, N_PAR := len(PARAMETERS))
+# pressure-dependent properties (properties.py): switch (1 density-dependent alpha, k, kappa), exponents delta_T and
+# g, reference density [kg/m^3], where the solid mantle's Rayleigh number takes its viscosity (0 surface, 1 base of
+# the upper boundary layer, 2 mid-mantle); zeros are the constant properties and surface viscosity of older files
+PARAMETERS += ("density_dependent_properties", "expansivity_exponent", "conductivity_exponent",
+               "property_reference_density", "rayleigh_viscosity_depth")
+P_PROPS, P_ALPHA_EXP, P_K_EXP, P_RHO_REF, P_RA_VISC = range(N_PAR, N_PAR := len(PARAMETERS))
+#: values of P_RA_VISC
+RA_VISC_SURFACE, RA_VISC_TOP, RA_VISC_MID = range(3)
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",

@@ -26,8 +26,10 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
                      REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
 from .basal import basal_ocean, basal_top_energy
 from .inner_core import inner_core_heat
-from .layout import D_MB, D_RB, G_P, P_BMO, P_BMO_MREF
 from .layout import P_ERUPT, Y_XCO2, Y_XH2O
+from .lid import lid_growth, lid_heat_temperature
+from .properties import at_depth, depth_index, property_factors
+from .layout import D_MB, D_RB, G_P, G_RHO, P_BMO, P_BMO_MREF, P_RA_VISC, RA_VISC_MID, RA_VISC_SURFACE
 from .melt import melt_fraction
 from .roots import bisect, illinois
 from .layout import (D_ABS, D_DISSOLVED, D_ESCAPE, D_LOST, D_OCEAN, D_OLR, D_P_CO2, D_P_H2O, P_H2O_SOL_C,
@@ -149,7 +151,7 @@ def mantle_energy(tu, d, mb, grid, par, law):
         e += grid[G_W, i] * (cm * ti + par[P_LATENT] * node_melt(ti, grid, i, law))
     if par[P_STAGNANT] > 0.5 and d > 0.0:
         ml = lid_mass(d, par)
-        e += ml * cm * (0.5 * (par[P_T_EQ] + lid_base_temperature(tu, par)) - tu)
+        e += ml * cm * (lid_heat_temperature(lid_base_temperature(tu, par), par) - tu)
     return e
 
 
@@ -307,7 +309,7 @@ def temperature_rates(tu, tc, d_lid, dy, grid, core, par, law):
     dem_dd = 0.0
     if par[P_STAGNANT] > 0.5 and d_lid > 0.0:
         dml = par[P_RHO_TOP] * 4.0 * math.pi * (par[P_RADIUS] - d_lid) ** 2
-        dem_dd = dml * par[P_CM] * (0.5 * (par[P_T_EQ] + lid_base_temperature(tu, par)) - tu)
+        dem_dd = dml * par[P_CM] * (lid_heat_temperature(lid_base_temperature(tu, par), par) - tu)
     h_c = 1e-3 * max(1.0, 1e-4 * tc)
     dec = (core_energy(tc + h_c, grid, core, par) - core_energy(tc - h_c, grid, core, par)) / (2 * h_c)
     dtc = dy[Y_EC] / dec if dec > 0.0 else 0.0
@@ -329,6 +331,39 @@ def top_layer_thickness(d_conv, ra, solid, par):
     if solid:
         return min(d_conv * (par[P_RA_CR] / ra) ** par[P_BETA] / par[P_NU_A], d_conv)
     return min(d_conv * (par[P_RA_CR] / ra) ** (1.0 / 3.0), d_conv)
+
+
+#: Fixed-point passes locating the base of the upper boundary layer (solid_viscosity)
+RA_POINT_PASSES = 3
+
+
+@njit
+def solid_viscosity(tu, d_lid, phi_surf, grid, par, law):
+    """Viscosity [Pa s] of the solidified mantle's upper boundary layer, with alpha / kappa at the same point folded
+    in (Ra ~ alpha / (kappa eta)); where, by P_RA_VISC (properties.py): the surface at T_u with the surface melt
+    fraction (the rule before the switch existed); the base of the upper boundary layer below the top of the
+    convecting mantle (the lid's base, or the surface), at the adiabat's temperature, pressure and batch melt
+    fraction there, the layer's thickness by RA_POINT_PASSES fixed-point passes (this model's choice); or half
+    way down the convecting mantle. Melt weakening at most up to phi_c."""
+    mode = par[P_RA_VISC]
+    if mode < 0.5 + RA_VISC_SURFACE:
+        return viscosity(tu, par[P_P_TOP], min(phi_surf, par[P_PHI_C]), par)
+    d_top = max(d_lid, par[P_LID_MIN]) if par[P_STAGNANT] > 0.5 else 0.0
+    d_conv = max(par[P_RADIUS] - par[P_CORE_RADIUS] - d_top, 0.05 * (par[P_RADIUS] - par[P_CORE_RADIUS]))
+    mid = mode > RA_VISC_MID - 0.5
+    z = d_top + 0.5 * d_conv if mid else d_top
+    d_t = tu - lid_base_temperature(tu, par) if par[P_STAGNANT] > 0.5 else tu - par[P_T_EQ]
+    eta = 0.0
+    for _ in range(1 if mid else RA_POINT_PASSES):
+        j, s = depth_index(z, grid)
+        t = tu * (grid[G_F, j] + s * (grid[G_F, j + 1] - grid[G_F, j]))
+        phi = (1.0 - s) * node_melt(t, grid, j, law) + s * node_melt(t, grid, j + 1, law)
+        fa, fk, fkap = property_factors(grid[G_RHO, j] + s * (grid[G_RHO, j + 1] - grid[G_RHO, j]), par)
+        eta = viscosity(t, grid[G_P, j] + s * (grid[G_P, j + 1] - grid[G_P, j]), min(phi, par[P_PHI_C]),
+                        par) * fkap / fa
+        ra = par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_SURF] * d_conv ** 3 * max(d_t, 1e-6) / (par[P_KAPPA] * eta)
+        z = d_top + top_layer_thickness(d_conv, ra, YES, par)
+    return eta
 
 
 @njit
@@ -404,8 +439,9 @@ def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag, 
     # magma-ocean branch: the suspension viscosity of the same melt fraction that sets the regime, so that
     # both branches meet at phi_c
     eta_u = viscosity(tu, par[P_P_TOP], phi_top, par)
-    # the solid-mantle branch of a solidified mantle: melt weakening, but no suspension, up to phi_c
-    eta_s = viscosity(tu, par[P_P_TOP], min(phi_surf, par[P_PHI_C]), par) if solidified else eta_u
+    # the solid-mantle branch of a solidified mantle: melt weakening, but no suspension, up to phi_c; viscosity
+    # (and alpha / kappa, folded into it) where the Rayleigh number takes them (properties.py)
+    eta_s = solid_viscosity(tu, d_lid, phi_surf, grid, par, law_i) if solidified else eta_u
     r_b, m_b, x_b = basal_ocean(tc, grid, par)
     if m_b > 0.0:  # the lower boundary layer sits on the basal ocean: adiabat and pressure at its top
         j = min(int(x_b), n - 2)
@@ -422,11 +458,12 @@ def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag, 
     t_mean_c = 0.5 * (tc + tb)
     phi_c = node_melt(t_mean_c, grid, j_b, law_i)
     eta_c = viscosity(t_mean_c, p_b, phi_c, par)
+    fa_c, fk_c, fkap_c = property_factors(grid[G_RHO, j_b], par)  # at the bottom layer (properties.py)
     if abs(dtc) > 1e-9 and par[P_G_CMB] > 0.0:
-        delta_c = (par[P_KAPPA] * eta_c * par[P_RA_CR] / (par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_CMB]
-                                                            * abs(dtc))) ** (1.0 / 3.0)
+        delta_c = (par[P_KAPPA] * fkap_c * eta_c * par[P_RA_CR] / (par[P_ALPHA] * fa_c * par[P_RHO_MANTLE]
+                                                                     * par[P_G_CMB] * abs(dtc))) ** (1.0 / 3.0)
         delta_c = min(delta_c, 0.5 * depth)
-        qc = par[P_K] * dtc / delta_c
+        qc = par[P_K] * fk_c * dtc / delta_c
     else:
         delta_c = 0.5 * depth
         qc = 0.0
@@ -460,11 +497,8 @@ def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag, 
             d_conv = max(depth - d_eff, 0.05 * depth)
             ts_s, qs_s, qu_s, du_s = _top_boundary(YES, solidified, tu, tl, d_eff, d_conv, dtc, eta_s,
                                                     rad, par)
-            # rho c (T_u - T_lid,mean) dD/dt = q_lid - q_u: new lid material is cooled from T_u to the mean of
-            # the linear lid profile, the same bookkeeping as mantle_energy (with it, the convecting mantle
-            # loses exactly q_u at the lid base)
-            t_lid_mean = 0.5 * (par[P_T_EQ] + tl)
-            ddl_sl = (qs_s - qu_s) / (par[P_RHO_TOP] * par[P_CM] * max(tu - t_lid_mean, 1.0))
+            qu_s *= property_factors(at_depth(d_eff, grid, G_RHO), par)[1]  # k at the lid's base
+            ddl_sl = lid_growth(qs_s, qu_s, tu, tl, par)  # the lid's growth law (lid.py)
         else:
             ts_s, qs_s, qu_s, du_s = _top_boundary(NO, solidified, tu, tu, 0.0, depth, dtc, eta_s, rad, par)
     if w_mo <= 0.0:

@@ -52,9 +52,11 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
 * stagnant lid: rheological temperature scale dT_rh = a_rh R T_u^2 / E
   (Solomatov & Moresi 2000, JGR 105:21795; a_rh ~ 2.2-2.5, Grasset & Parmentier
   1998, JGR 103:18171; Thiriet et al. 2019, PEPI 286:138 show several (a_rh, beta)
-  pairs fit equally), lid growth rho c (T_u - T_lm) dD/dt = -q_u + k (T_l - T_s) / D
-  with T_lm the lid's mean temperature (the usual form, e.g. Schubert & Spohn 1990,
-  has T_l; T_lm keeps the lid's heat content in the budget); blended with the
+  pairs fit equally), lid growth rho c (T_u - T_l) dD/dt = -q_u + k (T_l - T_s) / D
+  (Schubert & Spohn 1990; Morschhauser et al. 2011, Icarus 212:541; from memory), the lid's
+  rock counted at T_l in the stored heat; or, with
+  ``convection.lid_growth_law = "heat-balance-integral"``, rho c (T_u - T_lm) dD/dt =
+  -q_u + k (T_l - T_s) / D with T_lm the lid's mean temperature (:mod:`meltzone._core.lid`); blended with the
   magma-ocean top over the same melt-fraction width;
 * surface: the surface temperature balances the flux through the top layer
   with eps sigma (T_s^4 - T_eq^4), eps = 2 / (tau + 2) (Abe & Matsui 1985;
@@ -111,9 +113,16 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   calibration) lets the mantle warm to that threshold, where the magma-ocean branch then
   holds it.
 
+* pressure-dependent properties (:mod:`meltzone._core.properties`): alpha, k and kappa of each boundary layer
+  from the density there; the solid upper boundary layer's viscosity (and melt weakening) at the layer's base
+  below the lid (``convection.rayleigh_viscosity_depth``);
+* starting core temperature by ``initial.core_start`` (:mod:`meltzone.evolution.core_start`).
+
 Known limitations: with beta = 1/3 the mantle equilibrates with its heating within
-~1 Gyr, so an Earth hindcast gives a present heat flow of ~31 TW (46 TW observed)
-and a Urey ratio ~0.6 (Korenaga 2008, Rev. Geophys. 46:RG2007 discuss this paradox).
+~1 Gyr, so an Earth hindcast gives a present heat flow of ~28 TW (46 TW observed)
+and a Urey ratio ~0.7 (Korenaga 2008, Rev. Geophys. 46:RG2007 discuss this paradox).
+Without melt extraction, a stagnant-lid mantle warms until the isentropic melt fraction at the surface reaches
+phi_c (1876 K on the default peridotite curves) and stays there for Gyr, with partial melt under the lid.
 A weak scaling (beta = 0.015, a = 40, a calibration of this project for Earth's mobile
 lid) lands the present Earth inside the published ranges (tests/test_evolution.py). The
 configured (a, beta) apply once the top first reaches phi_c (the heat flow jumps there
@@ -143,6 +152,8 @@ LID_MIN = 1.0e3
 PROGRESS_STEPS = 100
 #: The History's switch-time key of the first time the top reached the rheological transition.
 SWITCH = "rheological_switch"
+#: convection.rayleigh_viscosity_depth choices, in the order of the core's RA_VISC_* codes.
+RAYLEIGH_VISCOSITY_DEPTHS = ("surface", "boundary-layer-base", "mid-mantle")
 
 
 def _node_weights(r: np.ndarray, m: np.ndarray, m_bottom: float, m_top: float) -> np.ndarray:
@@ -264,6 +275,13 @@ def build_inputs(spec, interior, curves):
     par[k.P_P_ECLOGITE] = vc.eclogite_pressure_gpa * 1e9
     par[k.P_RHO_CRUST] = vc.crust_density_kg_m3
     par[k.P_RIDGE] = vc.ridge_length_factor
+    par[k.P_LID_LAW] = 1.0 if cv.lid_growth_law == "base-flux" else 0.0
+    grid[k.G_RHO] = it.rho[ms]
+    par[k.P_PROPS] = 1.0 if cv.mantle_properties == "density" else 0.0
+    par[k.P_ALPHA_EXP] = cv.expansivity_density_exponent
+    par[k.P_K_EXP] = cv.conductivity_density_exponent
+    par[k.P_RHO_REF] = it.rho[-1]
+    par[k.P_RA_VISC] = RAYLEIGH_VISCOSITY_DEPTHS.index(cv.rayleigh_viscosity_depth)
     iso = isotope_table(spec.heating.radiogenic_scale)
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
@@ -274,17 +292,22 @@ MOLTEN_MARGIN_K = 50.0
 
 def initial_temperatures(spec, inputs) -> tuple[float, float]:
     """(T_u, T_c) at the start: by default 50 K above the liquidus at every mantle node (fully molten),
-    and the core the mantle adiabat at the CMB plus ``initial.initial_cmb_jump_k``, but at least 50 K above
-    the core alloy's melting curve at every core node, so that the default start is molten in the core too
-    (no inner core at t = 0). The floor matters only where the core adiabat meets a steeper iron curve
-    above the mantle's liquidus at the CMB (measured: from ~13 M_E at core fraction 0.325)."""
+    and the core by the rule of ``initial.core_start`` (:mod:`meltzone.evolution.core_start`), but at least
+    50 K above the core alloy's melting curve at every core node, so that the default start is molten in the core
+    too (no inner core at t = 0). The floor matters only where the core start meets a steeper iron curve (measured
+    with the former rule: from ~13 M_E at core fraction 0.325)."""
+    from .core_start import core_start_temperature, phi_c_temperature
+
     grid, core = inputs.grid, inputs.core
     tu = spec.initial.upper_temperature_k
     if tu <= 0.0:
         tu = float(np.max(grid[k.G_TLIQ] / grid[k.G_F])) + MOLTEN_MARGIN_K
     tc = spec.initial.core_temperature_k
     if tc <= 0.0:
-        tc = tu * grid[k.G_F, 0] + spec.initial.initial_cmb_jump_k
+        t_phi_c = phi_c_temperature(spec.convection.critical_melt_fraction, *(grid[row, 0] for row in (
+            k.G_TSOL, k.G_TLIQ, k.G_AUX1, k.G_AUX2)), inputs.law)
+        tc = core_start_temperature(spec.initial.core_start, tu * grid[k.G_F, 0], spec.initial.initial_cmb_jump_k,
+                                    t_phi_c)
         if core[k.C_W].sum() > 0.0:
             tc = max(tc, float(np.max(core[k.C_TMELT] / core[k.C_F])) + MOLTEN_MARGIN_K)
     return float(tu), float(tc)
@@ -417,6 +440,8 @@ class Evaluator:
         if len(par) < k.N_PAR:  # a file written before the basal-ocean parameters: zeros, i.e. no basal ocean
             par = np.concatenate([par, np.zeros(k.N_PAR - len(par))])
         core = complete_core(core, par)
+        if grid.shape[0] < k.N_G:  # a file written before the density row (read only with P_PROPS on)
+            grid = np.concatenate([grid, np.zeros((k.N_G - grid.shape[0], grid.shape[1]))])
         self.inputs = k.KernelInputs(grid, core, iso, par, int(d["law"]))
         h = history
         self.t = h.time

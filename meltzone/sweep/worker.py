@@ -34,7 +34,8 @@ STATUS_MEANINGS = "ok failed rejected"
 #: (failed case, or a time that did not happen within the run; see the flags).
 METRICS = {
     "magma_ocean_end_yr": ("yr", "time at which the surface magma ocean ended (melt fraction at the top of the "
-                                 "mantle fell below the rheological transition); NaN: not within the run"),
+                                 "mantle fell below the rheological transition, or less than 1% of the mantle's "
+                                 "mass above it, whichever came first); NaN: not within the run"),
     "magma_ocean_reformed_yr": ("yr", "time at which a solidified mantle first warmed back into a surface magma "
                                       "ocean (isentropic melt at the top above the rheological transition); NaN: "
                                       "never"),
@@ -131,9 +132,13 @@ def _flag(v: bool) -> int:
 
 
 def _magma_ocean_at(summary: dict, result, age_yr: float) -> bool:
-    """Whether the surface is a magma ocean at ``age_yr``: the starting regime, toggled by every
+    """Whether the surface is a magma ocean at ``age_yr``: the state at the start (summary's
+    ``magma_ocean_at_start``, surface and mass criteria, meltzone.magma_ocean), toggled by every
     magma-ocean-ended / magma-ocean-reformed event at or before that time."""
-    state = bool(result.history["regime"][0] == 0) if result is not None else summary["magma_ocean_end_yr"] != 0.0
+    if "magma_ocean_at_start" in summary:
+        state = bool(summary["magma_ocean_at_start"])
+    else:
+        state = bool(result.history["regime"][0] == 0) if result is not None else summary["magma_ocean_end_yr"] != 0.0
     for e in sorted(summary.get("events", ()), key=lambda e: e["time_yr"]):
         if e["time_yr"] > age_yr:
             break

@@ -1,0 +1,44 @@
+"""Growth of the stagnant lid of the boundary-layer scheme: the law, and the temperature at which the mantle's
+stored heat counts the lid's rock (:func:`meltzone._core.physics.mantle_energy`).
+
+The lid is a conductive layer with a linear profile from the surface temperature T_s to T_l at its base; its
+conductive flux is q_lid = k (T_l - T_s) / D. Two growth laws (``convection.lid_growth_law``), each with the
+bookkeeping that makes the convecting mantle lose exactly q_u at the lid's base (so the budget closes):
+
+* base flux (the default, ``P_LID_LAW`` = 1): rho c (T_u - T_l) dD/dt = q_lid - q_u, the usual form of
+  parameterised stagnant-lid models (Schubert & Spohn 1990, JGR 95:14095; Morschhauser, Grott & Breuer 2011,
+  Icarus 212:541; the form from memory: the searched public text did not show the equation): rock added at the
+  base cools from T_u to T_l. The stored heat counts the lid's rock at T_l, as these models leave the lid's
+  internal cooling out of the mantle's budget; the surface heat flow is q_lid. (Counting it at its mean
+  T_lm = (T_eq + T_l) / 2 instead, with that cooling released at the surface, made the lid's flux ~5x larger in
+  the blend with the magma-ocean law and the integration stiff under a grey atmosphere: measured, a 3 M_E planet
+  took 20,000 steps for its first 54 Myr.)
+* heat-balance integral (``P_LID_LAW`` = 0): rho c (T_u - T_lm) dD/dt = q_lid - q_u (Goodman 1958, Trans. ASME
+  80:335, integral method with a linear profile; from memory), the lid's rock counted at T_lm: its whole heat
+  change is paid at its base.
+
+For a lid on a non-convecting mantle (q_u = 0) they give D^2 = 2 kappa t St_eff with St_eff =
+(T_l - T_s) / (T_u - T_l) (base flux) or (T_l - T_s) / (T_u - T_lm) (integral); the exact conduction solution
+(a Stefan problem with the jump T_u - T_l in place of latent heat, Carslaw & Jaeger 1959) lies between the two
+(see tests/test_lid_growth.py).
+"""
+
+from __future__ import annotations
+
+from ._jit import njit
+from .layout import P_CM, P_LID_LAW, P_RHO_TOP, P_T_EQ
+
+
+@njit
+def lid_heat_temperature(tl, par):
+    """Temperature [K] at which the stored heat counts the lid's rock: T_l (base flux) or the mean of the linear
+    profile, (T_eq + T_l) / 2 (heat-balance integral)."""
+    return tl if par[P_LID_LAW] > 0.5 else 0.5 * (par[P_T_EQ] + tl)
+
+
+@njit
+def lid_growth(q_lid, q_u, tu, tl, par):
+    """dD/dt [m/s] of a stagnant lid with conductive flux q_lid at its base, q_u from the convecting mantle below,
+    mantle temperature tu and lid-base temperature tl [K]: q_lid - q_u over rho c (tu - the temperature of
+    :func:`lid_heat_temperature`)."""
+    return (q_lid - q_u) / (par[P_RHO_TOP] * par[P_CM] * max(tu - lid_heat_temperature(tl, par), 1.0))
