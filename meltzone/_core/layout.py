@@ -34,6 +34,10 @@ Y_WATER, = range(N_Y, N_Y := len(STATE_Y))
 # volcanism (boundary-layer scheme): crust thickness [m], H2O and CO2 extracted from the mantle by melt [kg]
 STATE_Y += ("crust_thickness", "extracted_h2o", "extracted_co2")
 Y_CRUST, Y_XH2O, Y_XCO2 = range(N_Y, N_Y := len(STATE_Y))
+# volcanism, continued: H2O and CO2 outgassed [kg] (the erupted melt's volatiles above their solubility at the
+# vent), share of the planet's heat-producing elements held in the crust [1]
+STATE_Y += ("outgassed_h2o", "outgassed_co2", "crust_heat_share")
+Y_OG_H2O, Y_OG_CO2, Y_HPE = range(N_Y, N_Y := len(STATE_Y))
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 GRID_ROWS = ("radius", "pressure", "adiabat", "mass", "solidus", "liquidus", "aux1", "aux2")
@@ -90,6 +94,10 @@ PARAMETERS += ("volcanism", "erupted_fraction", "mantle_h2o", "mantle_co2", "h2o
                "max_extraction_pressure", "eclogite_pressure", "crust_density", "ridge_length_factor")
 (P_VOLC, P_ERUPT, P_X_H2O, P_X_CO2, P_D_H2O, P_D_CO2, P_P_EXTRACT, P_P_ECLOGITE, P_RHO_CRUST,
  P_RIDGE) = range(N_PAR, N_PAR := len(PARAMETERS))
+# volcanism, continued: switches (1 on) of the vent solubility limit, of the depleted mantle's melting and of the
+# crust's heat sources; bulk solid/melt partition coefficient of the heat-producing elements
+PARAMETERS += ("vent_solubility", "melt_depletion", "crust_heat_sources", "heat_source_partition")
+P_VENT, P_DEPLETE, P_CRUST_HEAT, P_D_HPE = range(N_PAR, N_PAR := len(PARAMETERS))
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",
@@ -112,6 +120,11 @@ DIAGNOSTICS += ("absorbed_flux", "outgoing_radiation", "water_ocean", "water_dis
 DIAGNOSTICS += ("melt_production", "volcanic_heat_flow", "crust_rate", "h2o_extraction", "co2_extraction",
                 "convective_velocity")
 D_MPROD, D_QVOLC, D_DCRUST, D_XH2O, D_XCO2, D_UCONV = range(N_D, N_D := len(DIAGNOSTICS))
+# volcanism, continued: H2O and CO2 outgassed [kg/s], rate of the crust's share of the heat-producing elements
+# [1/s], heat produced in the crust [W], surface flux it adds [W/m^2] and the lid rate it adds [m/s]
+DIAGNOSTICS += ("h2o_outgassing", "co2_outgassing", "crust_heat_share_rate", "crust_heat", "crust_heat_flux",
+                "crust_heat_lid_rate")
+D_OG_H2O, D_OG_CO2, D_DHPE, D_QCRUST, D_QS_CRUST, D_DLID_CRUST = range(N_D, N_D := len(DIAGNOSTICS))
 
 # ------------------------------------------------------------ history columns (one row per accepted step)
 HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "lid_thickness", "heat_out_minus_radiogenic",
@@ -130,6 +143,8 @@ HISTORY_COLUMNS += ("melt_production", "volcanic_heat_flow", "crust_thickness", 
                     "outgassing_co2_rate", "outgassed_h2o", "outgassed_co2")
 (H_MPROD, H_QVOLC, H_CRUST, H_OG_H2O_RATE, H_OG_CO2_RATE, H_OG_H2O,
  H_OG_CO2) = range(N_H, N_H := len(HISTORY_COLUMNS))
+HISTORY_COLUMNS += ("crust_heat_share", "crust_heat_production")
+H_HPE, H_QCRUST = range(N_H, N_H := len(HISTORY_COLUMNS))
 
 # ------------------------------------------------------------ melt-interval columns
 INTERVAL_COLUMNS = ("step", "top_node", "bottom_node", "max_melt_fraction", "melt_mass", "full_top_node",

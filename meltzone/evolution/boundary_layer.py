@@ -264,6 +264,10 @@ def build_inputs(spec, interior, curves):
     par[k.P_P_ECLOGITE] = vc.eclogite_pressure_gpa * 1e9
     par[k.P_RHO_CRUST] = vc.crust_density_kg_m3
     par[k.P_RIDGE] = vc.ridge_length_factor
+    par[k.P_VENT] = 1.0 if vc.vent_solubility == "on" else 0.0
+    par[k.P_DEPLETE] = 1.0 if vc.melt_depletion == "on" else 0.0
+    par[k.P_CRUST_HEAT] = 1.0 if vc.crust_heat_sources == "on" else 0.0
+    par[k.P_D_HPE] = vc.heat_source_partition_coefficient
     iso = isotope_table(spec.heating.radiogenic_scale)
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
