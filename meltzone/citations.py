@@ -200,6 +200,21 @@ REGISTRY.update({
     "volcanism_choices": Citation("plate length = mantle depth in the convective velocity; intruded melt's heat "
                                   "leaves through the lid; mobile-lid crust subducted at u / d; smooth cut-off of "
                                   "crust growth over 5% of its cap", "meltzone", CHOICE),
+    "vent_solubility": Citation("erupted melt keeps the H2O (6.8e-8 P^0.7) and CO2 (4.4e-12 P) its solubility "
+                                "allows at each gas's partial pressure at the surface", "laws of Lebrun et al. "
+                                "2013, JGR Planets 118:1155", MEMORY),
+    "tosi2017_outgassing": Citation("solubility in basaltic melt caps a stagnant-lid planet's outgassed H2O at a few "
+                                    "tens of bar while most CO2 is outgassed (abstract)", "Tosi et al. 2017, A&A "
+                                    "605:A71", CHECKED),
+    "melt_depletion": Citation("the mantle, depleted by the crust's mass F, melts only beyond it: (phi - F) / "
+                               "(1 - F); after the depletion-dependent solidus of Morschhauser et al. 2011",
+                               "meltzone; Morschhauser, Grott & Breuer 2011, Icarus 212:541", CHOICE),
+    "crust_heat_sources": Citation("heat-producing elements enter the melt by batch melting (bulk D = 0.002) and "
+                                   "heat the crust; a Mars crust >= 30 km holds >= 50% of them (abstract)",
+                                   "McLennan 2001, GRL 28:4019", CHECKED),
+    "conductive_crust": Citation("steady conductive lid with the crust's heat sources at its top: the surface flux "
+                                 "gains sH/A (1 - D_cr/(2 D_l)), the lid base loses sH/A D_cr/(2 D_l)",
+                                 "Turcotte & Schubert, Geodynamics (common practice)", MEMORY),
 })
 
 #: Melting models whose fits were read in their sources (the tests reproduce the published values); the
@@ -227,8 +242,12 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     if spec.melting.basal_magma_ocean == "reservoir":
         keys += ["labrosse2007", "blanc2020", "orourke2020", "basal_ocean_melting"]
     if spec.volcanism.enabled == "on":
+        vc = spec.volcanism
         keys += ["morschhauser2011", "kite2009", "moore2013", "crisp1984", "volatile_partition", "stixrude2009",
                  "volcanism_choices"] + (["orourke2012"] if cv.regime == "stagnant-lid" else [])
+        keys += (["vent_solubility", "tosi2017_outgassing"] if vc.vent_solubility == "on" else []) + (
+            ["melt_depletion"] if vc.melt_depletion == "on" else []) + (
+            ["crust_heat_sources", "conductive_crust"] if vc.crust_heat_sources == "on" else [])
     if cv.mantle_properties == "density":
         keys += ["reynard1990", "manga1997", "haigis2012", "property_exponents"]
     if cv.rayleigh_viscosity_depth != "surface":

@@ -61,4 +61,27 @@ VOLCANISM_KEYS = {
         doc="length of spreading ridges over the planet's circumference (mobile lid)",
         source="Earth: ~60000 km of ridges over a 40000 km circumference (common practice); Kite et al. 2009 "
                "scale ridge length with planet size (from memory)"),
+    "vent_solubility": dict(
+        default="on", unit="", choices=("on", "off"),
+        doc="erupted melt keeps the H2O and CO2 its solubility allows at the partial pressure of each gas at the "
+            "surface (X_H2O = 6.8e-8 P^0.7, X_CO2 = 4.4e-12 P, P in Pa); 'off' outgasses all of it",
+        source="laws of Lebrun et al. 2013, JGR Planets 118:1155 (from memory); Tosi et al. 2017, A&A 605:A71 "
+               "(abstract checked): solubility caps a stagnant-lid planet's H2O at a few tens of bar"),
+    "melt_depletion": dict(
+        default="on", unit="", choices=("on", "off"),
+        doc="the mantle is depleted by the crust's mass (F = M_crust / M_mantle, well mixed) and melts only "
+            "beyond it: melt fraction (phi - F) / (1 - F) of the fertile law's phi",
+        source="this model's choice after the depletion-dependent solidus of Morschhauser, Grott & Breuer 2011, "
+               "Icarus 212:541 (from memory)"),
+    "crust_heat_sources": dict(
+        default="on", unit="", choices=("on", "off"),
+        doc="heat-producing elements enter the melt by batch melting and heat the crust (warms and thins a "
+            "stagnant lid); 'off' keeps them all in the mantle",
+        source="McLennan 2001, GRL 28:4019 (abstract checked: a Mars crust >= 30 km holds >= 50% of the heat "
+               "sources); Morschhauser et al. 2011 (crustal heat sources thin the lid; from memory)"),
+    "heat_source_partition_coefficient": dict(
+        default=0.002, unit="1", lo=1.0e-5, hi=1.0,
+        doc="bulk solid/melt partition coefficient of U, Th and K (one value for all) in batch melting",
+        source="U, Th and K are highly incompatible in peridotite, bulk D ~ 0.001-0.01 (common practice; e.g. "
+               "Workman & Hart 2005, EPSL 231:53, from memory); limits: perfectly incompatible to no enrichment"),
 }

@@ -27,9 +27,10 @@ EARTH_TP_K = 1623.15
 MARS = {"mass_earth": 0.107, "core_mass_fraction": 0.24, "regime": "stagnant-lid", "end_time_gyr": 4.5}
 
 
-def kernel_state(spec, tu, lid=0.0, crust=0.0, extracted=(0.0, 0.0)):
+def kernel_state(spec, tu, lid=0.0, crust=0.0, extracted=(0.0, 0.0), outgassed=(0.0, 0.0), share=0.0):
     """(diag, interior) of the kernel at T_u (solid mantle after the rheological switch, T_c 500 K above the
-    adiabat at the CMB), lid, crust and extracted H2O and CO2 [kg]."""
+    adiabat at the CMB), lid, crust, extracted and outgassed H2O and CO2 [kg] and the crust's share of the heat
+    sources (bare surface: the outgassed gases are the surface's)."""
     from meltzone._core import layout as k
     from meltzone._core.physics import diagnose
     from meltzone._core.volcanism import volcanism
@@ -41,6 +42,7 @@ def kernel_state(spec, tu, lid=0.0, crust=0.0, extracted=(0.0, 0.0)):
     diag = np.zeros(k.N_D)
     y = np.zeros(k.N_Y)
     y[k.Y_LID], y[k.Y_CRUST], y[k.Y_XH2O], y[k.Y_XCO2] = lid, crust, *extracted
+    y[k.Y_OG_H2O], y[k.Y_OG_CO2], y[k.Y_HPE] = *outgassed, share
     tc = tu * inp.grid[k.G_F, 0] + 500.0
     diagnose(4.5e9 * YEAR, tu, tc, lid, 0.0, 0.0, inp.grid, inp.core, inp.iso, inp.par, inp.law, diag, 0.0, 0.0)
     volcanism(tu, y, diag, inp.grid, inp.par, inp.law)
@@ -48,31 +50,57 @@ def kernel_state(spec, tu, lid=0.0, crust=0.0, extracted=(0.0, 0.0)):
 
 
 @pytest.mark.parametrize("case", [
-    dict(planet=MARS, model="peridotite-mantle", tu=1600.0, lid=80e3, crust=30e3, extracted=(1e18, 5e17)),
-    dict(planet=MARS, model="peridotite-mantle", tu=1700.0, lid=50e3, crust=60e3, extracted=(0.0, 0.0)),
+    dict(planet=MARS, model="peridotite-mantle", tu=1600.0, lid=80e3, crust=30e3, extracted=(1e18, 5e17),
+         outgassed=(1.5e17, 8e16), share=0.3),
+    dict(planet=MARS, model="peridotite-mantle", tu=1700.0, lid=50e3, crust=60e3, extracted=(0.0, 0.0),
+         outgassed=(0.0, 0.0), share=0.5),
+    dict(planet={**MARS, "vent_solubility": "off", "melt_depletion": "off", "crust_heat_sources": "off"},
+         model="peridotite-mantle", tu=1650.0, lid=60e3, crust=20e3, extracted=(1e18, 5e17),
+         outgassed=(1.5e17, 8e16), share=0.2),
     dict(planet={"mass_earth": 3.0, "regime": "stagnant-lid"}, model="peridotite-mantle", tu=1750.0, lid=60e3,
-         crust=10e3, extracted=(3e19, 1e19)),
+         crust=10e3, extracted=(3e19, 1e19), outgassed=(4e20, 1e19), share=0.1),
+    dict(planet={"mass_earth": 3.0, "regime": "stagnant-lid", "max_extraction_pressure_gpa": 3.0},
+         model="peridotite-mantle", tu=1750.0, lid=40e3, crust=5e3, extracted=(0.0, 0.0),
+         outgassed=(0.0, 0.0), share=0.0),
     dict(planet={"mass_earth": 1.0, **WEAK}, model="peridotite-mantle", tu=1650.0, lid=0.0, crust=5e3,
-         extracted=(2e20, 1e20)),
+         extracted=(2e20, 1e20), outgassed=(3e19, 1.5e19), share=0.05),
     dict(planet={"mass_earth": 1.0, "melt_fraction_law": "katz2003", **WEAK}, model="peridotite-mantle",
-         tu=1700.0, lid=0.0, crust=0.0, extracted=(0.0, 0.0)),
+         tu=1700.0, lid=0.0, crust=0.0, extracted=(0.0, 0.0), outgassed=(0.0, 0.0), share=0.0),
 ])
 def test_extraction_law_matches_plain_reference(case):
-    """The kernel's extraction (production, heat, crust rate, volatiles, velocity) against the plain reference
-    written from the equations (tests/reference_volcanism.py), stagnant and mobile lid, linear and Katz
-    melt laws, depleted and fresh mantles. Tolerance 1e-9 relative (same sums in another order; the
-    isentropic melt fraction to 1e-13)."""
+    """The kernel's extraction (production, heat, crust rate, volatiles extracted and outgassed, velocity, the
+    crust's heat sources) against the plain reference written from the equations
+    (tests/reference_volcanism.py): stagnant and mobile lid, linear and Katz melt laws, depleted and fresh
+    mantles, vent solubility, depletion and crustal heat on and off, a shallow density crossover (3 GPa).
+    Tolerance 1e-9 relative (same sums in another order; the isentropic melt fraction to 1e-13)."""
     from meltzone._core import layout as k
 
     spec = PlanetSpec(**case["planet"], model=case["model"])
-    diag, it = kernel_state(spec, case["tu"], case["lid"], case["crust"], case["extracted"])
+    diag, it = kernel_state(spec, case["tu"], case["lid"], case["crust"], case["extracted"], case["outgassed"],
+                            case["share"])
     ref = extraction(spec, it, case["tu"], diag[k.D_DELTA_U], diag[k.D_TS], diag[k.D_TL], case["lid"],
-                     case["crust"], *case["extracted"])
+                     case["crust"], *case["extracted"], *case["outgassed"], case["share"], diag[k.D_H])
     assert ref["production"] > 0.0
     got = {"production": diag[k.D_MPROD], "heat": diag[k.D_QVOLC], "crust_rate": diag[k.D_DCRUST],
-           "h2o": diag[k.D_XH2O], "co2": diag[k.D_XCO2], "velocity": diag[k.D_UCONV]}
+           "h2o": diag[k.D_XH2O], "co2": diag[k.D_XCO2], "velocity": diag[k.D_UCONV],
+           "h2o_outgassing": diag[k.D_OG_H2O], "co2_outgassing": diag[k.D_OG_CO2], "share_rate": diag[k.D_DHPE],
+           "crust_heat": diag[k.D_QCRUST], "crust_heat_flux": diag[k.D_QS_CRUST],
+           "crust_lid_rate": diag[k.D_DLID_CRUST]}
     for name, value in ref.items():
         assert got[name] == pytest.approx(value, rel=1e-9, abs=1e-30), name
+
+
+def test_only_melt_above_the_density_crossover_rises():
+    """A 3 M_E stagnant-lid mantle at T_u = 1750 K under a 40 km lid melts from the lid base to below 3 GPa:
+    with the density crossover at 3 GPa the deeper melt stays (Stixrude et al. 2009; Kite et al. 2009: melt
+    deeper than the crossover is denser than its residue, from memory), so production falls (by > 10%) but
+    stays positive; at 12 GPa the whole melt zone counts."""
+    from meltzone._core import layout as k
+
+    planet = dict(mass_earth=3.0, regime="stagnant-lid", model="peridotite-mantle")
+    deep = kernel_state(PlanetSpec(**planet), 1750.0, 40e3, 5e3)[0][k.D_MPROD]
+    shallow = kernel_state(PlanetSpec(**planet, max_extraction_pressure_gpa=3.0), 1750.0, 40e3, 5e3)[0][k.D_MPROD]
+    assert 0.0 < shallow < 0.9 * deep
 
 
 def test_earth_ridge_melt_production_today():
@@ -117,10 +145,11 @@ def mars():
     return evolve(PlanetSpec(**MARS)), evolve(PlanetSpec(**MARS, model="peridotite-mantle"))
 
 
-@pytest.mark.xfail(strict=True, reason="known limitation: the crust follows the stagnant lid while melting "
-                   "lasts (measured 31 km with the default melting model, whose melting ends within ~0.1 Gyr, and "
-                   "126 km with the peridotite model, melting ~2.5 Gyr); crustal heat sources and mantle "
-                   "depletion, which keep the crust of Morschhauser et al. 2011 below their lid, are not modelled")
+@pytest.mark.xfail(strict=True, reason="known limitation: measured 28 km with the default melting model (melting "
+                   "ends ~35 Myr after the magma ocean) and 79 km with the peridotite model (90% of it within ~160 "
+                   "Myr; melting ends at ~0.46 Gyr), with the depleted source and the crust's heat sources (31 and "
+                   "126 km without them); the crust is set by the burst of melting right after the magma ocean, "
+                   "which depends on the melting model; no threshold melt fraction or crustal conductivity")
 def test_mars_crust_thickness(mars):
     """Mars-like stagnant-lid planet at 4.5 Gyr: mean crustal thickness 50 +- 12 km (Wieczorek & Zuber 2004,
     JGR 109:E01009; checked in a review page), with either melting model."""
@@ -141,28 +170,65 @@ def test_mars_crust_within_its_caps(mars):
         assert h["crust_thickness"][-1] >= 20e3
 
 
-def test_heat_pipe_keeps_the_energy_budget(mars):
-    """With melt extraction the budget still closes to ENERGY_CLOSURE_TOLERANCE (heat of the extracted melt
-    taken from the mantle and added to the heat out; common practice: the integrated linear invariant), and
-    that heat is a sizeable part of the planet's loss while volcanism lasts (Moore & Webb 2013, Nature
-    501:501: volcanic heat transport matters early): its time integral is > 10% of the conducted one."""
+def test_crust_holds_heat_sources(mars):
+    """The crust's share of the heat-producing elements stays within [0, 1] (to 1e-6) and its heat is that
+    share (clipped to [0, 1] as the kernel does) of the radiogenic power (1e-12); the Mars-like crust of the
+    peridotite model (> 30 km) holds at least half of them (McLennan 2001, GRL 28:4019, abstract checked:
+    a Martian crust >= 30 km likely holds at least 50%)."""
     for r in mars:
-        assert r.history.energy_closure <= ENERGY_CLOSURE_TOLERANCE
+        h = r.history
+        share = h["crust_heat_share"]
+        assert np.all((share >= -1e-6) & (share <= 1.0))  # a Dormand-Prince step may undershoot by its error
+        np.testing.assert_allclose(h["crust_heat_production"], np.clip(share, 0.0, 1.0) * h["radiogenic_power"],
+                                   rtol=1e-12)
     h = mars[1].history
-    t = h.time
-    assert np.trapezoid(h["volcanic_heat_flow"], t) > 0.1 * np.trapezoid(h["surface_heat_flow"], t)
+    assert h["crust_thickness"][-1] > 30e3 and h["crust_heat_share"][-1] >= 0.5
+
+
+def test_vent_solubility_keeps_water_in_the_lava():
+    """Under the gases it has outgassed, erupted melt keeps the H2O its solubility allows (6.8e-8 P^0.7; Lebrun
+    et al. 2013, from memory): a 1 M_E stagnant-lid planet (peridotite model, 4.5 Gyr) outgasses < 50% of the
+    H2O it does without the limit, while its CO2, far less soluble, is outgassed to > 95% of the unlimited
+    amount (Tosi et al. 2017, A&A 605:A71, abstract checked: solubility caps H2O at tens of bar while most CO2
+    is outgassed); the H2O left at the surface weighs less than 100 bar."""
+    kw = dict(mass_earth=1.0, regime="stagnant-lid", model="peridotite-mantle", end_time_gyr=4.5)
+    on = evolve(PlanetSpec(**kw))
+    off = evolve(PlanetSpec(**kw, vent_solubility="off")).summary()
+    s = on.summary()
+    assert s["outgassed_h2o_kg"] < 0.5 * off["outgassed_h2o_kg"]
+    assert s["outgassed_co2_kg"] > 0.95 * off["outgassed_co2_kg"]
+    it = on.interior
+    assert s["outgassed_h2o_kg"] * it.surface_gravity / (4 * np.pi * it.radius ** 2) < 100e5
+
+
+def test_heat_pipe_keeps_the_energy_budget(mars):
+    """With melt extraction and the crust's heat sources the budget still closes to ENERGY_CLOSURE_TOLERANCE
+    (heat of the extracted melt and the crust's heat taken from the mantle and added to the heat out; common
+    practice: the integrated linear invariant), and the erupted and intruded melt's heat is a sizeable part
+    of the planet's loss while volcanism lasts (Moore & Webb 2013, Nature 501:501: volcanic heat transport
+    matters early): its time integral over the solid (stagnant-lid) mantle's volcanic period is > 10% of the
+    conducted one, with either melting model."""
+    for r in mars:
+        h = r.history
+        assert h.energy_closure <= ENERGY_CLOSURE_TOLERANCE
+        w = (h.time <= r.summary()["volcanism_end_yr"] * YEAR) & (h["regime"] == 2)
+        assert np.trapezoid(h["volcanic_heat_flow"][w], h.time[w]) > 0.1 * np.trapezoid(h["surface_heat_flow"][w],
+                                                                                       h.time[w])
 
 
 def test_outgassing_within_the_mantle_inventory(mars):
     """Outgassed H2O and CO2 are positive, at most the erupted share of the initial mantle inventory (mass
-    balance), and the rates integrate to the totals (trapezoid over the recorded steps, 2% relative)."""
+    balance), at most the erupted share of what the melt extracted (the rest stays dissolved at the vent or in
+    the intrusions), never decrease (to 1e-6 of the total: Dormand-Prince weights include a negative one, so
+    a step may undershoot by its error), and the rates integrate to the totals (trapezoid over the recorded
+    steps, 2% relative)."""
     for r in mars:
         h = r.history
         v = r.spec.volcanism
         for gas, ppm in (("h2o", v.mantle_h2o_ppm), ("co2", v.mantle_co2_ppm)):
             total = h[f"outgassed_{gas}"][-1]
             assert 0.0 < total <= v.erupted_fraction * ppm * 1e-6 * r.interior.mantle_mass * (1 + 1e-9)
-            assert np.all(np.diff(h[f"outgassed_{gas}"]) >= 0.0)
+            assert np.all(np.diff(h[f"outgassed_{gas}"]) >= -1e-6 * total)
             assert np.trapezoid(h[f"outgassing_{gas}_rate"], h.time) == pytest.approx(total, rel=2e-2)
 
 

@@ -34,6 +34,10 @@ Y_WATER, = range(N_Y, N_Y := len(STATE_Y))
 # volcanism (boundary-layer scheme): crust thickness [m], H2O and CO2 extracted from the mantle by melt [kg]
 STATE_Y += ("crust_thickness", "extracted_h2o", "extracted_co2")
 Y_CRUST, Y_XH2O, Y_XCO2 = range(N_Y, N_Y := len(STATE_Y))
+# volcanism, continued: H2O and CO2 outgassed [kg] (the erupted melt's volatiles above their solubility at the
+# vent), share of the planet's heat-producing elements held in the crust [1]
+STATE_Y += ("outgassed_h2o", "outgassed_co2", "crust_heat_share")
+Y_OG_H2O, Y_OG_CO2, Y_HPE = range(N_Y, N_Y := len(STATE_Y))
 
 # ------------------------------------------------------------ mantle grid rows (nodes CMB -> surface)
 GRID_ROWS = ("radius", "pressure", "adiabat", "mass", "solidus", "liquidus", "aux1", "aux2")
@@ -105,6 +109,10 @@ PARAMETERS += ("density_dependent_properties", "expansivity_exponent", "conducti
 P_PROPS, P_ALPHA_EXP, P_K_EXP, P_RHO_REF, P_RA_VISC = range(N_PAR, N_PAR := len(PARAMETERS))
 #: values of P_RA_VISC
 RA_VISC_SURFACE, RA_VISC_TOP, RA_VISC_MID = range(3)
+# volcanism, continued: switches (1 on) of the vent solubility limit, of the depleted mantle's melting and of the
+# crust's heat sources; bulk solid/melt partition coefficient of the heat-producing elements
+PARAMETERS += ("vent_solubility", "melt_depletion", "crust_heat_sources", "heat_source_partition")
+P_VENT, P_DEPLETE, P_CRUST_HEAT, P_D_HPE = range(N_PAR, N_PAR := len(PARAMETERS))
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",
@@ -127,6 +135,11 @@ DIAGNOSTICS += ("absorbed_flux", "outgoing_radiation", "water_ocean", "water_dis
 DIAGNOSTICS += ("melt_production", "volcanic_heat_flow", "crust_rate", "h2o_extraction", "co2_extraction",
                 "convective_velocity")
 D_MPROD, D_QVOLC, D_DCRUST, D_XH2O, D_XCO2, D_UCONV = range(N_D, N_D := len(DIAGNOSTICS))
+# volcanism, continued: H2O and CO2 outgassed [kg/s], rate of the crust's share of the heat-producing elements
+# [1/s], heat produced in the crust [W], surface flux it adds [W/m^2] and the lid rate it adds [m/s]
+DIAGNOSTICS += ("h2o_outgassing", "co2_outgassing", "crust_heat_share_rate", "crust_heat", "crust_heat_flux",
+                "crust_heat_lid_rate")
+D_OG_H2O, D_OG_CO2, D_DHPE, D_QCRUST, D_QS_CRUST, D_DLID_CRUST = range(N_D, N_D := len(DIAGNOSTICS))
 
 # ------------------------------------------------------------ history columns (one row per accepted step)
 HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "lid_thickness", "heat_out_minus_radiogenic",
@@ -145,6 +158,8 @@ HISTORY_COLUMNS += ("melt_production", "volcanic_heat_flow", "crust_thickness", 
                     "outgassing_co2_rate", "outgassed_h2o", "outgassed_co2")
 (H_MPROD, H_QVOLC, H_CRUST, H_OG_H2O_RATE, H_OG_CO2_RATE, H_OG_H2O,
  H_OG_CO2) = range(N_H, N_H := len(HISTORY_COLUMNS))
+HISTORY_COLUMNS += ("crust_heat_share", "crust_heat_production")
+H_HPE, H_QCRUST = range(N_H, N_H := len(HISTORY_COLUMNS))
 
 # ------------------------------------------------------------ melt-interval columns
 INTERVAL_COLUMNS = ("step", "top_node", "bottom_node", "max_melt_fraction", "melt_mass", "full_top_node",

@@ -26,10 +26,10 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
                      REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
 from .basal import basal_ocean, basal_top_energy
 from .inner_core import inner_core_heat
-from .layout import P_ERUPT, Y_XCO2, Y_XH2O
 from .lid import lid_growth, lid_heat_temperature
 from .properties import at_depth, depth_index, property_factors
 from .layout import D_MB, D_RB, G_P, G_RHO, P_BMO, P_BMO_MREF, P_RA_VISC, RA_VISC_MID, RA_VISC_SURFACE
+from .layout import Y_OG_CO2, Y_OG_H2O
 from .melt import melt_fraction
 from .roots import bisect, illinois
 from .layout import (D_ABS, D_DISSOLVED, D_ESCAPE, D_LOST, D_OCEAN, D_OLR, D_P_CO2, D_P_H2O, P_H2O_SOL_C,
@@ -554,9 +554,8 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     """dy/dt at (t, y); also fills ``diag`` and leaves (T_u, T_c) in ``work``."""
     tu, tc = temperatures(y, grid, core, par, law, work)
     d_lid = y[Y_LID]
-    # the erupted share of the volatiles the melt extracted is in the atmosphere (zero without volcanism)
-    diagnose(t, tu, tc, d_lid, t_switch, y[Y_WATER], grid, core, iso, par, law, diag, par[P_ERUPT] * y[Y_XH2O],
-             par[P_ERUPT] * y[Y_XCO2])
+    # the volcanically outgassed volatiles are in the atmosphere (zero without volcanism)
+    diagnose(t, tu, tc, d_lid, t_switch, y[Y_WATER], grid, core, iso, par, law, diag, y[Y_OG_H2O], y[Y_OG_CO2])
     area_s = 4.0 * math.pi * par[P_RADIUS] ** 2
     area_c = 4.0 * math.pi * diag[D_RB] ** 2  # the core's radius, or the basal ocean's top
     q_surf = diag[D_QS] * area_s

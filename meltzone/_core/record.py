@@ -17,8 +17,9 @@ from .layout import (D_ATM_CO2, D_ATM_H2O, D_DELTA_C, D_DELTA_U, D_H, D_PHI_TOP,
 from .layout import D_RB, H_BMO, P_CORE_RADIUS
 from .layout import (D_ABS, D_DISSOLVED, D_OCEAN, D_OLR, D_P_CO2, D_P_H2O, H_ABS, H_DISSOLVED, H_LOST, H_OCEAN,
                      H_OLR, H_P_CO2, H_P_H2O, Y_WATER)
-from .layout import (D_MPROD, D_QVOLC, D_XCO2, D_XH2O, H_CRUST, H_MPROD, H_OG_CO2, H_OG_CO2_RATE, H_OG_H2O,
-                     H_OG_H2O_RATE, H_QVOLC, P_ERUPT, P_RHO_CRUST, Y_CRUST, Y_XCO2, Y_XH2O)
+from .layout import (D_MPROD, D_OG_CO2, D_OG_H2O, D_QCRUST, D_QVOLC, H_CRUST, H_HPE, H_MPROD, H_OG_CO2,
+                     H_OG_CO2_RATE, H_OG_H2O, H_OG_H2O_RATE, H_QCRUST, H_QVOLC, P_RHO_CRUST, Y_CRUST, Y_HPE,
+                     Y_OG_CO2, Y_OG_H2O)
 from .physics import basal_ocean, core_energy, mantle_energy, profile, temperature_rates
 
 
@@ -114,12 +115,14 @@ def record(t, y, tu, tc, dy, diag, grid, core, par, law, hist, temps, phis, n_h,
     hist[n_h, H_LOST] = y[Y_WATER]
     hist[n_h, H_P_H2O] = diag[D_P_H2O]
     hist[n_h, H_P_CO2] = diag[D_P_CO2]
-    # volcanism: melt production as the volume of the crust it makes [m^3/s]; outgassing = erupted share
+    # volcanism: melt production as the volume of the crust it makes [m^3/s]; outgassing of the erupted melt
     hist[n_h, H_MPROD] = diag[D_MPROD] / par[P_RHO_CRUST] if par[P_RHO_CRUST] > 0.0 else 0.0
     hist[n_h, H_QVOLC] = diag[D_QVOLC]
     hist[n_h, H_CRUST] = y[Y_CRUST]
-    hist[n_h, H_OG_H2O_RATE] = par[P_ERUPT] * diag[D_XH2O]
-    hist[n_h, H_OG_CO2_RATE] = par[P_ERUPT] * diag[D_XCO2]
-    hist[n_h, H_OG_H2O] = par[P_ERUPT] * y[Y_XH2O]
-    hist[n_h, H_OG_CO2] = par[P_ERUPT] * y[Y_XCO2]
+    hist[n_h, H_OG_H2O_RATE] = diag[D_OG_H2O]
+    hist[n_h, H_OG_CO2_RATE] = diag[D_OG_CO2]
+    hist[n_h, H_OG_H2O] = y[Y_OG_H2O]
+    hist[n_h, H_OG_CO2] = y[Y_OG_CO2]
+    hist[n_h, H_HPE] = y[Y_HPE]
+    hist[n_h, H_QCRUST] = diag[D_QCRUST]
     return n_iv_new

@@ -12,16 +12,27 @@ from __future__ import annotations
 import math
 
 from ._jit import njit
-from .layout import (D_DCRUST, D_DELTA_U, D_MPROD, D_QVOLC, D_REGIME, D_TL, D_TS, D_UCONV, D_XCO2, D_XH2O, G_F,
-                     G_P, G_R, G_W, P_CM, P_CORE_RADIUS, P_D_CO2, P_ERUPT, P_D_H2O, P_G_SURF, P_KAPPA, P_LATENT,
-                     P_LID_MIN, P_MANTLE_MASS, P_P_ECLOGITE, P_P_EXTRACT, P_RADIUS, P_RHO_CRUST,
-                     P_RIDGE, P_STAGNANT, P_VOLC, P_X_CO2, P_X_H2O, REGIME_MAGMA_OCEAN, Y_CRUST, Y_EM, Y_LID, Y_OUT, Y_XCO2, Y_XH2O)
-from .physics import isentropic_melt, node_melt, smoothstep
+from .lid import lid_heat_temperature
+from .layout import (D_ATM_CO2, D_ATM_H2O, D_DCRUST, D_DELTA_U, D_DHPE, D_DLID_CRUST, D_H, D_MPROD, D_OCEAN,
+                     D_OG_CO2, D_OG_H2O, D_QCRUST, D_QS, D_QS_CRUST, D_QVOLC, D_REGIME, D_TL, D_TS, D_UCONV, D_XCO2,
+                     D_XH2O, G_F, G_P, G_R, G_W, P_ATMOSPHERE, P_CM, P_CORE_RADIUS, P_CRUST_HEAT, P_D_CO2,
+                     P_D_H2O, P_D_HPE, P_DEPLETE, P_ERUPT, P_G_SURF, P_KAPPA, P_LATENT, P_LID_MIN, P_MANTLE_MASS,
+                     P_P_ECLOGITE, P_P_EXTRACT, P_RADIUS, P_RHO_CRUST, P_RHO_TOP, P_RIDGE, P_STAGNANT, P_STEAM,
+                     P_VENT, P_VOLC, P_X_CO2, P_X_H2O, REGIME_MAGMA_OCEAN, Y_CRUST, Y_EM, Y_HPE, Y_LID,
+                     Y_OG_CO2, Y_OG_H2O, Y_OUT, Y_XCO2, Y_XH2O)
+from .physics import GREY_H2O_COEFF, GREY_H2O_EXPONENT, isentropic_melt, node_melt, smoothstep
 from .physics import rhs as energy_rhs
 
 #: Relative width below its largest thickness over which a stagnant-lid crust stops growing (this model's
 #: choice: a smooth cut-off keeps the right-hand side continuous)
 CRUST_CAP_WIDTH = 0.05
+#: CO2 solubility in basaltic melt at the vent, mass fraction per Pa of CO2 (X = 4.4e-12 P; Pan, Holloway &
+#: Kennedy 1991, as used by Lebrun et al. 2013, JGR Planets 118:1155; from memory; the grey atmosphere's law).
+#: H2O: X = 6.8e-8 P^0.7 (GREY_H2O_COEFF, GREY_H2O_EXPONENT; the same source)
+VENT_CO2_COEFF = 4.4e-12
+#: The diagnostics :func:`volcanism` fills
+OUTPUTS = (D_MPROD, D_QVOLC, D_DCRUST, D_XH2O, D_XCO2, D_UCONV, D_OG_H2O, D_OG_CO2, D_DHPE, D_QCRUST, D_QS_CRUST,
+           D_DLID_CRUST)
 
 
 @njit
@@ -75,15 +86,34 @@ def volcanism(tu, y, diag, grid, par, law):
       Korenaga 2012, Icarus 221:1043; from memory); growth fades over CRUST_CAP_WIDTH below that cap and crust
       above it is removed at the convective rate u / d_conv. Mobile lid: subducted at the rate plates are
       consumed, D u / d_mantle (this model's choice).
+    * Depleted source (P_DEPLETE): the crust's mass is missing from the mantle, whose mean depletion is
+      F = M_crust / M_mantle (the whole mantle, well mixed; recycled crust refertilises it). A residue that lost
+      the fraction F melts again only where the fertile rock would hold more than F of melt, so each node's
+      melt fraction is (phi - F) / (1 - F) of the residue (zero below): the solidus rises by F (T_liq - T_sol)
+      with the linear law. This model's choice after the depletion-dependent solidus of Morschhauser et al.
+      2011 (form from memory); the mantle's stored heat keeps the fertile melt fraction.
     * Volatiles: batch melting (Shaw 1970, common practice), X_melt = X_mantle / (D + phi (1 - D)) per
-      node; X_mantle = initial - extracted / mantle mass. The erupted fraction outgasses all of it (an upper
-      bound: no solubility limit at the vent)."""
-    diag[D_MPROD] = 0.0
-    diag[D_QVOLC] = 0.0
-    diag[D_DCRUST] = 0.0
-    diag[D_XH2O] = 0.0
-    diag[D_XCO2] = 0.0
-    diag[D_UCONV] = 0.0
+      node; the source is the whole mantle, well mixed: X_mantle = initial - extracted / mantle mass (what the
+      melt took out, erupted or intruded, has left it; Grott et al. 2011, Morschhauser et al. 2011, from
+      memory). The erupted fraction outgasses what exceeds the solubility at the vent (P_VENT): X_H2O =
+      6.8e-8 P^0.7 and X_CO2 = 4.4e-12 P [Pa] at the partial pressure of each gas at the surface, its column
+      weight M g / (4 pi R^2) with M the atmosphere's (and ocean's) mass where an atmosphere is modelled, else
+      the mass outgassed so far (the laws of Lebrun et al. 2013, from memory; Tosi et al. 2017, A&A 605:A71,
+      abstract checked: solubility at the surface caps the H2O of a stagnant-lid atmosphere at a few tens of
+      bar while most CO2 is outgassed). The rest stays in the erupted lava. Without P_VENT all of it outgasses.
+    * Crust's heat sources (P_CRUST_HEAT): the heat-producing elements enter the melt by batch melting with
+      the bulk partition coefficient P_D_HPE; their share s in the crust grows by
+      k sum(m_i phi_i (1 - s) / (D + phi_i (1 - D))) / M_mantle and returns with recycled crust (crust that
+      the cap stops, and crust removed from above it or subducted, carry s / M_crust per kg). The crust then
+      holds the heat s H (H the radiogenic power, D_QCRUST; McLennan 2001, GRL 28:4019, abstract checked: a
+      crust of >= 30 km may hold >= 50% of Mars's heat-producing elements). Its steady conductive profile
+      in a lid of thickness D_l with the crust D_cr <= D_l at its top: surface flux k dT / D_l
+      + (sH / A) (1 - D_cr / (2 D_l)) (D_QS_CRUST, leaves the mantle), lid-base flux k dT / D_l
+      - (sH / A) D_cr / (2 D_l), which thins the lid at the lid law's rate per flux (D_DLID_CRUST; Morschhauser
+      et al. 2011: the crust's heat sources thin the lid; the conductive profile is common practice,
+      Turcotte & Schubert). Mobile lid: all of sH leaves at the surface."""
+    for j in OUTPUTS:
+        diag[j] = 0.0
     if par[P_VOLC] < 0.5 or diag[D_REGIME] == REGIME_MAGMA_OCEAN:
         return
     stagnant = par[P_STAGNANT] > 0.5
@@ -94,14 +124,22 @@ def volcanism(tu, y, diag, grid, par, law):
     d_conv = max(depth - d_lid, 0.05 * depth) if stagnant else depth
     u = convective_velocity(d_conv, delta, par)
     diag[D_UCONV] = u
-    crust = max(y[Y_CRUST], 0.0)
+    crust = min(max(y[Y_CRUST], 0.0), 0.5 * r_p)
+    rho_cr = par[P_RHO_CRUST]
+    area_base = 4.0 * math.pi * (r_p - crust) ** 2
+    m_crust = rho_cr * 4.0 / 3.0 * math.pi * (r_p ** 3 - (r_p - crust) ** 3)
     cap = 0.0
     if stagnant:
-        cap = min(d_lid, par[P_P_ECLOGITE] / (par[P_RHO_CRUST] * par[P_G_SURF]))
+        cap = min(d_lid, par[P_P_ECLOGITE] / (rho_cr * par[P_G_SURF]))
         # crust above its cap is removed at the convective rate (the lid thinned, or its base turned to eclogite)
-        diag[D_DCRUST] = min(cap - crust, 0.0) * u / d_conv
+        loss = min(cap - crust, 0.0) * u / d_conv
     else:
-        diag[D_DCRUST] = -crust * u / depth
+        loss = -crust * u / depth
+    diag[D_DCRUST] = loss
+    share = min(max(y[Y_HPE], 0.0), 1.0)
+    heat_sources = par[P_CRUST_HEAT] > 0.5
+    if heat_sources:
+        crust_heat(tu, share, crust, d_lid, stagnant, diag, par)
     cp = par[P_CM]
     lat = par[P_LATENT]
     ts = diag[D_TS]
@@ -111,14 +149,20 @@ def volcanism(tu, y, diag, grid, par, law):
     x_co2 = max(par[P_X_CO2] - y[Y_XCO2] / par[P_MANTLE_MASS], 0.0)
     d_h2o = par[P_D_H2O]
     d_co2 = par[P_D_CO2]
+    d_hpe = par[P_D_HPE]
+    dep = min(m_crust / par[P_MANTLE_MASS], 0.99) if par[P_DEPLETE] > 0.5 else 0.0
+    sol_h2o, sol_co2 = vent_solubility(y, diag, par)
     s_m = 0.0  # sum of m_i phi_i (stagnant) or of phi_i rho_i dz_i (mobile)
     s_q = 0.0
     s_h = 0.0
     s_c = 0.0
+    s_oh = 0.0
+    s_oc = 0.0
+    s_p = 0.0
     found = False
     for i in range(grid.shape[1] - 1, -1, -1):
         if grid[G_P, i] > par[P_P_EXTRACT]:
-            break
+            break  # deeper melt is denser than its residue and stays
         z = r_p - grid[G_R, i]
         if z < d_lid:
             continue
@@ -129,11 +173,13 @@ def volcanism(tu, y, diag, grid, par, law):
         else:
             phi = isentropic_melt(t_ad, grid, i, law, par)
             t = t_ad - lat / cp * phi
+        if phi > 0.0:
+            found = True
+        elif found and z > d_lid + delta:
+            break  # below the melt zone
+        phi = (phi - dep) / (1.0 - dep)  # melt fraction of the depleted residue
         if phi <= 0.0:
-            if found and z > d_lid + delta:
-                break  # below the melt zone
             continue
-        found = True
         m = grid[G_W, i] * phi
         if not stagnant:
             m /= 4.0 * math.pi * grid[G_R, i] ** 2
@@ -141,10 +187,13 @@ def volcanism(tu, y, diag, grid, par, law):
         # erupted: to the surface (heat pipe); intruded: freezes in the lid, whose heat is that of its conductive
         # profile (a function of T_u and its thickness), so what it brings above T_l leaves through the surface
         s_q += m * (lat + cp * (f_e * (t - ts) + (1.0 - f_e) * max(t - tl, 0.0)))
-        s_h += m * x_h2o / (d_h2o + phi * (1.0 - d_h2o))
-        s_c += m * x_co2 / (d_co2 + phi * (1.0 - d_co2))
-    if s_m <= 0.0:
-        return
+        xm_h = x_h2o / (d_h2o + phi * (1.0 - d_h2o))
+        xm_c = x_co2 / (d_co2 + phi * (1.0 - d_co2))
+        s_h += m * xm_h
+        s_c += m * xm_c
+        s_oh += m * max(xm_h - sol_h2o, 0.0)
+        s_oc += m * max(xm_c - sol_co2, 0.0)
+        s_p += m / (d_hpe + phi * (1.0 - d_hpe))
     if stagnant:
         v_mantle = 4.0 / 3.0 * math.pi * (r_p ** 3 - par[P_CORE_RADIUS] ** 3)
         k = 4.0 * math.pi * r_p * r_p * u / v_mantle
@@ -155,24 +204,73 @@ def volcanism(tu, y, diag, grid, par, law):
     diag[D_QVOLC] = k * s_q
     diag[D_XH2O] = k * s_h
     diag[D_XCO2] = k * s_c
-    grow = mprod / (par[P_RHO_CRUST] * 4.0 * math.pi * (r_p - min(crust, 0.5 * r_p)) ** 2)
+    diag[D_OG_H2O] = k * f_e * s_oh
+    diag[D_OG_CO2] = k * f_e * s_oc
+    keep = 1.0  # share of the extracted melt the crust keeps (the rest recycles crust from its base)
     if stagnant:
-        grow *= smoothstep((cap - crust) / (CRUST_CAP_WIDTH * cap)) if cap > 0.0 else 0.0
-    diag[D_DCRUST] += grow
+        keep = smoothstep((cap - crust) / (CRUST_CAP_WIDTH * cap)) if cap > 0.0 else 0.0
+    diag[D_DCRUST] += keep * mprod / (rho_cr * area_base)
+    if heat_sources:
+        # HPE in, and out with the crust that recycles (the cap's share of the new melt, and the crust removed)
+        out = (1.0 - keep) * mprod - rho_cr * area_base * loss
+        diag[D_DHPE] = k * s_p * (1.0 - share) / par[P_MANTLE_MASS] - (share * out / m_crust if m_crust > 0.0
+                                                                        else 0.0)
+
+
+@njit
+def vent_solubility(y, diag, par):
+    """(X_H2O, X_CO2): mass fractions that stay dissolved in the erupted melt at the partial pressures of the
+    gases at the surface (their column weights; see :func:`volcanism`); zero without P_VENT."""
+    if par[P_VENT] < 0.5:
+        return 0.0, 0.0
+    if par[P_ATMOSPHERE] > 0.5 or par[P_STEAM] > 0.5:
+        m_h2o = diag[D_ATM_H2O] + diag[D_OCEAN]
+        m_co2 = diag[D_ATM_CO2]
+    else:
+        m_h2o = y[Y_OG_H2O]
+        m_co2 = y[Y_OG_CO2]
+    load = par[P_G_SURF] / (4.0 * math.pi * par[P_RADIUS] ** 2)
+    return (GREY_H2O_COEFF * (max(m_h2o, 0.0) * load) ** GREY_H2O_EXPONENT,
+            VENT_CO2_COEFF * max(m_co2, 0.0) * load)
+
+
+@njit
+def crust_heat(tu, share, crust, d_lid, stagnant, diag, par):
+    """The crust's heat sources (see :func:`volcanism`): D_QCRUST [W], the surface flux they add [W/m^2]
+    and the lid rate they add [m/s] (zero without a stagnant lid)."""
+    q = share * diag[D_H]
+    diag[D_QCRUST] = q
+    flux = q / (4.0 * math.pi * par[P_RADIUS] ** 2)
+    if not stagnant:
+        diag[D_QS_CRUST] = flux
+        return
+    half = 0.5 * min(crust / d_lid, 1.0)
+    diag[D_QS_CRUST] = flux * (1.0 - half)
+    # the lid law's rate per flux (meltzone._core.lid.lid_growth, either growth law)
+    diag[D_DLID_CRUST] = -flux * half / (par[P_RHO_TOP] * par[P_CM] * max(tu - lid_heat_temperature(diag[D_TL], par),
+                                                                          1.0))
 
 
 @njit
 def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     """dy/dt with volcanism: :func:`meltzone._core.physics.rhs`, less the heat the erupted melt carries to the
-    surface (added to the heat out, so the budget still closes), plus the crust and the extracted volatiles."""
+    surface and the crust's heat that leaves through it (both added to the heat out, so the budget still
+    closes; the crust's heat joins the surface heat flow), the lid thinned by the crust's heat, plus the crust,
+    the extracted and outgassed volatiles and the crust's share of the heat sources."""
     energy_rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy)
     volcanism(work[0], y, diag, grid, par, law)
-    q = diag[D_QVOLC]
+    q = diag[D_QVOLC] + diag[D_QS_CRUST] * 4.0 * math.pi * par[P_RADIUS] ** 2
     dy[Y_EM] -= q
     dy[Y_OUT] += q
+    diag[D_QS] += diag[D_QS_CRUST]
+    if par[P_STAGNANT] > 0.5:
+        dy[Y_LID] += diag[D_DLID_CRUST]
     dy[Y_CRUST] = diag[D_DCRUST]
     dy[Y_XH2O] = diag[D_XH2O]
     dy[Y_XCO2] = diag[D_XCO2]
+    dy[Y_OG_H2O] = diag[D_OG_H2O]
+    dy[Y_OG_CO2] = diag[D_OG_CO2]
+    dy[Y_HPE] = diag[D_DHPE]
 
 
 @njit(inline="always")

@@ -282,6 +282,10 @@ def build_inputs(spec, interior, curves):
     par[k.P_K_EXP] = cv.conductivity_density_exponent
     par[k.P_RHO_REF] = it.rho[-1]
     par[k.P_RA_VISC] = RAYLEIGH_VISCOSITY_DEPTHS.index(cv.rayleigh_viscosity_depth)
+    par[k.P_VENT] = 1.0 if vc.vent_solubility == "on" else 0.0
+    par[k.P_DEPLETE] = 1.0 if vc.melt_depletion == "on" else 0.0
+    par[k.P_CRUST_HEAT] = 1.0 if vc.crust_heat_sources == "on" else 0.0
+    par[k.P_D_HPE] = vc.heat_source_partition_coefficient
     iso = isotope_table(spec.heating.radiogenic_scale)
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 

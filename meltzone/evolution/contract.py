@@ -63,10 +63,14 @@ SERIES = {
     "outgassing_co2_rate": ("kg/s", "CO2 outgassed by erupted melt", False),
     "outgassed_h2o": ("kg", "H2O outgassed by erupted melt since the start", False),
     "outgassed_co2": ("kg", "CO2 outgassed by erupted melt since the start", False),
+    "crust_heat_share": ("1", "share of the planet's heat-producing elements in the crust", False),
+    "crust_heat_production": ("W", "radiogenic heat produced in the crust (in surface_heat_flow as it leaves)",
+                              False),
 }
 #: The series of volcanism (present together or not at all).
 VOLCANISM_SERIES = ("melt_production", "volcanic_heat_flow", "crust_thickness", "outgassing_h2o_rate",
-                    "outgassing_co2_rate", "outgassed_h2o", "outgassed_co2")
+                    "outgassing_co2_rate", "outgassed_h2o", "outgassed_co2", "crust_heat_share",
+                    "crust_heat_production")
 
 REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID, REGIME_STAGNANT_LID = 0, 1, 2
 REGIME_NAMES = {REGIME_MAGMA_OCEAN: "magma ocean", REGIME_MOBILE_LID: "mobile lid",
