@@ -114,8 +114,8 @@ MLT_HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "surface
  MH_ATM_H2O, MH_ATM_CO2, MH_EC, MH_NEWTON, MH_DT) = range(N_MH := len(MLT_HISTORY_COLUMNS))
 #: integrator state of the mixing-length scheme (implicit.integrate resumes from it; h per cell kept apart)
 MLT_STATE = ("time", "heat_out_minus_radiogenic", "step_size", "previous_step_size", "n_history", "n_rejected",
-             "core_temperature", "emissivity")
-MS_T, MS_OUT, MS_H, MS_H_PREV, MS_N_H, MS_N_REJ, MS_TC, MS_EPS = range(N_MS := len(MLT_STATE))
+             "core_temperature", "emissivity", "newton_iterations")
+MS_T, MS_OUT, MS_H, MS_H_PREV, MS_N_H, MS_N_REJ, MS_TC, MS_EPS, MS_N_NEWTON = range(N_MS := len(MLT_STATE))
 
 REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID, REGIME_STAGNANT_LID = range(3)
 STATUS_DONE, STATUS_HISTORY_FULL, STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL = range(5)
