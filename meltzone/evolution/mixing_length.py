@@ -60,7 +60,8 @@ Known limitations (measured): the half-cell outer faces add half a cell of condu
 its node (the tests compare analytic solutions with the boundary moved by it). The bulk of the magma ocean
 passes the rheological transition within ~1-2 kyr, and this converges in the grid: the time at which less
 than 1% of the mantle mass is above phi_c (5 M_E: 1.665, 1.720, 1.753, 1.773, 1.786 kyr at 64 to 1024 nodes)
-or less than 10% (1 M_E: 0.719 to 0.725 kyr). The end of the surface magma ocean as the top cell falling below
+or less than 10% (1 M_E: 0.719 to 0.725 kyr); the rheological front's radius at a given time moves by less
+than one cell per doubling (5 M_E at 0.3-1 kyr; 1 M_E but once, 38 km against a 23 km cell). The end of the surface magma ocean as the top cell falling below
 phi_c does not converge for 1 M_E (0.91, 1.18, 1.84, 1.40, 0.68 Myr at 64 to 1024 nodes; 5 M_E 3.08, 2.76,
 2.62, 2.82, 3.02 Myr): after the bulk has crystallised, a shallow mushy layer of ~1-1.5% of the mantle mass stays
 a few hundredths above phi_c for Myr, held there by the surface boundary layer, whose viscosity (the top
