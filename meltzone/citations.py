@@ -133,7 +133,8 @@ REGISTRY = {
     "mcdonough2020": Citation("bulk-silicate-Earth radiogenic power 19.9 +- 3.0 TW today",
                               "McDonough, Sramek & Wipperfurth 2020, G3 21", CHECKED),
     "abe1997_mlt": Citation("mixing-length eddy diffusivity, viscous alpha g l^4 s / (18 nu) and inertial "
-                            "(alpha g l^4 s / 16)^(1/2)", "Abe 1997, PEPI 100:27", MEMORY),
+                            "(alpha g l^4 s / 16)^(1/2) (searched; the forms not found)", "Abe 1997, PEPI 100:27",
+                            MEMORY),
     "bower2018": Citation("mixing-length energy balance of a partially molten mantle as a non-linear diffusion "
                           "equation, eddy diffusivity spanning ~12 orders of magnitude, finite volumes (abstract "
                           "checked; the flux forms from memory)", "Bower et al. 2018, PEPI 274:49", CHECKED),
@@ -143,6 +144,9 @@ REGISTRY = {
                                "mid-mantle adiabat", "mobile-lid top", CHOICE),
     "patankar1980": Citation("conservative finite volumes; backward Euler with Newton on the tridiagonal Jacobian",
                              "Patankar 1980, Numerical Heat Transfer and Fluid Flow (Hemisphere)", MEMORY),
+    "hairer_wanner1996": Citation("Newton iteration of an implicit step stopped on the error left after an update, "
+                                  "estimated from the contraction rate", "Hairer & Wanner 1996, Solving Ordinary "
+                                  "Differential Equations II, 2nd ed. (Springer), sec. IV.8", MEMORY),
     "dormand1980": Citation("Dormand-Prince 5(4) Runge-Kutta pair", "Dormand & Prince 1980, J. Comput. Appl. "
                             "Math. 6:19", CHECKED),
     # host star, steam atmosphere, water, escape (meltzone.star, meltzone._core.radiation)
@@ -265,7 +269,8 @@ def _start_keys(spec) -> list[str]:
 
 def mixing_length_keys(spec) -> tuple[str, ...]:
     """Registry keys of the laws a mixing-length run of ``spec`` uses."""
-    keys = ["tosi2017", "abe1997_mlt", "bower2018", "two_phase_adiabat", "patankar1980", "stevenson1983",
+    keys = ["tosi2017", "abe1997_mlt", "bower2018", "two_phase_adiabat", "patankar1980", "hairer_wanner1996",
+            "stevenson1983",
             "mei2002", "abe1997", "solomatov2015", "roscoe1952", "lejeune1995", "karki2010", "rheology_blend",
             "labrosse2015", "anzellini2013", "alfe2003", "latent_scaling", "turcotte_schubert", "mcdonough1995",
             "mcdonough2020"]

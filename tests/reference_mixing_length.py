@@ -52,7 +52,6 @@ class Reference:
         self.dr = np.concatenate([[0.5 * (r[1] - r[0])], np.diff(r), [0.5 * (r[-1] - r[-2])]])
         f = self.mantle.adiabat
         self.ratio = f[1:] / f[:-1]  # interior faces 1 .. n-1
-        self.f_face = np.interp(rf, r, f)
         self.mobile = spec.convection.regime == "mobile-lid"
         self.heat_share = self.mantle.mass / self.mantle.mass.sum()
         tu, self.tc0 = ref.initial_temperatures(spec, self.mantle, self.core)
@@ -77,6 +76,22 @@ class Reference:
     def eta(self, t, p, phi, floor):
         return ref.viscosity(max(t, floor), p, phi, self.ph)
 
+    def log_eta(self, t, phi, floors):
+        """ln eta of every cell at its own T (at least its floor), phi and pressure: the law of
+        reference_evolution.viscosity written again for arrays."""
+        ph = self.ph
+        p = self.mantle.pressure
+        pd = ph.activation_volume_decay
+        h_act = ph.activation_energy + (p * ph.activation_volume if pd <= 0.0
+                                        else ph.activation_volume * pd * (1.0 - np.exp(-p / pd)))
+        log_solid = (math.log(ph.viscosity_prefactor) + h_act / (ref.R_GAS * np.maximum(t, floors))
+                     - ph.melt_weakening * phi)
+        x = np.clip((phi - ph.critical_melt_fraction) / ph.blend_width, 0.0, 1.0)
+        w = x * x * (3.0 - 2.0 * x)
+        crystals = np.minimum((1.0 - phi) / (1.0 - ph.critical_melt_fraction), 0.999)
+        log_susp = math.log(ph.liquid_viscosity) - 2.5 * np.log(1.0 - crystals)
+        return np.minimum(np.where(w > 0.0, w * log_susp + (1.0 - w) * log_solid, log_solid), ref.LOG_ETA_MAX)
+
     def boundary(self, dt, t_visc, phi, j, floor):
         """k dT / min(delta, half cell), delta = (kappa eta Ra_cr / (alpha rho g |dT|))^(1/3)."""
         ph = self.ph
@@ -93,10 +108,10 @@ class Reference:
         n = self.n
         h = y[1:] / self.mantle.mass
         t, phi = self.state(h)
-        floors = np.zeros(n + 1)
+        floors = np.zeros(n)  # per cell
         if self.mobile:
             mid = n // 2
-            floors = t[mid] * self.f_face / self.mantle.adiabat[mid]
+            floors = t[mid] * self.mantle.adiabat / self.mantle.adiabat[mid]
         q = np.zeros(n + 1)
         tc = 0.0
         if self.core:
@@ -108,20 +123,21 @@ class Reference:
         dh = h[:-1] + c * ta * (self.ratio - 1.0) - h[1:]
         dr = self.dr[1:n]
         q[1:n] = -ph.conductivity * (tb - ta) / dr
-        for j in np.nonzero((dh > 0.0) & (self.length[1:n] > 0.0))[0]:
+        j = np.nonzero((dh > 0.0) & (self.length[1:n] > 0.0))[0]
+        if j.size:
             face = j + 1
             s = dh[j] / (c * dr[j])
-            # geometric mean of the two cells' viscosities, each at its own T and phi
-            eta = math.sqrt(self.eta(ta[j], self.p_f[face], phi[j], floors[face])
-                            * self.eta(tb[j], self.p_f[face], phi[j + 1], floors[face]))
+            # geometric mean of the two cells' viscosities, each at its own T, phi and pressure
+            log_eta = self.log_eta(t, phi, floors)
+            eta = np.exp(0.5 * (log_eta[j] + log_eta[j + 1]))
             base = ph.expansivity * self.g_f[face] * self.length[face] ** 4 * s
-            kappa_h = min(base * self.rho_f[face] / (18.0 * eta), math.sqrt(base / 16.0))
+            kappa_h = np.minimum(base * self.rho_f[face] / (18.0 * eta), np.sqrt(base / 16.0))
             q[face] += self.rho_f[face] * kappa_h * dh[j] / dr[j]
         top = t[-1]
         teq = ph.equilibrium_temperature
 
         def g(ts):
-            return self.boundary(top - ts, top, phi[-1], n, floors[n]) - SIGMA_SB * (ts ** 4 - teq ** 4)
+            return self.boundary(top - ts, top, phi[-1], n, floors[-1]) - SIGMA_SB * (ts ** 4 - teq ** 4)
 
         lo, hi = min(teq, top), max(teq, top)
         ts = lo if g(lo) <= 0.0 else hi if g(hi) >= 0.0 else brentq(g, lo, hi, xtol=1e-12, rtol=1e-15)

@@ -66,17 +66,18 @@ def test_history_keeps_the_contract_and_a_file_round_trip(earth, tmp_path):
 def test_kernel_agrees_with_plain_reference(mass, sections):
     """T(r, t) of the kernel (backward Euler, run.max_temperature_step_k = 1) against the plain reference
     (tests/reference_mixing_length.py: the same semi-discrete equations written again in NumPy, solve_ivp BDF,
-    rtol 1e-5) over the first 1 kyr at 32 nodes (~66 cells): relative 1e-3 at six recorded steps (measured
-    <= 3e-4)."""
-    spec = spec_of(mass, 32, 1e-6, run={"max_temperature_step_k": 1.0}, **sections)
+    rtol 1e-6) over the first 100 kyr (through the bulk rheological transition, ~1 kyr) at 32 nodes (~66 cells):
+    relative 1e-3 at eight log-spaced recorded steps (measured 1.2e-4, 2.1e-4, 2.2e-4)."""
+    spec = spec_of(mass, 32, 1e-4, run={"max_temperature_step_k": 1.0}, **sections)
     it = build_interior(spec)
     from meltzone import melting
     from meltzone.evolution.mixing_length import run
 
     curves = melting.node_curves(melting.get_model(spec.melting.model), it.P[it.mantle], "linear", 0.0)
     h = run(spec, it, curves)
-    idx = np.unique(np.linspace(1, h.n_steps, 6).astype(int))
-    temp = Reference(spec, it).solve(h.time[idx], rtol=1e-5)
+    assert h.time[-1] >= 0.99e5 * YR
+    idx = np.unique(np.geomspace(1, h.n_steps, 8).astype(int))
+    temp = Reference(spec, it).solve(h.time[idx], rtol=1e-6)
     assert np.max(np.abs(h.temperature[idx] - temp) / temp) <= 1e-3
 
 
@@ -98,21 +99,66 @@ def test_energy_closes(which):
 
 def test_grid_convergence_of_the_basal_layer():
     """Doubling the cells (256 -> 512 nodes, 1 M_E, 2 Gyr): the basal layer separates from the surface magma
-    ocean at the same time within 15% and freezes (last melt) within 5% (measured 9% and 2%); the last cell
-    above phi_c (the CMB cell) freezes within 25% (measured 13%). Tolerances are this model's measured state:
-    the separation scatters by ~+-4% between any two resolutions from 96 to 512 nodes (the front moves cell by
-    cell), and the CMB cell's freezing converges only from 256 nodes (12, 32, 67, 58 Myr at 64, 128, 256, 512);
-    other events converge less well (see the scheme's docstring)."""
+    ocean at the same time within 6%, reaches the same largest thickness within 3% and freezes (last melt) within
+    3% (measured 3.7%, 1.0% and 2.0%); the last cell above phi_c (the CMB cell) freezes within 20% (measured 13%).
+    Tolerances are this model's measured state, short of the 2% aimed at: from 512 to 1024 nodes the separation
+    moves by 16%, the thickness by 5.5%, the last melt by 0.9% (the front moves cell by cell), and the CMB cell's
+    freezing (66, 57, 49 Myr at 256, 512, 1024) has not converged."""
     out = []
     for nodes in (256, 512):
         r = evolve(spec_of(1.0, nodes, 2.0))
         ev = {e["kind"]: e["time_yr"] for e in r.summary()["events"] if e["layer"] != 0 or e["kind"] == "split"}
         basal = r.summary()["basal_layer"]
-        out.append((basal["start_yr"], ev["last-melt"], r.history.switch_times["rheological_switch"]))
-    (s1, l1, w1), (s2, l2, w2) = out
-    assert s2 == pytest.approx(s1, rel=0.15)
-    assert l2 == pytest.approx(l1, rel=0.05)
-    assert w2 == pytest.approx(w1, rel=0.25)
+        out.append((basal["start_yr"], basal["max_thickness_m"], ev["last-melt"],
+                    r.history.switch_times["rheological_switch"]))
+    (s1, d1, l1, w1), (s2, d2, l2, w2) = out
+    assert s2 == pytest.approx(s1, rel=0.06)
+    assert d2 == pytest.approx(d1, rel=0.03)
+    assert l2 == pytest.approx(l1, rel=0.03)
+    assert w2 == pytest.approx(w1, rel=0.20)
+
+
+def mass_above_end(history, share):
+    """First recorded time [s] at which less than ``share`` of the mantle mass is above phi_c."""
+    above = (history.melt_fraction > history.critical_melt_fraction) @ history.grid.mass / history.grid.mass.sum()
+    return history.time[int(np.argmax(above < share))]
+
+
+@pytest.mark.parametrize("mass, share, nodes", [(5.0, 0.01, (256, 512)), (1.0, 0.10, (128, 256))])
+def test_grid_convergence_of_the_mass_based_magma_ocean_end(mass, share, nodes):
+    """Doubling the cells moves the time at which less than ``share`` of the mantle mass is above phi_c by at
+    most 2% (the required grid convergence of event times; this model's choice). Measured at 64, 128, 256, 512,
+    1024 nodes: 5 M_E, 1%: 1.665, 1.720, 1.753, 1.773, 1.786 kyr; 1 M_E, 10%: 0.719, 0.719, 0.722, 0.724,
+    0.725 kyr. Not asserted: 1 M_E at 1% (0.13 kyr to 1.4 Myr): a shallow mushy layer of ~1-1.5% of the mantle
+    mass stays a few hundredths above phi_c for Myr, so a 1% threshold falls on that plateau (see the scheme's
+    docstring)."""
+    ends = [mass_above_end(evolve(spec_of(mass, n, 1e-5)).history, share) for n in nodes]
+    assert ends[1] == pytest.approx(ends[0], rel=0.02)
+
+
+def edges_above(history, t):
+    """Radii [m] at which the melt fraction crosses phi_c at the recorded step nearest after ``t`` (linear
+    between nodes)."""
+    i = int(np.searchsorted(history.time, t))
+    d = history.melt_fraction[i] - history.critical_melt_fraction
+    r = history.grid.radius
+    j = np.nonzero(np.sign(d[1:]) != np.sign(d[:-1]))[0]
+    return r[j] + (r[j + 1] - r[j]) * d[j] / (d[j] - d[j + 1])
+
+
+def test_grid_convergence_of_the_rheological_front():
+    """Doubling the cells (256 -> 512 nodes, 5 M_E) moves the edge of the region above phi_c (the rheological
+    front rising from the CMB) at 0.3, 0.6 and 1 kyr by less than one cell of the coarser grid (the required
+    grid convergence of layer edges; this model's choice). Measured: 4.8, 0.9, 6.1 km against a median cell of
+    18 km; the same at 64 -> 128 -> 256 nodes; 1 M_E likewise except once (600 yr, 128 -> 256 nodes: 38 km
+    against 23 km)."""
+    times = np.array([300.0, 600.0, 1000.0]) * YR
+    runs = [evolve(spec_of(5.0, n, 1.01e-6)).history for n in (256, 512)]
+    cell = float(np.median(np.diff(runs[0].grid.radius)))
+    for t in times:
+        coarse, fine = (edges_above(h, t) for h in runs)
+        assert coarse.size == fine.size == 1
+        assert abs(fine[0] - coarse[0]) < cell
 
 
 @pytest.mark.parametrize("mass, nodes", [(5.0, 256), (1.0, 64), (1.0, 128)])

@@ -5,8 +5,9 @@ Unknowns x = (E_core, h_0 .. h_{n-1}) (core first, so that the core-CMB-cell cou
 Residual of row 0: (E_c - E_c^old) / dt + A_0 F_0; of row i + 1 (cell i): M_i (h_i - h_i^old) / dt
 - A_i F_i + A_{i+1} F_{i+1} - H_i, with face fluxes F_j (positive upward) at the end of the step. The sum of
 the rows is the global energy balance, so the scheme conserves energy to the Newton tolerance (Patankar 1980,
-Numerical Heat Transfer and Fluid Flow, finite volumes; common practice). Jacobian entries by one-sided
-differences of each face flux in its two neighbours; the Thomas solve of :mod:`meltzone._core.tridiag`.
+Numerical Heat Transfer and Fluid Flow, finite volumes; common practice). Jacobian entries of the internal
+faces in closed form, of the outer faces by one-sided differences (the surface's through the implicit function
+theorem on its radiative balance); the Thomas solve of :mod:`meltzone._core.tridiag`.
 
 Step control: local error of backward Euler estimated from the linear predictor through the last two states,
 LTE ~ dt / (dt + dt_prev) |x - x_pred| (common practice for one-step implicit methods), in kelvin of sensible
@@ -26,11 +27,12 @@ from ._jit import njit
 from .layout import (C_W, F_A, F_DR, F_R, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP, M_MOBILE,
                      M_NEWTON_TOL, MH_ATM_CO2, MH_ATM_H2O, MH_DT, MH_E_STORED, MH_EC, MH_H, MH_LID, MH_MELT,
                      MH_NEWTON, MH_OUT, MH_PHI_TOP, MH_QC, MH_QS, MH_RIC, MH_T, MH_TC, MH_TS, MH_TU, MS_EPS, MS_H,
-                     MS_H_PREV, MS_N_H, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_ATMOSPHERE, P_CC, P_CM, P_H_MAX, P_K,
-                     P_LATENT, P_RADIUS, P_STAGNANT, P_T_END, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS,
+                     MS_H_PREV, MS_N_H, MS_N_NEWTON, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_ATMOSPHERE, P_CC, P_CM,
+                     P_H_MAX, P_K, P_LATENT, P_RADIUS, P_STAGNANT, P_T_END, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS,
                      STATUS_STEP_TOO_SMALL)
-from .mlt_physics import (adiabat_floor, cell_slope, cell_state, cmb_flux, interior_flux_jac,
-                          surface_flux)
+from .mlt_physics import (CW_DLN_ETA, CW_DTDH, CW_H_ACT, CW_LN_ETA, N_CW, adiabat_floor, cell_activation,
+                          cell_log_viscosity, cell_slope, cell_state, cmb_flux, interior_flux, surface_flux,
+                          surface_flux_slope)
 from .record import find_intervals
 from .physics import CORE, GREY_H2O_COEFF, GREY_H2O_EXPONENT, _invert, core_energy, inner_core, radiogenic_power
 from .layout import (MH_ABS, MH_DISSOLVED, MH_LOST, MH_OCEAN, MH_OLR, MH_P_CO2, MH_P_H2O, MS_LOST, P_G_SURF,
@@ -46,6 +48,13 @@ GROW_MAX, SHRINK_MIN = 2.0, 0.2
 CUT = 0.5
 #: relative end-time slack of the loop
 END_SLACK = 1e-14
+#: super-adiabatic excess [K] at which the Newton iteration takes the convective flux's slope where the excess
+#: is smaller, while its last update exceeded EXACT_BELOW_K [K] (exact slopes after that, so that the iteration
+#: ends quadratically; the residual always holds the true flux). Numerical choices of this model
+DH_JAC_K, EXACT_BELOW_K = 1.0e-3, 1.0e-2
+#: a step that took more Newton iterations than SLOW_NEWTON lets the next one be at most SLOW_FACTOR as long
+#: (common practice of implicit integrators; values of this model, measured: fewest iterations over 10 Gyr)
+SLOW_NEWTON, SLOW_FACTOR = 4, 0.8
 #: a boundary layer counts as convecting when it carries this much more than conduction across the half cell
 CONVECTING = 1.01
 
@@ -85,17 +94,15 @@ def _water_after(t, ts, vol, par):
 
 
 @njit
-def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core, flux, d_lo, d_hi):
+def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core, cells, flux, d_lo, d_hi, dh_jac):
     """Face fluxes F_j [W/m^2] at the state (E_c, h) and their derivatives in the unknown below (d_lo: E_c for
-    the CMB face, h_{j-1} otherwise) and above (d_hi: h_j). Returns T_s."""
+    the CMB face, h_{j-1} otherwise) and above (d_hi: h_j); ``cells`` (CW_* rows) is filled on the way;
+    ``dh_jac``: see :func:`meltzone._core.mlt_physics.interior_flux`. Returns T_s."""
     n = h.shape[0]
     # CMB face
     if has_core:
         dtc = FD_REL * tc + 1e-6
         flux[0] = cmb_flux(tc, temp[0], phi[0], faces, floors[0], par)
-        c_core = 0.0
-        for jj in range(core.shape[1]):
-            c_core += core[C_W, jj]
         f_t = cmb_flux(tc + dtc, temp[0], phi[0], faces, floors[0], par)
         # dE_c/dT_c from the stored-heat function (inner-core release included)
         slope = (core_energy(tc + dtc, grid, core, par) - core_energy(tc, grid, core, par)) / dtc
@@ -107,30 +114,28 @@ def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core,
         flux[0] = 0.0
         d_lo[0] = 0.0
         d_hi[0] = 0.0
-    sa = np.empty(2)
-    sb = np.empty(2)
-    sb[0], sb[1] = cell_slope(h[0], temp[0], grid, 0, law, par)
+    for i in range(n):
+        dt_dh, dphi_dh = cell_slope(h[i], temp[i], grid, i, law, par)
+        ln_eta, dln_dt, dln_dphi = cell_log_viscosity(temp[i], phi[i], cells[CW_H_ACT, i], floors[i], par)
+        cells[CW_DTDH, i] = dt_dh
+        cells[CW_LN_ETA, i] = ln_eta
+        cells[CW_DLN_ETA, i] = dln_dt * dt_dh + dln_dphi * dphi_dh
     for j in range(1, n):
-        a = j - 1
-        sa[0] = sb[0]
-        sa[1] = sb[1]
-        sb[0], sb[1] = cell_slope(h[j], temp[j], grid, j, law, par)
-        flux[j], d_lo[j], d_hi[j] = interior_flux_jac(h[a], h[j], temp[a], temp[j], phi[a], phi[j], sa, sb,
-                                                      faces, j, floors[j], par)
+        flux[j], d_lo[j], d_hi[j] = interior_flux(h[j - 1], h[j], temp[j - 1], temp[j], cells, j - 1, j, faces, j,
+                                                  dh_jac, par)
     top = n - 1
-    q, ts = surface_flux(temp[top], phi[top], faces, n, floors[n], rad, par)
+    q, ts = surface_flux(temp[top], phi[top], faces, n, floors[top], rad, par)
     dh = FD_REL * abs(h[top]) + 1e-3
     t1, p1 = cell_state(h[top] + dh, grid, top, law, par)
-    q1, _ = surface_flux(t1, p1, faces, n, floors[n], rad, par)
     flux[n] = q
-    d_lo[n] = (q1 - q) / dh
+    d_lo[n] = surface_flux_slope(ts, temp[top], phi[top], t1, p1, dh, faces, n, floors[top], rad, par)
     d_hi[n] = 0.0
     return ts
 
 
 @njit
 def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors, rad, has_core, temp, phi,
-           flux, d_lo, d_hi, lower, diag, upper, rhs, dx, work):
+           cells, flux, d_lo, d_hi, lower, diag, upper, rhs, dx, work):
     """Solve the backward-Euler step from x_old over dt in place of x (which holds the start guess); x[0] is
     the core's stored heat, x[1:] the cells' enthalpies. ``tc`` starts the core inversion. Returns
     (converged, iterations, T_c, T_s); on success temp, phi and flux hold the end state's."""
@@ -145,12 +150,19 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
     for jj in range(core.shape[1]):
         c_core += core[C_W, jj] * par[P_CC]
     ts = 0.0
+    big_prev = math.inf
     max_it = int(mset[M_MAX_NEWTON])
     for it in range(max_it):
         _states(h, grid, law, par, temp, phi)
+        for i in range(n):
+            if not temp[i] > 0.0:  # a diverging iterate: the caller shortens the step
+                return False, it + 1, tc, ts
         if has_core:
             tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
-        ts = fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core, flux, d_lo, d_hi)
+        # slopes at the onset of convection regularised while the updates are large (see interior_flux)
+        dh_jac = par[P_CM] * DH_JAC_K if big_prev > par[P_CM] * EXACT_BELOW_K else 0.0
+        ts = fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core, cells, flux, d_lo, d_hi,
+                    dh_jac)
         a0 = faces[F_A, 0]
         rhs[0] = (x[0] - x_old[0]) / dt + a0 * flux[0]
         diag[0] = 1.0 / dt + a0 * d_lo[0]
@@ -175,12 +187,17 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
             big = max(big, abs(dx[0]) / c_core * par[P_CM])
         if not (big < 1e300):
             return False, it + 1, tc, ts
-        if big <= tol_h:
+        # converged when the update, or the error left after it estimated from the contraction rate
+        # theta = |dx_k| / |dx_k-1| as theta / (1 - theta) |dx_k|, is below the tolerance (Hairer & Wanner 1996,
+        # Solving ODEs II, sec. IV.8; checked: no)
+        theta = big / big_prev if big_prev > 0.0 else 0.0
+        big_prev = big
+        if big <= tol_h or (it > 0 and theta < 0.5 and theta / (1.0 - theta) * big <= tol_h):
             _states(h, grid, law, par, temp, phi)
             if has_core:
                 tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
                 flux[0] = cmb_flux(tc, temp[0], phi[0], faces, floors[0], par)
-            flux[n], ts = surface_flux(temp[n - 1], phi[n - 1], faces, n, floors[n], rad, par)
+            flux[n], ts = surface_flux(temp[n - 1], phi[n - 1], faces, n, floors[n - 1], rad, par)
             return True, it + 1, tc, ts
     return False, max_it, tc, ts
 
@@ -251,7 +268,7 @@ def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, 
 
 
 @njit
-def _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps, lost):
+def _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps, lost, n_newton):
     state[MS_LOST] = lost
     state[MS_T] = t
     state[MS_H] = dt
@@ -261,6 +278,7 @@ def _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps, lost):
     state[MS_TC] = tc
     state[MS_OUT] = out
     state[MS_EPS] = eps
+    state[MS_N_NEWTON] = n_newton
 
 
 @njit
@@ -283,12 +301,15 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
     dx = np.empty(n + 1)
     work = np.empty(n + 1)
     x_old = np.empty(n + 1)
-    floors = np.zeros(n + 1)
+    floors = np.zeros(n)
+    cells = np.empty((N_CW, n))
+    cell_activation(grid, par, cells)
     t = state[MS_T]
     dt = state[MS_H]
     dt_prev = state[MS_H_PREV]
     n_h = int(state[MS_N_H])
     n_rej = int(state[MS_N_REJ])
+    n_newton = state[MS_N_NEWTON]
     tc = state[MS_TC]
     out = state[MS_OUT]
     lost = state[MS_LOST]
@@ -302,10 +323,11 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
     rad, vol = _surface_state(t, phi, grid, lost, par)
     if n_h == 0:
         if mobile:
-            adiabat_floor(x[1 + mid], mid, grid, faces, law, par, floors)
+            adiabat_floor(x[1 + mid], mid, grid, law, par, floors)
         if has_core:
             tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
-        ts = fluxes(tc, x[1:], temp, phi, grid, faces, core, par, law, floors, rad, has_core, flux, d_lo, d_hi)
+        ts = fluxes(tc, x[1:], temp, phi, grid, faces, core, par, law, floors, rad, has_core, cells, flux, d_lo,
+                    d_hi, 0.0)
         vap, ocean, dissolved, _ = _water_after(t, ts, vol, par)
         record(t, 0.0, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, rad,
                (vap, vol[1], ocean, dissolved, lost), out, 0, hist, temps, phis, 0)
@@ -313,24 +335,28 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
     steps = 0
     while t < t_end * (1.0 - END_SLACK):
         if n_h >= hist.shape[0]:
-            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost)
+            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost, n_newton)
             return STATUS_HISTORY_FULL
         if steps >= max_steps:
-            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost)
+            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost, n_newton)
             return STATUS_MAX_STEPS
         dt = min(dt, par[P_H_MAX], t_end - t)
         if dt < mset[M_MIN_STEP] and t_end - t > mset[M_MIN_STEP]:
-            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost)
+            _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost, n_newton)
             return STATUS_STEP_TOO_SMALL
         for i in range(n + 1):
             x_old[i] = x[i]
         _states(x_old[1:], grid, law, par, temp_old, phi_old)
         rad, vol = _surface_state(t, phi_old, grid, lost, par)
         if mobile:
-            adiabat_floor(x_old[1 + mid], mid, grid, faces, law, par, floors)
+            adiabat_floor(x_old[1 + mid], mid, grid, law, par, floors)
+        if dt_prev > 0.0:  # Newton starts from the linear predictor (the error estimate's)
+            for i in range(n + 1):
+                x[i] = x_old[i] + dt * (x_old[i] - x_prev[i]) / dt_prev
         ok, its, tc_new, ts = newton(t + dt, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors,
-                                     rad, has_core, temp, phi, flux, d_lo, d_hi, lower, diag, upper, rhs, dx,
-                                     work)
+                                     rad, has_core, temp, phi, cells, flux, d_lo, d_hi, lower, diag, upper, rhs,
+                                     dx, work)
+        n_newton += its
         err = 0.0
         big_t = 0.0
         big_phi = 0.0
@@ -365,6 +391,8 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
                 factor = min(factor, 0.9 * mset[M_DT_CELL] / big_t)
             if big_phi > 0.0:
                 factor = min(factor, 0.9 * mset[M_DPHI] / big_phi)
+            if its > SLOW_NEWTON:
+                factor = min(factor, SLOW_FACTOR)
             dt *= max(factor, SHRINK_MIN)
         else:
             n_rej += 1
@@ -379,7 +407,7 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
                 if big_phi > mset[M_DPHI]:
                     factor = min(factor, 0.9 * mset[M_DPHI] / big_phi)
             dt *= max(factor, SHRINK_MIN)
-    _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost)
+    _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, rad[1], lost, n_newton)
     return STATUS_DONE
 
 

@@ -207,6 +207,8 @@ MLT_STATE = ("time", "heat_out_minus_radiogenic", "step_size", "previous_step_si
 MS_T, MS_OUT, MS_H, MS_H_PREV, MS_N_H, MS_N_REJ, MS_TC, MS_EPS = range(N_MS := len(MLT_STATE))
 MLT_STATE += ("water_lost",)
 MS_LOST, = range(N_MS, N_MS := len(MLT_STATE))
+MLT_STATE += ("newton_iterations",)
+MS_N_NEWTON, = range(N_MS, N_MS := len(MLT_STATE))
 
 REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID, REGIME_STAGNANT_LID = range(3)
 STATUS_DONE, STATUS_HISTORY_FULL, STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL = range(5)

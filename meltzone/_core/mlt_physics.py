@@ -11,10 +11,10 @@ import math
 
 from ..melting import LAW_LINEAR
 from ._jit import njit
-from .layout import (F_DR, F_F, F_G, F_L, F_P, F_RATIO, F_RHO, G_AUX1, G_AUX2, G_F, G_TLIQ, G_TSOL, P_ALPHA, P_CM,
+from .layout import (F_DR, F_G, F_L, F_P, F_RATIO, F_RHO, G_AUX1, G_AUX2, G_F, G_P, G_TLIQ, G_TSOL, P_ALPHA, P_CM,
                      P_K, P_KAPPA, P_LATENT, P_RA_CR)
 from .melt import melt_fraction
-from .physics import viscosity
+from .physics import activation_enthalpy, log_viscosity_grad, viscosity
 from .radiation import net_radiation
 from .roots import illinois
 
@@ -22,6 +22,9 @@ from .roots import illinois
 T_XTOL = 1.0e-11
 #: the super-adiabatic temperature difference below which a boundary layer carries no heat [K]
 DT_MIN = 1.0e-12
+#: rows of the per-cell work array: dT/dh [K kg/J], ln eta [ln Pa s], d ln eta / dh [kg/J], activation enthalpy
+#: [J/mol] (constant)
+CW_DTDH, CW_LN_ETA, CW_DLN_ETA, CW_H_ACT = range(N_CW := 4)
 
 
 @njit
@@ -62,48 +65,20 @@ def cell_state(h, grid, i, law, par):
 
 
 @njit
-def face_viscosity(t, p, phi, t_floor, par):
-    """Viscosity at a face [Pa s] (the boundary-layer scheme's law); in mobile-lid mode the temperature is
-    raised to ``t_floor`` (the interior's adiabat at the face), so that the cold top stays as mobile as the
-    interior (0 in stagnant-lid mode: the lid emerges from the viscosity)."""
-    return viscosity(max(t, t_floor), p, phi, par)
+def cell_activation(grid, par, cells):
+    """Fill the row CW_H_ACT of ``cells`` with each cell's activation enthalpy [J/mol] at its pressure."""
+    for i in range(grid.shape[1]):
+        cells[CW_H_ACT, i] = activation_enthalpy(grid[G_P, i], par)
 
 
 @njit
-def face_eta(ta, tb, phia, phib, p, t_floor, par):
-    """Viscosity [Pa s] at an internal face: the geometric mean of the two cells' viscosities (each at its own
-    T and phi, the face's pressure). This model's choice, as for any coefficient that varies over orders of
-    magnitude between neighbouring volumes (Patankar 1980, Numerical Heat Transfer and Fluid Flow, ch. 4,
-    interface coefficients from the cells' own values rather than from interpolated properties; from memory). Unlike the
-    viscosity at the cells' mean melt fraction it does not depend on a cell whose melt fraction sits at phi_c
-    (the blend's slope is zero there), so a top cell that reaches phi_c does not shut off its own supply."""
-    eta_a = face_viscosity(ta, p, phia, t_floor, par)
-    eta_b = face_viscosity(tb, p, phib, t_floor, par)
-    return math.sqrt(eta_a) * math.sqrt(eta_b)  # no overflow of the product
-
-
-@njit
-def interior_flux(ha, hb, ta, tb, phia, phib, faces, j, t_floor, par):
-    """Heat flux [W/m^2] up through internal face j between cell a = j-1 (below) and b = j (above).
-
-    Conduction -k (T_b - T_a) / dr plus mixing-length convection rho kappa_h (h_ad - h_b) / dr where
-    h_ad = h_a + c_p T_a (f_b / f_a - 1) is the enthalpy of cell a's parcel taken adiabatically to b (two-phase
-    adiabat c_p dT + L dphi = alpha T dP / rho, with alpha / (rho c_p) dP = d ln f of the interior's adiabat).
-    Super-adiabatic gradient s = (h_ad - h_b) / (c_p dr) [K/m]; kappa_h = min(alpha g l^4 s / (18 nu),
-    (alpha g l^4 s / 16)^(1/2)) (viscous and inertial mixing length, Abe 1997; Bower et al. 2018)."""
-    dr = faces[F_DR, j]
-    c = par[P_CM]
-    q = -par[P_K] * (tb - ta) / dr
-    dh = ha + c * ta * (faces[F_RATIO, j] - 1.0) - hb
-    el = faces[F_L, j]
-    if dh > 0.0 and el > 0.0:
-        s = dh / (c * dr)
-        eta = face_eta(ta, tb, phia, phib, faces[F_P, j], t_floor, par)
-        base = par[P_ALPHA] * faces[F_G, j] * el ** 4 * s
-        k_visc = base * faces[F_RHO, j] / (18.0 * eta)
-        k_inert = math.sqrt(base / 16.0)
-        q += faces[F_RHO, j] * min(k_visc, k_inert) * dh / dr
-    return q
+def cell_log_viscosity(t, phi, h_act, t_floor, par):
+    """(ln eta, d ln eta / dT, d ln eta / dphi) of a cell [Pa s] at its own T, phi and pressure (activation
+    enthalpy h_act [J/mol]; the boundary-layer scheme's law, :func:`meltzone._core.physics.log_viscosity_grad`);
+    in mobile-lid mode the temperature is raised to ``t_floor`` (the interior's adiabat at the cell), so that the
+    cold top stays as mobile as the interior (0 in stagnant-lid mode: the lid emerges from the viscosity)."""
+    ln_eta, d_t, d_phi = log_viscosity_grad(max(t, t_floor), h_act, phi, par)
+    return ln_eta, d_t if t >= t_floor else 0.0, d_phi
 
 
 @njit
@@ -130,41 +105,56 @@ def cell_slope(h, t, grid, i, law, par):
 
 
 @njit
-def interior_flux_jac(ha, hb, ta, tb, phia, phib, sa, sb, faces, j, t_floor, par):
-    """(F, dF/dh_a, dF/dh_b) of :func:`interior_flux`; sa, sb = (dT/dh, dphi/dh) of the two cells. The
-    convective part is differentiated in closed form (F_visc ~ dh^2 / eta, F_inert ~ dh^(3/2)); the viscosity's
-    dependence on T and phi by a difference of ln eta over 1 J/kg."""
+def interior_flux(ha, hb, ta, tb, cells, a, b, faces, j, dh_jac, par):
+    """(F, dF/dh_a, dF/dh_b): heat flux [W/m^2] up through internal face j between cell a = j-1 (below) and
+    b = j (above), and its derivatives in the two cells' enthalpies. ``cells`` holds per cell the rows CW_*
+    (dT/dh, ln eta and d ln eta / dh); ``dh_jac`` [J/kg]: the least enthalpy excess at which the
+    slopes are taken (0: exact).
+
+    Conduction -k (T_b - T_a) / dr plus mixing-length convection rho kappa_h (h_ad - h_b) / dr where
+    h_ad = h_a + c_p T_a (f_b / f_a - 1) is the enthalpy of cell a's parcel taken adiabatically to b (two-phase
+    adiabat c_p dT + L dphi = alpha T dP / rho, with alpha / (rho c_p) dP = d ln f of the interior's adiabat).
+    Super-adiabatic gradient s = (h_ad - h_b) / (c_p dr) [K/m]; kappa_h = min(alpha g l^4 s / (18 nu),
+    (alpha g l^4 s / 16)^(1/2)) (viscous and inertial mixing length, Abe 1997; Bower et al. 2018), nu = eta / rho
+    with eta the geometric mean of the two cells' viscosities, each at its own T, phi and pressure. This
+    model's choice, as for any coefficient that varies over orders of magnitude between neighbouring volumes
+    (Patankar 1980, Numerical Heat Transfer and Fluid Flow, ch. 4, interface coefficients from the cells' own
+    values rather than from interpolated properties; from memory). Unlike the viscosity at the cells' mean melt
+    fraction it does not depend on a cell whose melt fraction sits at phi_c (the blend's slope is zero there),
+    so a top cell that reaches phi_c does not shut off its own supply. The derivatives are in closed form
+    (F_visc ~ dh^2 / eta, F_inert ~ dh^(3/2), ln eta = (ln eta_a + ln eta_b) / 2)."""
     dr = faces[F_DR, j]
     c = par[P_CM]
     kc = par[P_K] / dr
     q = -kc * (tb - ta)
-    d_a = kc * sa[0]
-    d_b = -kc * sb[0]
+    d_a = kc * cells[CW_DTDH, a]
+    d_b = -kc * cells[CW_DTDH, b]
     ratio = faces[F_RATIO, j]
     dh = ha + c * ta * (ratio - 1.0) - hb
     el = faces[F_L, j]
-    if dh > 0.0 and el > 0.0:
+    # the Jacobian's slopes are taken at least at dh_jac [J/kg] (0: exact slopes): the convective flux and its
+    # slope vanish at the onset dh = 0, and a Newton step linearised there switches convection on one cell per
+    # iteration
+    if el > 0.0 and dh > -dh_jac:
         rho = faces[F_RHO, j]
-        pf = faces[F_P, j]
-        eta = face_eta(ta, tb, phia, phib, pf, t_floor, par)
+        eta = math.exp(0.5 * (cells[CW_LN_ETA, a] + cells[CW_LN_ETA, b]))
         geo = par[P_ALPHA] * faces[F_G, j] * el ** 4 / (c * dr)  # alpha g l^4 s = geo dh
-        k_visc = geo * dh * rho / (18.0 * eta)
-        k_inert = math.sqrt(geo * dh / 16.0)
-        ddh_a = 1.0 + c * (ratio - 1.0) * sa[0]
+        if dh > 0.0:
+            q += rho * min(geo * dh * rho / (18.0 * eta), math.sqrt(geo * dh / 16.0)) * dh / dr
+        dh_s = max(dh, dh_jac)
+        k_visc = geo * dh_s * rho / (18.0 * eta)
+        k_inert = math.sqrt(geo * dh_s / 16.0)
+        ddh_a = 1.0 + c * (ratio - 1.0) * cells[CW_DTDH, a]
         if k_visc < k_inert:
-            f = rho * k_visc * dh / dr
-            df_ddh = 2.0 * f / dh
-            # d ln eta / dh of each side (1 J/kg)
-            la = math.log(face_eta(ta + sa[0], tb, phia + sa[1], phib, pf, t_floor, par) / eta)
-            lb = math.log(face_eta(ta, tb + sb[0], phia, phib + sb[1], pf, t_floor, par) / eta)
-            d_a += df_ddh * ddh_a - f * la
-            d_b += -df_ddh - f * lb
+            f_s = rho * k_visc * dh_s / dr
+            df_ddh = 2.0 * f_s / dh_s
+            d_a += df_ddh * ddh_a - 0.5 * f_s * cells[CW_DLN_ETA, a]
+            d_b += -df_ddh - 0.5 * f_s * cells[CW_DLN_ETA, b]
         else:
-            f = rho * k_inert * dh / dr
-            df_ddh = 1.5 * f / dh
+            f_s = rho * k_inert * dh_s / dr
+            df_ddh = 1.5 * f_s / dh_s
             d_a += df_ddh * ddh_a
             d_b -= df_ddh
-        q += f
     return q, d_a, d_b
 
 
@@ -177,7 +167,7 @@ def boundary_flux(dt, t_visc, phi, faces, j, t_floor, par):
     half = faces[F_DR, j]
     if abs(dt) <= DT_MIN:
         return par[P_K] * dt / half
-    eta = face_viscosity(t_visc, faces[F_P, j], phi, t_floor, par)
+    eta = viscosity(max(t_visc, t_floor), faces[F_P, j], phi, par)
     delta = (par[P_KAPPA] * eta * par[P_RA_CR] / (par[P_ALPHA] * faces[F_RHO, j] * faces[F_G, j] * abs(dt))) \
         ** (1.0 / 3.0)
     return par[P_K] * dt / min(delta, half)
@@ -203,6 +193,21 @@ def surface_flux(t_top, phi_top, faces, j, t_floor, rad, par):
 
 
 @njit
+def surface_flux_slope(ts, t_top, phi_top, t1, phi1, dh, faces, j, t_floor, rad, par):
+    """dq/dh [W/m^2 / (J/kg)] of :func:`surface_flux` in the top cell's enthalpy, without a second root solve:
+    dq/dh = dR/dT_s dT_s/dh with dT_s/dh = -(dg/dh) / (dg/dT_s) on the balance g(T_s, h) = 0 (implicit function
+    theorem; R: the net radiation of ``rad``, 4 eps sigma T_s^3 for a grey body); dg/dh by a difference to
+    (t1, phi1), the state at h + dh, dg/dT_s and dR/dT_s by differences in T_s."""
+    q0 = boundary_flux(t_top - ts, t_top, phi_top, faces, j, t_floor, par)
+    dg_dh = (boundary_flux(t1 - ts, t1, phi1, faces, j, t_floor, par) - q0) / dh
+    e = 1e-7 * abs(t_top - ts) + 1e-7
+    e_r = 1e-7 * ts + 1e-7
+    d_rad = (net_radiation(ts + e_r, rad) - net_radiation(ts - e_r, rad)) / (2.0 * e_r)
+    dg_dts = -(boundary_flux(t_top - ts + e, t_top, phi_top, faces, j, t_floor, par) - q0) / e - d_rad
+    return -d_rad * dg_dh / dg_dts
+
+
+@njit
 def cmb_flux(tc, t0, phi0, faces, t_floor, par):
     """Flux [W/m^2] out of the core into the lowest cell: boundary layer on the temperature difference
     T_c - T_0, viscosity at their mean (the boundary-layer scheme's lower layer)."""
@@ -210,9 +215,9 @@ def cmb_flux(tc, t0, phi0, faces, t_floor, par):
 
 
 @njit
-def adiabat_floor(h_mid, mid, grid, faces, law, par, floors):
-    """Temperature floors [K] of the face viscosities in mobile-lid mode: the adiabat through cell ``mid``,
-    T_mid f(r_face) / f(r_mid)."""
+def adiabat_floor(h_mid, mid, grid, law, par, floors):
+    """Temperature floors [K] of the cell viscosities in mobile-lid mode: the adiabat through cell ``mid``,
+    T_mid f(r_i) / f(r_mid)."""
     t_mid, _ = cell_state(h_mid, grid, mid, law, par)
-    for j in range(floors.shape[0]):
-        floors[j] = t_mid * faces[F_F, j] / grid[G_F, mid]
+    for i in range(floors.shape[0]):
+        floors[i] = t_mid * grid[G_F, i] / grid[G_F, mid]

@@ -78,16 +78,40 @@ def activation_enthalpy(p, par):
 
 
 @njit
-def viscosity(t, p, phi, par):
-    """Effective viscosity [Pa s] at temperature t [K], pressure p [Pa] and melt fraction phi."""
-    solid = math.log(par[P_A_VISC]) + activation_enthalpy(p, par) / (GAS_CONSTANT * t) - par[P_MELT_WEAK] * phi
-    w = smoothstep((phi - par[P_PHI_C]) / par[P_BLEND])
+def log_viscosity_grad(t, h_act, phi, par):
+    """(ln eta, d ln eta / dT [1/K], d ln eta / dphi) of the effective viscosity [Pa s] at temperature t [K],
+    activation enthalpy h_act [J/mol] (of the pressure: :func:`activation_enthalpy`) and melt fraction phi:
+    Arrhenius solid with melt weakening, blended across the rheological transition (smoothstep in ln eta over
+    P_BLEND above phi_c) into the Einstein-Roscoe suspension; ln eta at most 700 (derivatives 0 there)."""
+    solid = math.log(par[P_A_VISC]) + h_act / (GAS_CONSTANT * t) - par[P_MELT_WEAK] * phi
+    ds_dt = -h_act / (GAS_CONSTANT * t * t)
+    xb = (phi - par[P_PHI_C]) / par[P_BLEND]
+    w = smoothstep(xb)
     if w <= 0.0:
-        return math.exp(min(solid, 700.0))
+        if solid > 700.0:
+            return 700.0, 0.0, 0.0
+        return solid, ds_dt, -par[P_MELT_WEAK]
     phi_m = 1.0 - par[P_PHI_C]  # maximum packing of crystals
     x = min((1.0 - phi) / phi_m, 0.999)
     susp = math.log(par[P_ETA_LIQ]) - 2.5 * math.log(1.0 - x)
-    return math.exp(min(w * susp + (1.0 - w) * solid, 700.0))
+    value = w * susp + (1.0 - w) * solid
+    if value > 700.0:
+        return 700.0, 0.0, 0.0
+    dw = 6.0 * xb * (1.0 - xb) / par[P_BLEND] if xb < 1.0 else 0.0
+    dsusp = -2.5 / (phi_m * (1.0 - x)) if (1.0 - phi) / phi_m < 0.999 else 0.0
+    return value, (1.0 - w) * ds_dt, dw * (susp - solid) + w * dsusp - (1.0 - w) * par[P_MELT_WEAK]
+
+
+@njit
+def log_viscosity(t, h_act, phi, par):
+    """ln of the effective viscosity [Pa s] (:func:`log_viscosity_grad` without the derivatives)."""
+    return log_viscosity_grad(t, h_act, phi, par)[0]
+
+
+@njit
+def viscosity(t, p, phi, par):
+    """Effective viscosity [Pa s] at temperature t [K], pressure p [Pa] and melt fraction phi."""
+    return math.exp(log_viscosity(t, activation_enthalpy(p, par), phi, par))
 
 
 @njit
