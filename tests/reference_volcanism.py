@@ -37,7 +37,8 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
       T_u f - L phi / c;
     * production: stagnant 4 pi R^2 u sum(m phi) / V_mantle (Morschhauser et al. 2011); mobile
       2 u L_ridge sum(m phi / (4 pi r^2)), L_ridge = factor x 2 pi R (Kite et al. 2009);
-    * heat: per kg of melt L + c (f_e (T - T_s) + (1 - f_e) max(T - T_l, 0));
+    * heat: per kg of melt L + c (f_e (T - T_s) + (1 - f_e) max(T - T_l, 0)) under a stagnant lid; none under a
+      mobile lid (the plate's boundary-layer flux cools the whole upwelled column from T_u, melt included);
     * volatiles: batch melting, X_melt = X / (D + phi (1 - D)), X = X0 - extracted / mantle mass;
     * crust: production / (rho_cr 4 pi (R - D_cr)^2), times smoothstep((cap - D_cr) / (0.05 cap)) with
       cap = min(lid, P_ecl / (rho_cr g)) under a stagnant lid, plus min(cap - D_cr, 0) u / d; under a mobile
@@ -104,5 +105,5 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
         rate = grow * s * s * (3.0 - 2.0 * s) + min(cap - crust, 0.0) * u / d
     else:
         rate = grow - crust * u / depth
-    return {"production": prod, "heat": k * sums["heat"], "crust_rate": rate, "h2o": k * sums["h2o"],
+    return {"production": prod, "heat": k * sums["heat"] if stagnant else 0.0, "crust_rate": rate, "h2o": k * sums["h2o"],
             "co2": k * sums["co2"], "velocity": u}
