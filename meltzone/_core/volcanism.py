@@ -33,7 +33,9 @@ def convective_velocity(d, delta, par):
     (Turcotte & Schubert, Geodynamics, checked); equated with k dT / delta it gives u above. With the
     boundary-layer law delta = d (Ra_cr / Ra)^beta this is u0 (Ra / Ra_cr)^(2 beta) with u0 = pi kappa / (4 d),
     the form of the convective velocity of Morschhauser, Grott & Breuer 2011, Icarus 212:541 (their u0 is a
-    constant, ~2e-12 m/s for Mars, from memory; the same order as pi kappa / (4 d) = 5e-13 m/s there)."""
+    constant, ~2e-12 m/s for Mars, from memory; the same order as pi kappa / (4 d) = 5e-13 m/s there).
+    kappa is the configured one, as k in the flux k dT / delta it is equated with (the density-dependent
+    properties enter only the layer's Rayleigh number, at its base)."""
     return 0.25 * math.pi * par[P_KAPPA] * d / (delta * delta)
 
 
