@@ -430,9 +430,20 @@ def _hermite(t, t0, t1, y0, y1, d0, d1):
     return h00 * y0 + h10 * h * d0 + h01 * y1 + h11 * h * d1
 
 
+def _quadratic(t, t0, t1, y0, y1, d0):
+    """The quadratic through (t0, y0) and (t1, y1) with slope d0 at t0."""
+    h = t1 - t0
+    s = (t - t0) / h
+    return y0 + d0 * h * s + (y1 - y0 - d0 * h) * s * s
+
+
 class Evaluator:
     """The state inside a step: T_u, T_c and the lid by cubic Hermite interpolation (values and rates at both
-    ends of the step), then the core's diagnostics and profile at that state and time."""
+    ends of the step), then the core's diagnostics and profile at that state and time. The step that ends on the
+    rheological switch is the exception: the rates recorded at its end are the solid law's, after the switch,
+    where the heat flow jumps (their sign can flip), so inside it the state is the quadratic with the values at
+    both ends and the rate at its start (measured at 5 M_E, beta 0.1, a 10: the cubic dipped below the end
+    value and put the magma ocean's end 0.9% early, 1.810 instead of 1.826 Myr)."""
 
     def __init__(self, history: History):
         d = history.scheme_data
@@ -464,7 +475,10 @@ class Evaluator:
         if len(times) == 1:
             vals = [float(v[0]) for v, _ in self.cols]
         else:
-            vals = [_hermite(t, times[s - 1], times[s], v[s - 1], v[s], d[s - 1], d[s]) for v, d in self.cols]
+            if times[s] == self.t_switch:  # the step the integrator landed on the switch (class docstring)
+                vals = [_quadratic(t, times[s - 1], times[s], v[s - 1], v[s], d[s - 1]) for v, d in self.cols]
+            else:
+                vals = [_hermite(t, times[s - 1], times[s], v[s - 1], v[s], d[s - 1], d[s]) for v, d in self.cols]
         if not self.stagnant:
             vals[2] = 0.0
         return float(vals[0]), float(vals[1]), float(max(vals[2], 0.0))
