@@ -62,7 +62,8 @@ def initial_keys(key) -> dict:
             "rheological-transition", "", "the core's starting temperature when core_temperature_k = 0: "
             "'rheological-transition', the temperature at which the mantle at the CMB holds the critical melt "
             "fraction (or the starting mantle adiabat there, if colder) plus initial_cmb_jump_k; or 'adiabat', the "
-            "starting mantle adiabat at the CMB plus initial_cmb_jump_k (the rule before this key existed)",
+            "starting mantle adiabat at the CMB plus initial_cmb_jump_k (the rule before this key existed); either is "
+            "then raised, if needed, to 50 K above the core's melting curve at every core node (a molten start)",
             choices=("rheological-transition", "adiabat"),
             source="bottom-up crystallisation of the magma ocean, Monteux, Andrault & Samuel 2016, EPSL 448:140; "
                    "start after magma-ocean solidification with a superheated core, Noack & Lasbleis 2020, A&A "

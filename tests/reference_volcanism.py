@@ -41,7 +41,8 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
       T_u f - L phi / c;
     * production: stagnant 4 pi R^2 u sum(m phi) / V_mantle (Morschhauser et al. 2011); mobile
       2 u L_ridge sum(m phi / (4 pi r^2)), L_ridge = factor x 2 pi R (Kite et al. 2009);
-    * heat: per kg of melt L + c (f_e (T - T_s) + (1 - f_e) max(T - T_l, 0));
+    * heat: per kg of melt L + c (f_e (T - T_s) + (1 - f_e) max(T - T_l, 0)) under a stagnant lid; none under a
+      mobile lid (the plate's boundary-layer flux cools the whole upwelled column from T_u, melt included);
     * depleted source: phi -> (phi - F) / (1 - F), F = crust mass / mantle mass (melt_depletion on);
     * volatiles: batch melting, X_melt = X / (D + phi (1 - D)), X = X0 - extracted / mantle mass; the erupted
       share outgasses max(X_melt - S, 0) with S = 6.8e-8 P^0.7 (H2O), 4.4e-12 P (CO2), P = M_surface g / (4 pi
@@ -131,7 +132,7 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
     else:
         keep, loss = 1.0, -crust * u / depth
     rate = grow * keep + loss
-    out = {"production": prod, "heat": k * sums["heat"], "crust_rate": rate, "h2o": k * sums["h2o"],
+    out = {"production": prod, "heat": k * sums["heat"] if stagnant else 0.0, "crust_rate": rate, "h2o": k * sums["h2o"],
            "co2": k * sums["co2"], "velocity": u, "h2o_outgassing": fe * k * sums["og_h2o"],
            "co2_outgassing": fe * k * sums["og_co2"], "share_rate": 0.0, "crust_heat": 0.0,
            "crust_heat_flux": 0.0, "crust_lid_rate": 0.0}

@@ -36,22 +36,31 @@ def _inputs(mass_earth):
 def test_default_start_is_molten_in_the_core():
     """The default start (initial.core_temperature_k = 0) is molten in the core as in the mantle: the core
     adiabat T_c f(r) lies >= 50 K (the mantle's margin over its liquidus) above the alloy's melting curve at
-    every core node (tolerance 1e-9 K). At 15 M_E the mantle adiabat + 200 K alone would start with an inner
-    core (measured: 251 K below the curve at the centre); at 1 M_E the floor does not bind (the start is the
-    mantle adiabat at the CMB + 200 K, as before)."""
+    every core node (tolerance 1e-9 K). The floor is applied after the rule of initial.core_start (default: the
+    CMB node's rheological transition, linear law T_sol + phi_c (T_liq - T_sol), + 200 K; module docstring of
+    meltzone.evolution.core_start): at 1 M_E the rule binds (T_c equals it, 1e-9 relative; measured 4611 K against a
+    floor of 4345 K); at 15 M_E the rule would start with an inner core (measured: 16975 K, below the floor of
+    18534 K; the adiabat rule's 18331 K too), so T_c is the floor, max over the nodes of T_m / f + 50 K (1e-12
+    relative; the node itself is then 50 f >= 50 K above its curve)."""
     from meltzone._core import layout as k
     from meltzone.evolution.boundary_layer import initial_temperatures
 
     for mass in (1.0, 15.0):
         spec, inputs = _inputs(mass)
         tu, tc = initial_temperatures(spec, inputs)
-        core = inputs.core
-        assert np.min(tc * core[k.C_F] - core[k.C_TMELT]) >= 50.0 - 1e-9
-        adiabat_start = tu * inputs.grid[k.G_F, 0] + spec.initial.initial_cmb_jump_k
+        core, g = inputs.core, inputs.grid
+        margin = np.min(tc * core[k.C_F] - core[k.C_TMELT])
+        assert margin >= 50.0 - 1e-9
+        phi_c = spec.convection.critical_melt_fraction
+        t_phi_c = g[k.G_TSOL, 0] + phi_c * (g[k.G_TLIQ, 0] - g[k.G_TSOL, 0])
+        rule = min(tu * g[k.G_F, 0], t_phi_c) + spec.initial.initial_cmb_jump_k
+        rule_margin = np.min(rule * core[k.C_F] - core[k.C_TMELT])
         if mass == 1.0:
-            assert tc == adiabat_start
+            assert rule_margin > 50.0
+            assert tc == pytest.approx(rule, rel=1e-9)
         else:
-            assert np.min(adiabat_start * core[k.C_F] - core[k.C_TMELT]) < 0.0 < tc - adiabat_start
+            assert rule_margin < 0.0 < tc - rule
+            assert tc == pytest.approx(np.max(core[k.C_TMELT] / core[k.C_F]) + 50.0, rel=1e-12)
 
 
 def test_no_inner_core_at_the_start_of_a_default_run():

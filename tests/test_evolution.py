@@ -107,13 +107,17 @@ def test_weak_scaling_earth_today(earth_weak):
     """Present Earth: surface heat flow 46 +- 3 TW (Jaupart et al. 2007, Treatise on Geophysics); potential
     temperature 1280-1400 C (Herzberg et al. 2007, 2010); CMB heat flow 5-15 TW (Lay, Hernlund & Buffett
     2008); bulk Urey ratio ~0.35 (Korenaga 2008, checked), accepted 0.2-0.5 (this project's tolerance).
-    Measured with the defaults (peridotite curves, density-dependent properties, viscosity at the upper boundary
-    layer's base): 43.7 TW, 1320 C, 7.3 TW, 0.45 (44.3 TW, 1334 C, 5.8 TW, 0.45 before them)."""
+    Jaupart's 46 TW is the planet's whole loss, so it is compared with every path the model has: the surface heat
+    flow plus volcanic_heat_flow (0 under this mobile lid: the ridges' melt heat is inside the plate's flux), and
+    the Urey ratio divides by the same total. Measured with the defaults (peridotite curves, density-dependent
+    properties, viscosity at the upper boundary layer's base, volcanism on): 43.7 TW, 1320 C, 7.2 TW, 0.45 (44.3 TW,
+    1334 C, 5.8 TW, 0.45 before the mantle properties)."""
     h = earth_weak.history
-    assert 43e12 <= h["surface_heat_flow"][-1] <= 49e12
+    heat_out = h["surface_heat_flow"][-1] + h["volcanic_heat_flow"][-1]
+    assert 43e12 <= heat_out <= 49e12
     assert 1280.0 <= h["upper_temperature"][-1] - 273.15 <= 1400.0
     assert 5e12 <= h["cmb_heat_flow"][-1] <= 15e12
-    assert 0.2 <= h["radiogenic_power"][-1] / h["surface_heat_flow"][-1] <= 0.5
+    assert 0.2 <= h["radiogenic_power"][-1] / heat_out <= 0.5
 
 
 def test_weak_scaling_stage_never_turns_back_into_a_magma_ocean(earth_weak):
@@ -356,12 +360,15 @@ def test_evolve_accepts_dict_and_toml(tmp_path):
 
 
 def test_recorded_budget_balances(earth):
-    """Independent of the kernel's own integral: the trapezoid integral of the recorded (surface heat flow -
-    radiogenic power) over the history equals the drop of the stored heat recomputed from the recorded
-    temperatures, to the trapezoid rule's accuracy on these steps (1%)."""
+    """Independent of the kernel's own integral: the trapezoid integral of the recorded heat out less the radiogenic
+    power over the history equals the drop of the stored heat recomputed from the recorded temperatures, to the
+    trapezoid rule's accuracy on these steps (1%). The heat out is every path: the surface heat flow plus the heat
+    the extracted melt takes out of the mantle (volcanic_heat_flow, not in surface_heat_flow; volcanism is on by
+    default: without it the sum misses 2.6% of the drop, with it it closes to 7e-4, measured)."""
     h = earth.history
-    out = np.concatenate([[0.0], np.cumsum(0.5 * np.diff(h["time"]) * (
-        (h["surface_heat_flow"] - h["radiogenic_power"])[1:] + (h["surface_heat_flow"] - h["radiogenic_power"])[:-1]))])
+    heat_out = h["surface_heat_flow"] + h["volcanic_heat_flow"]
+    net = heat_out - h["radiogenic_power"]
+    out = np.concatenate([[0.0], np.cumsum(0.5 * np.diff(h["time"]) * (net[1:] + net[:-1]))])
     drop = h["stored_energy"][0] - h["stored_energy"]
     assert out[-1] == pytest.approx(drop[-1], rel=0.01)
     assert np.max(np.abs(out - drop)) <= 0.01 * np.max(np.abs(drop))

@@ -112,6 +112,7 @@ MUST_FAIL = {
     "schema unknown": lambda p: _set_attr(p, "schema_version", 999),
     "history removed": lambda p: _del(p, "history"),
     "history emptied": lambda p: [_replace(p, f"history/{n}", _empty) for n in ("time", "upper_temperature")],
+    "mantle masses emptied": lambda p: _replace(p, "history/mantle_mass", _empty),
     "history time NaN": lambda p: _replace(p, "history/time", _nan),
     "temperature all NaN": lambda p: _replace(p, "history/upper_temperature", _nan),
     "events kind wrong length": lambda p: _replace(p, "events/kind", lambda old: np.array(

@@ -12,6 +12,7 @@ import numpy as np
 import pytest
 
 from meltzone import layers, magma_ocean
+from meltzone.config import PlanetSpec
 from meltzone.constants import YEAR
 from meltzone.evolution.contract import INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid
 
@@ -53,7 +54,7 @@ def _result(bulk_phi, top_phi):
     interior = SimpleNamespace(r=np.concatenate([[0.0], grid.radius]), P=np.concatenate([[2e11], grid.pressure]),
                                radius=5.0e6, core_radius=3.0e6, mantle=slice(1, None), cmb_index=1, mass=6e24)
     return SimpleNamespace(history=h, intervals=h.intervals, interior=interior, time=time, energy_closure=0.0,
-                           spec=SimpleNamespace(planet=SimpleNamespace(name="synthetic")))
+                           spec=PlanetSpec({"planet": {"name": "synthetic"}}))  # every run's spec is complete
 
 
 def test_top_held_at_phi_c_over_a_solid_mantle_is_no_magma_ocean():

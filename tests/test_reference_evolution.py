@@ -114,7 +114,7 @@ def test_super_earth_weak_scaling_magma_ocean_forms_again():
     """5 M_E with a weaker solid-state law (beta = 0.1, a = 10) than the magma ocean's, applied from the first
     phi_c crossing on (the heat flow jumps there): trajectory tolerances as above; the magma ocean ends, the
     solid law cannot carry the heat, and it forms again (isentropic criterion): both times within 1e-3
-    relative (measured 4e-4 and 8e-5)."""
+    relative (measured 5e-5 and 6e-5; the end is refined inside the step the integrator lands on the switch)."""
     _, summary, ref, _, diff = compare(PlanetSpec(mass_earth=5.0, end_time_gyr=1.0, mantle_nodes=48, beta=0.1,
                                                   nusselt_prefactor=10.0))
     assert_trajectory(diff)

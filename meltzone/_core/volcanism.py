@@ -44,7 +44,9 @@ def convective_velocity(d, delta, par):
     (Turcotte & Schubert, Geodynamics, checked); equated with k dT / delta it gives u above. With the
     boundary-layer law delta = d (Ra_cr / Ra)^beta this is u0 (Ra / Ra_cr)^(2 beta) with u0 = pi kappa / (4 d),
     the form of the convective velocity of Morschhauser, Grott & Breuer 2011, Icarus 212:541 (their u0 is a
-    constant, ~2e-12 m/s for Mars, from memory; the same order as pi kappa / (4 d) = 5e-13 m/s there)."""
+    constant, ~2e-12 m/s for Mars, from memory; the same order as pi kappa / (4 d) = 5e-13 m/s there).
+    kappa is the configured one, as k in the flux k dT / delta it is equated with (the density-dependent
+    properties enter only the layer's Rayleigh number, at its base)."""
     return 0.25 * math.pi * par[P_KAPPA] * d / (delta * delta)
 
 
@@ -79,7 +81,11 @@ def volcanism(tu, y, diag, grid, par, law):
       thickness), so that heat leaves through the surface. T_melt: the node's temperature; for the
       isentropic column less the latent heat paid, L phi / c_p; T_l = T_u under a mobile lid. The mantle's mass
       is fixed: the extracted melt returns as cold crust and lid, which the lid's stored heat already counts
-      (burial, Moore & Webb 2013).
+      (burial, Moore & Webb 2013). Stagnant lid only: under a mobile lid the melt is made and frozen in the
+      plate the upper boundary layer stands for; isentropic upwelling pays its latent heat from the column's own
+      sensible heat, and the boundary-layer flux k (T_u - T_s) / delta already carries off the whole column's
+      heat from T_u (half-space cooling; Turcotte & Schubert, Geodynamics), so D_QVOLC is 0 there (counting the
+      melt's heat as well took it twice: measured 0.6 TW and 35 K colder today for Earth; this model's reading).
     * Crust: grows by the extracted melt's volume (density P_RHO_CRUST) over the sphere at its base. Stagnant
       lid: no thicker than the lid (crust below it is recycled, Morschhauser et al. 2011) nor than the depth
       where its base turns to eclogite, P_P_ECLOGITE / (rho_cr g) (dense eclogite founders; O'Rourke &
@@ -201,7 +207,7 @@ def volcanism(tu, y, diag, grid, par, law):
         k = 2.0 * u * par[P_RIDGE] * 2.0 * math.pi * r_p
     mprod = k * s_m
     diag[D_MPROD] = mprod
-    diag[D_QVOLC] = k * s_q
+    diag[D_QVOLC] = k * s_q if stagnant else 0.0  # mobile lid: inside the plate's flux (above)
     diag[D_XH2O] = k * s_h
     diag[D_XCO2] = k * s_c
     diag[D_OG_H2O] = k * f_e * s_oh

@@ -56,8 +56,9 @@ SERIES = {
     "pressure_co2": ("Pa", "partial pressure of CO2 at the surface (its column weight)", False),
     # volcanism (melt extraction; the boundary-layer scheme with volcanism.enabled = "on")
     "melt_production": ("m^3/s", "volume rate of melt extracted from the mantle (as crust)", False),
-    "volcanic_heat_flow": ("W", "heat the erupted melt carries to the surface (heat pipe; not in "
-                           "surface_heat_flow)", False),
+    "volcanic_heat_flow": ("W", "heat the extracted melt takes out of the mantle past a stagnant lid (erupted: "
+                           "heat pipe; intruded: through crust and lid); not in surface_heat_flow; 0 under a "
+                           "mobile lid, whose surface heat flow includes it", False),
     "crust_thickness": ("m", "thickness of the crust made of extracted melt", False),
     "outgassing_h2o_rate": ("kg/s", "H2O outgassed by erupted melt", False),
     "outgassing_co2_rate": ("kg/s", "CO2 outgassed by erupted melt", False),

@@ -18,7 +18,15 @@ before this key existed). With the fully molten start the mantle adiabat sits 50
 the CMB, so the core starts ~250 K above the mantle liquidus there: 10,273 K at 5 M_E, 18,331 K at 15 M_E
 (measured), far hotter than the base of a crystallised mantle.
 
-An explicit ``initial.core_temperature_k`` overrides both.
+Both rules are followed by the core's molten floor (:func:`meltzone.evolution.boundary_layer.initial_temperatures`):
+T_c is raised, if needed, to 50 K above the core alloy's melting curve at every core node (the mantle's margin over
+its liquidus), so the default start has no inner core. The floor is applied after the rule: a core that the rule
+would start partly frozen starts just molten instead (this model's choice: the rule describes a base that
+stiffens while the core, in contact with it, stays liquid). Measured with the defaults: the rule binds at 1 M_E
+(4611 K, floor 4345 K), the floor at 5 M_E (9691 K against the rule's 9483 K) and 15 M_E (18534 K; the adiabat rule,
+18331 K, is below it too).
+
+An explicit ``initial.core_temperature_k`` overrides both and the floor.
 """
 
 from __future__ import annotations

@@ -96,6 +96,9 @@ def _read_history(f) -> History:
     time = _numeric(g["time"]) * YEAR
     series = {name: _numeric(g[name]) for name in SERIES if name in g}
     grid = MantleGrid(**{attr: _numeric(g[name]) for name, (attr, _, _) in GRID_FIELDS.items()})
+    for name, (attr, _, _) in GRID_FIELDS.items():  # one value per mantle node (the node masses weigh the profiles)
+        if np.shape(getattr(grid, attr)) != (grid.n,):
+            raise ValueError(f"history/{name} has shape {np.shape(getattr(grid, attr))}, expected ({grid.n},)")
     prefix, suffix = "switch_time_", "_yr"
     switch = {}
     for k, v in g.attrs.items():
