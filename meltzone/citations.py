@@ -112,6 +112,12 @@ REGISTRY = {
                              "Patankar 1980, Numerical Heat Transfer and Fluid Flow (Hemisphere)", MEMORY),
     "dormand1980": Citation("Dormand-Prince 5(4) Runge-Kutta pair", "Dormand & Prince 1980, J. Comput. Appl. "
                             "Math. 6:19", CHECKED),
+    "sandu1997": Citation("Rodas3 Rosenbrock method (order 3, L-stable) for stiff stretches of the evolution",
+                          "Sandu et al. 1997, Atmos. Environ. 31:3459 (coefficients as transcribed in the Kinetic "
+                          "PreProcessor's Rosenbrock integrator; Hairer & Wanner 1996, Solving ODEs II, IV.7)",
+                          CHECKED),
+    "hairer1993": Citation("stiffness test of the Dormand-Prince pair (h |lambda| > 3.25 from its last two "
+                           "stages)", "Hairer, Norsett & Wanner 1993, Solving ODEs I, 2nd ed., II.6", MEMORY),
 }
 
 #: Melting models whose fits were read in their sources (the tests reproduce the published values); the
@@ -122,9 +128,9 @@ CHECKED_MELTING_MODELS = ("peridotite-lowp", "katz2003")
 def boundary_layer_keys(spec) -> tuple[str, ...]:
     """Registry keys of the laws a boundary-layer run of ``spec`` uses."""
     cv = spec.convection
-    keys = ["tosi2017", "stevenson1983", "dormand1980", "mei2002", "abe1997", "solomatov2015", "roscoe1952",
-            "lejeune1995", "karki2010", "rheology_blend", "mckenzie1988", "labrosse2015", "anzellini2013",
-            "alfe2002", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
+    keys = ["tosi2017", "stevenson1983", "dormand1980", "sandu1997", "hairer1993", "mei2002", "abe1997",
+            "solomatov2015", "roscoe1952", "lejeune1995", "karki2010", "rheology_blend", "mckenzie1988",
+            "labrosse2015", "anzellini2013", "alfe2002", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
     if cv.activation_volume_decay_pa > 0.0:
         keys.append("activation_volume_decay")
     if cv.beta != 1.0 / 3.0 or cv.nusselt_prefactor != 1.0:

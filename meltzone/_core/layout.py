@@ -95,6 +95,10 @@ STATE = ("time", "mantle_energy", "core_energy", "lid_thickness", "heat_out_minu
  _S_DY2, _S_DY3, S_T_SWITCH) = range(N_STATE := len(STATE))
 #: S_T_SWITCH until the top of the mantle first reaches the rheological transition
 NOT_YET = 1.0e300
+# the stiffness switch of loop.integrate: method in use (1 the implicit Rodas3, 0 Dormand-Prince), the counts of
+# the stiffness test (steps above and below its bound) and the accepted implicit steps
+STATE += ("implicit_method", "stiff_count", "nonstiff_count", "implicit_steps")
+S_IMPLICIT, S_STIFF_COUNT, S_NONSTIFF_COUNT, S_N_IMPLICIT = range(N_STATE, N_STATE := len(STATE))
 
 # ------------------------------------------------------------ mixing-length scheme (implicit.py, mlt_physics.py)
 #: per-face geometry, faces 0 (CMB) .. n (surface) of the n mantle cells

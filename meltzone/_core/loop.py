@@ -1,8 +1,10 @@
-"""The integration loop of the boundary-layer scheme: step control, the unseen-extremum check, landing on the
-first crossing of the rheological transition, and recording.
+"""The integration loop of the boundary-layer scheme: step control, the switch between an explicit and an
+implicit method, the unseen-extremum check, landing on the first crossing of the rheological transition, and
+recording.
 
 :func:`integrate` advances the state vector ``state`` (indices S_* of :mod:`meltzone._core.layout`) with the
-Dormand-Prince pair of :mod:`meltzone._core.dopri` on the right-hand side of :mod:`meltzone._core.physics`,
+Dormand-Prince pair of :mod:`meltzone._core.dopri` (Rodas3 of :mod:`meltzone._core.rosenbrock` where the
+problem is stiff) on the right-hand side of :mod:`meltzone._core.physics`,
 records every accepted step (:mod:`meltzone._core.record`) and returns a STATUS_* code when it ends, a buffer
 fills or ``max_steps`` are done; ``state`` is updated in place so that the next call resumes exactly.
 """
@@ -13,12 +15,13 @@ import math
 
 import numpy as np
 
-from . import dopri
+from . import dopri, rosenbrock
 from ._jit import njit
 from .layout import (C_W, D_PHI_SURF, G_F, G_TSOL, N_D, N_Y, NOT_YET, P_ATOL, P_CC, P_CM, P_DT_MAX,
                      P_H_MAX, P_MANTLE_MASS, P_PHI_C, P_RTOL, P_T_END, S_DY, S_H, S_N_H, S_N_IV, S_N_REJ,
                      S_SLOPE_C, S_SLOPE_M, S_T, S_T_SWITCH, S_TC, S_TU, S_Y, STATUS_DONE, STATUS_HISTORY_FULL,
                      STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL, Y_EC, Y_EM, Y_LID)
+from .layout import S_IMPLICIT, S_N_IMPLICIT, S_NONSTIFF_COUNT, S_STIFF_COUNT, Y_OUT
 from .physics import node_melt, rhs_packed, temperature_rates
 from .record import record
 
@@ -41,6 +44,8 @@ CHECKED_STEP = 1.0
 LID_SCALE = 1.0e3
 #: relative end-time slack of the loop
 END_SLACK = 1e-14
+#: the right-hand side depends on the state's components before this one (not on the time-integrated heat loss)
+N_DEP = Y_OUT
 
 
 @njit
@@ -100,7 +105,34 @@ def _unseen_extremum(tu, tc, tu_new, tc_new, dtu, dtc, dtu1, dtc1, h, grid):
 
 
 @njit
-def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch):
+def _count_stiffness(mode, h_lambda):
+    """Update the stiffness switch ``mode`` (method, count above, count below the bound) with the h |lambda|
+    estimate of an accepted step: the explicit pair switches to the implicit method after STIFF_STEPS
+    estimates above rosenbrock.STIFF_BOUND (NONSTIFF_STEPS below it reset the count; Hairer et al. 1993,
+    II.6), the implicit method back after NONSTIFF_STEPS in a row below it."""
+    if mode[0] < 0.5:
+        if h_lambda > rosenbrock.STIFF_BOUND:
+            mode[2] = 0.0
+            mode[1] += 1.0
+            if mode[1] >= rosenbrock.STIFF_STEPS:
+                mode[0] = 1.0
+                mode[1] = 0.0
+        else:
+            mode[2] += 1.0
+            if mode[2] == rosenbrock.NONSTIFF_STEPS:
+                mode[1] = 0.0
+    elif h_lambda < rosenbrock.STIFF_BOUND:
+        mode[2] += 1.0
+        if mode[2] >= rosenbrock.NONSTIFF_STEPS:
+            mode[0] = 0.0
+            mode[1] = 0.0
+            mode[2] = 0.0
+    else:
+        mode[2] = 0.0
+
+
+@njit
+def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode):
     state[S_T] = t
     for j in range(N_Y):
         state[S_Y + j] = y[j]
@@ -114,6 +146,10 @@ def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch):
     state[S_SLOPE_M] = work[2]
     state[S_SLOPE_C] = work[3]
     state[S_T_SWITCH] = t_switch
+    state[S_IMPLICIT] = mode[0]
+    state[S_STIFF_COUNT] = mode[1]
+    state[S_NONSTIFF_COUNT] = mode[2]
+    state[S_N_IMPLICIT] = mode[3]
 
 
 @njit
@@ -128,6 +164,12 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     profiles. The step that first takes the top of the mantle below phi_c ends on the crossing (within
     PHI_TOL), and its end is the rheological switch time (state S_T_SWITCH, NOT_YET before), from which the
     solidified mantle's criterion and law apply; so the switch does not depend on the step size.
+
+    Steps are Dormand-Prince until its stiffness test (:mod:`meltzone._core.rosenbrock`) finds them limited by
+    stability rather than accuracy (a magma ocean held near the equilibrium temperature relaxes in ~1e3 yr);
+    then Rodas3 with a finite-difference Jacobian, under the same error norm, temperature-step bound, checks
+    and recording (the slopes at both ends of every step, as before), until the explicit pair would be stable
+    again. A run the test never flags takes exactly the steps it took without the switch.
     """
     diag = np.empty(N_D)
     work = np.zeros(4)  # (T_u, T_c, dE_m/dT_u, dE_c/dT_c) of the last inversion: the next one's start
@@ -151,6 +193,16 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     work[2] = state[S_SLOPE_M]
     work[3] = state[S_SLOPE_C]
     t_switch = state[S_T_SWITCH]
+    # the stiffness switch (S_IMPLICIT ..): method, the test's counts, accepted implicit steps; and the
+    # implicit method's arrays (Jacobian and time derivative at the step's start, LU factors, stages)
+    mode = np.empty(4)
+    mode[0] = state[S_IMPLICIT]
+    mode[1] = state[S_STIFF_COUNT]
+    mode[2] = state[S_NONSTIFF_COUNT]
+    mode[3] = state[S_N_IMPLICIT]
+    jac, ft, lu, piv, kst, fwork = rosenbrock.workspace(N_Y)
+    sc = np.empty(N_DEP)
+    jac_fresh = False  # jac and ft belong to the current (t, y)
     t_end = par[P_T_END]
     rtol = par[P_RTOL]
     dt_max = par[P_DT_MAX]
@@ -182,10 +234,10 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     steps = 0
     while t < t_end * (1.0 - END_SLACK):
         if n_h >= hist.shape[0]:
-            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode)
             return STATUS_HISTORY_FULL
         if steps >= max_steps:
-            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode)
             return STATUS_MAX_STEPS
         # temperature-step limit from the current slopes
         dtu, dtc = temperature_rates(tu, tc, y[Y_LID], k1, grid, core, par, law)
@@ -194,11 +246,22 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             h = min(h, dt_max / rate)
         h = min(h, par[P_H_MAX], t_end - t)
         if h < MIN_STEP:
-            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode)
             return STATUS_STEP_TOO_SMALL
         for j in range(4):
             work0[j] = work[j]
-        dopri.step(rhs_packed, args, t, y, h, k, ynew, yerr, tmp)
+        implicit = mode[0] > 0.5
+        if implicit:
+            if not jac_fresh:
+                rosenbrock.jacobian(rhs_packed, args, t, y, k1, N_DEP, jac, ft, tmp, fwork, h)
+                jac_fresh = True
+            if not rosenbrock.factor(jac, h, lu, piv):  # singular at this step size: try a shorter one
+                h = JUMP_FACTOR * h
+                n_rej += 1
+                continue
+            rosenbrock.step(rhs_packed, args, t, y, h, k1, ft, lu, piv, kst, ynew, yerr, k7, tmp)
+        else:
+            dopri.step(rhs_packed, args, t, y, h, k, ynew, yerr, tmp)
         tu_new = work[0]
         tc_new = work[1]
         err = 0.0
@@ -218,6 +281,14 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
         overshoot = (crossing and err <= 1.0 and not big_jump and not unseen and h > CHECKED_STEP
                      and phi_c - phi_end > PHI_TOL and phi_prev > phi_c)
         if err <= 1.0 and not big_jump and not unseen and not overshoot:
+            for j in range(N_DEP):
+                sc[j] = (abs_e_m if j == Y_EM else abs_e_c if j == Y_EC else abs_lid) + rtol * abs(ynew[j])
+            if implicit:  # back to the explicit pair once it would be stable at this step size
+                _count_stiffness(mode, h * rosenbrock.spectral_bound(jac[:N_DEP, :N_DEP], sc))
+            else:  # the explicit pair's two stages at t + h: the argument of stage 6 (tmp) and ynew
+                _count_stiffness(mode, rosenbrock.explicit_stiffness(h, k[dopri.N_STAGES - 2], k7, tmp, ynew,
+                                                                     sc))
+            jac_fresh = False
             if crossing:
                 # from here on the solidified mantle: its slopes at the step's end (the heat flow jumps here
                 # when the solid mantle's (a, beta) differ from the classical law's)
@@ -230,7 +301,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             if res < 0:
                 if crossing:
                     t_switch = NOT_YET
-                _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work0, k1, t_switch)
+                _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work0, k1, t_switch, mode)
                 return STATUS_INTERVALS_FULL
             phi_prev = phi_end
             t = t + h
@@ -242,7 +313,11 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             n_iv = res
             n_h += 1
             steps += 1
-            h = h * dopri.accepted_factor(err)
+            if implicit:
+                mode[3] += 1
+                h = h * rosenbrock.accepted_factor(err)
+            else:
+                h = h * dopri.accepted_factor(err)
         else:
             n_rej += 1
             work[0] = tu
@@ -254,7 +329,9 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             elif overshoot:  # secant on the surface melt fraction
                 h = h * min(max((phi_prev - phi_c) / (phi_prev - phi_end), CROSSING_MIN_FACTOR),
                             CROSSING_MAX_FACTOR)
+            elif implicit:
+                h = h * rosenbrock.rejected_factor(err)
             else:
                 h = h * dopri.rejected_factor(err)
-    _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch)
+    _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode)
     return STATUS_DONE
