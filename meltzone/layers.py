@@ -32,6 +32,7 @@ import math
 import numpy as np
 from scipy.optimize import brentq
 
+from . import surface_melt
 from .constants import YEAR
 
 #: Relative tolerance (of the step length) to which event times are refined.
@@ -278,6 +279,8 @@ def summarize(result, table=None, events=None) -> dict:
         "n_layers": n_layers,
         "max_melt_depth_m": float(np.max(table["bottom_depth"])) if n_layers else None,
         "max_melt_pressure_pa": float(np.max(table["bottom_pressure"])) if n_layers else None,
+        # melt that reaches the surface (lava worlds): at the end, and its greatest depth over the run
+        **surface_melt.summary(h),
         "energy_closure": closure,
         "energy_closure_ok": bool(closure <= ENERGY_CLOSURE_TOLERANCE),
         "end_time_yr": float(h["time"][-1] / YEAR),

@@ -253,7 +253,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
         implicit = mode[0] > 0.5
         if implicit:
             if not jac_fresh:
-                rosenbrock.jacobian(rhs_packed, args, t, y, k1, N_DEP, jac, ft, tmp, fwork, h)
+                rosenbrock.jacobian(rhs_packed, args, t, y, k1, N_DEP, jac, ft, tmp, fwork, kst[0], h)
                 jac_fresh = True
             if not rosenbrock.factor(jac, h, lu, piv):  # singular at this step size: try a shorter one
                 h = JUMP_FACTOR * h
