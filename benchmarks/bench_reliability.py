@@ -16,6 +16,7 @@ from __future__ import annotations
 import argparse
 import os
 import random
+import re
 import sys
 from collections import Counter
 
@@ -33,7 +34,7 @@ def bench(n: int, scheme: str, seed: int, end_time_gyr: float) -> None:
     for _ in range(n):
         out = check(planet(rng, scheme, end_time_gyr))
         if out["failure"] is not None:
-            failures[out["failure"][:90]] += 1
+            failures[re.sub(r"\d[\d.e+-]*", "#", out["failure"])[:100]] += 1  # grouped by message
             continue
         times.append(out["wall_s"])
         closures.append(out["closure"])

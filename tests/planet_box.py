@@ -66,7 +66,7 @@ def planet(rng: random.Random, scheme: str = "boundary-layer", end_time_gyr: flo
 
 
 def check(cfg: dict) -> dict:
-    """Run one planet: ``failure`` (None, or "ErrorClass: message" of a MeltzoneError), ``nan`` (a series with a
+    """Run one planet: ``failure`` (None, "ErrorClass: message" of a MeltzoneError, or "crash: ..."), ``nan`` (a series with a
     non-finite value), ``closure`` and ``closure_ok`` (the summary's energy closure and its tolerance check),
     ``wall_s`` (evolve and summary), ``steps``. Warnings are silenced (a hot start warns by design)."""
     import time
@@ -83,8 +83,9 @@ def check(cfg: dict) -> dict:
             warnings.simplefilter("ignore")
             result = meltzone.evolve(cfg)
             s = result.summary()
-    except MeltzoneError as exc:
-        return {"failure": f"{type(exc).__name__}: {exc}", "nan": False, "closure": None, "closure_ok": True,
+    except Exception as exc:  # a MeltzoneError is a reported failure; anything else a crash, named as such
+        kind = "" if isinstance(exc, MeltzoneError) else "crash: "
+        return {"failure": f"{kind}{type(exc).__name__}: {exc}", "nan": False, "closure": None, "closure_ok": True,
                 "wall_s": time.perf_counter() - t0, "steps": 0}
     nan = any(not np.all(np.isfinite(v)) for v in result.history.series.values())
     return {"failure": None, "nan": bool(nan), "closure": s["energy_closure"], "closure_ok": s["energy_closure_ok"],

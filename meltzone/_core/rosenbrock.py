@@ -16,6 +16,10 @@ M = (2, 0, 1, 1), E = (0, 0, 0, 1), alpha = (0, 0, 1, 1), gamma_i = (1/2, 3/2, 0
 stage 2 reuses stage 1's f (alpha2 = 0, A2j = 0). The order (3) and L-stability are verified in
 tests/test_rosenbrock.py (convergence on a smooth problem, |R(z)| -> 0 as z -> -inf, Prothero-Robinson).
 
+Like a Runge-Kutta method, a Rosenbrock step keeps a linear invariant c.y whenever c.f = 0 for every y: then
+c.J = 0 (also for the differenced Jacobian, up to round-off), so every stage has c.K_i = 0. The boundary-layer
+scheme's energy budget (mantle + core + heat lost) therefore still closes to round-off (measured ~1e-14).
+
 Stiffness detection of the explicit pair: Hairer, Norsett & Wanner 1993, Solving ODEs I, 2nd ed., sec. II.6
 (DOPRI5's test, from the two stages evaluated at t + h: h |lambda| ~ h ||f(y_7) - f(y_6)|| / ||y_7 - y_6||,
 stiff when above 3.25, about the pair's stability boundary on the negative real axis, 15 times (here 100)
