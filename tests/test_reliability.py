@@ -27,6 +27,8 @@ DOCUMENTED = ("ConfigError: initial.upper_temperature_k",)
 
 
 def test_random_planets_of_the_box_finish():
+    """100 planets of the box (seed 2026, 1 Gyr): no failure but the documented one, no NaN, every budget closed
+    within 1e-6 (see the module docstring for the source and the shortened end time)."""
     rng = random.Random(SEED)
     configs = [planet(rng, end_time_gyr=END_TIME_GYR) for _ in range(N_PLANETS)]
     outcomes = [check(cfg) for cfg in configs]

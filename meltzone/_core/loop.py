@@ -105,11 +105,35 @@ def _unseen_extremum(tu, tc, tu_new, tc_new, dtu, dtc, dtu1, dtc1, h, grid):
 
 
 @njit
-def _count_stiffness(mode, h_lambda):
+def _implicit_step(args, t, y, h, k1, fresh, ws, ynew, yerr, k7, tmp):
+    """One Rodas3 step of the boundary-layer right-hand side (the Jacobian first unless ``fresh``, i.e. already
+    at (t, y)); False when the step's matrix is singular. A function of its own, so that the Rosenbrock stages
+    are not inlined into the loop's body."""
+    jac, ft, lu, piv, kst, fwork = ws
+    if not fresh:
+        rosenbrock.jacobian(rhs_packed, args, t, y, k1, N_DEP, jac, ft, tmp, fwork, kst[0], h)
+    if not rosenbrock.factor(jac, h, lu, piv):
+        return False
+    rosenbrock.step(rhs_packed, args, t, y, h, k1, ft, lu, piv, kst, ynew, yerr, k7, tmp)
+    return True
+
+
+@njit
+def _count_stiffness(mode, implicit, h, jac, k, ysti, ynew, sc, rtol):
     """Update the stiffness switch ``mode`` (method, count above, count below the bound) with the h |lambda|
-    estimate of an accepted step: the explicit pair switches to the implicit method after STIFF_STEPS
-    estimates above rosenbrock.STIFF_BOUND (NONSTIFF_STEPS below it reset the count; Hairer et al. 1993,
-    II.6), the implicit method back after NONSTIFF_STEPS in a row below it."""
+    estimate of an accepted step of size h, scaled as the error norm (``sc`` holds the absolute scales, the
+    state's dependent components): the explicit pair's (its last two stages ``k`` at t + h, evaluated at
+    ``ysti`` and ``ynew``) switches to the implicit method after STIFF_STEPS estimates above
+    rosenbrock.STIFF_BOUND (NONSTIFF_STEPS below it reset the count; Hairer et al. 1993, II.6); the implicit
+    method's (the Gershgorin bound of its Jacobian ``jac``) back after NONSTIFF_STEPS in a row below it."""
+    scale = np.empty(N_DEP)
+    for j in range(N_DEP):
+        scale[j] = sc[j] + rtol * abs(ynew[j])
+    if implicit:
+        h_lambda = h * rosenbrock.spectral_bound(jac[:N_DEP, :N_DEP], scale)
+    else:
+        h_lambda = rosenbrock.explicit_stiffness(h, k[dopri.N_STAGES - 2], k[dopri.N_STAGES - 1], ysti, ynew,
+                                                 scale)
     if mode[0] < 0.5:
         if h_lambda > rosenbrock.STIFF_BOUND:
             mode[2] = 0.0
@@ -200,8 +224,8 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     mode[1] = state[S_STIFF_COUNT]
     mode[2] = state[S_NONSTIFF_COUNT]
     mode[3] = state[S_N_IMPLICIT]
-    jac, ft, lu, piv, kst, fwork = rosenbrock.workspace(N_Y)
-    sc = np.empty(N_DEP)
+    ws = rosenbrock.workspace(N_Y)
+    jac = ws[0]
     jac_fresh = False  # jac and ft belong to the current (t, y)
     t_end = par[P_T_END]
     rtol = par[P_RTOL]
@@ -210,6 +234,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     abs_e_m = par[P_ATOL] * par[P_MANTLE_MASS] * par[P_CM]
     abs_e_c = par[P_ATOL] * max(core[C_W].sum() * par[P_CC], 1.0)
     abs_lid = par[P_ATOL] * LID_SCALE
+    sc = np.array([abs_e_m, abs_e_c, abs_lid])  # the error norm's absolute scales of Y_EM, Y_EC, Y_LID
     args = (t_switch, grid, core, iso, par, law, work, diag)
     if n_h == 0:
         rhs_packed(t, y, args, k1)
@@ -252,14 +277,11 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             work0[j] = work[j]
         implicit = mode[0] > 0.5
         if implicit:
-            if not jac_fresh:
-                rosenbrock.jacobian(rhs_packed, args, t, y, k1, N_DEP, jac, ft, tmp, fwork, kst[0], h)
-                jac_fresh = True
-            if not rosenbrock.factor(jac, h, lu, piv):  # singular at this step size: try a shorter one
-                h = JUMP_FACTOR * h
+            if not _implicit_step(args, t, y, h, k1, jac_fresh, ws, ynew, yerr, k7, tmp):
+                h = JUMP_FACTOR * h  # singular at this step size: try a shorter one
                 n_rej += 1
                 continue
-            rosenbrock.step(rhs_packed, args, t, y, h, k1, ft, lu, piv, kst, ynew, yerr, k7, tmp)
+            jac_fresh = True
         else:
             dopri.step(rhs_packed, args, t, y, h, k, ynew, yerr, tmp)
         tu_new = work[0]
@@ -281,13 +303,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
         overshoot = (crossing and err <= 1.0 and not big_jump and not unseen and h > CHECKED_STEP
                      and phi_c - phi_end > PHI_TOL and phi_prev > phi_c)
         if err <= 1.0 and not big_jump and not unseen and not overshoot:
-            for j in range(N_DEP):
-                sc[j] = (abs_e_m if j == Y_EM else abs_e_c if j == Y_EC else abs_lid) + rtol * abs(ynew[j])
-            if implicit:  # back to the explicit pair once it would be stable at this step size
-                _count_stiffness(mode, h * rosenbrock.spectral_bound(jac[:N_DEP, :N_DEP], sc))
-            else:  # the explicit pair's two stages at t + h: the argument of stage 6 (tmp) and ynew
-                _count_stiffness(mode, rosenbrock.explicit_stiffness(h, k[dopri.N_STAGES - 2], k7, tmp, ynew,
-                                                                     sc))
+            _count_stiffness(mode, implicit, h, jac, k, tmp, ynew, sc, rtol)
             jac_fresh = False
             if crossing:
                 # from here on the solidified mantle: its slopes at the step's end (the heat flow jumps here
