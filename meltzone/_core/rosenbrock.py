@@ -121,35 +121,39 @@ def spectral_bound(jac, scale):
     return best
 
 
+@njit
+def _perturb(y, tmp, j, sign):
+    """tmp = y with component j moved by sign FD_REL max(|y_j|, 1); returns the move actually represented."""
+    for i in range(y.shape[0]):
+        tmp[i] = y[i]
+    tmp[j] = y[j] + sign * FD_REL * max(abs(y[j]), 1.0)
+    return abs(tmp[j] - y[j])
+
+
+@njit
+def _difference(out, f1, f0, d):
+    for i in range(out.shape[0]):
+        out[i] = (f1[i] - f0[i]) / d
+
+
 @njit(inline="always")
 def jacobian(fun, args, t, y, f0, n_dep, jac, ft, tmp, fwork, kscr, h):
     """Finite-difference Jacobian ``jac`` = df/dy at (t, y) with f0 = f(t, y) given, and ``ft`` = df/dt.
 
     Only the first ``n_dep`` components of y enter f (the later columns are zero and not differenced).
     Central differences in y with the perturbation FD_REL max(|y_j|, 1); a forward difference in time with
-    FD_REL max(|t|, h) (never backwards: f may change its law at a past switch time). ``kscr`` (n) is scratch."""
-    n = y.shape[0]
-    for j in range(n):
-        tmp[j] = y[j]
-    for j in range(n):
-        if j >= n_dep:
-            for i in range(n):
-                jac[i, j] = 0.0
-            continue
-        d = FD_REL * max(abs(y[j]), 1.0)
-        tmp[j] = y[j] + d
-        up = tmp[j] - y[j]  # the perturbations actually represented
+    FD_REL max(|t|, h) (never backwards: f may change its law at a past switch time). ``kscr`` (n) is scratch.
+    Inlined where it is called, like :func:`step`."""
+    jac[:, :] = 0.0
+    for j in range(n_dep):
+        up = _perturb(y, tmp, j, 1.0)
         fun(t, tmp, args, fwork)
-        tmp[j] = y[j] - d
-        down = y[j] - tmp[j]
+        down = _perturb(y, tmp, j, -1.0)
         fun(t, tmp, args, kscr)
-        for i in range(n):
-            jac[i, j] = (fwork[i] - kscr[i]) / (up + down)
-        tmp[j] = y[j]
+        _difference(jac[:, j], fwork, kscr, up + down)
     dt = FD_REL * max(abs(t), h)
     fun(t + dt, y, args, fwork)
-    for i in range(n):
-        ft[i] = (fwork[i] - f0[i]) / dt
+    _difference(ft, fwork, f0, dt)
 
 
 @njit
@@ -198,32 +202,53 @@ def solve(lu, piv, b):
         b[c] = s / lu[c, c]
 
 
+@njit
+def _stages_one_two(y, h, f0, ft, lu, piv, kst, tmp):
+    """Stages 1 and 2 (alpha2 = 0, A2j = 0: stage 2 reuses f0); ``tmp`` = stage 3's argument."""
+    k1, k2 = kst[0], kst[1]
+    for j in range(y.shape[0]):
+        k1[j] = f0[j] + h * G1 * ft[j]
+    solve(lu, piv, k1)
+    for j in range(y.shape[0]):
+        k2[j] = f0[j] + (C21 / h) * k1[j] + h * G2 * ft[j]
+    solve(lu, piv, k2)
+    for j in range(y.shape[0]):
+        tmp[j] = y[j] + A31 * k1[j]
+
+
+@njit
+def _stage_three(y, h, f3, lu, piv, kst, tmp):
+    """Stage 3 from f3 = f(t + h, y + A31 K1); ``tmp`` = stage 4's argument."""
+    k1, k2, k3 = kst[0], kst[1], kst[2]
+    for j in range(y.shape[0]):
+        k3[j] = f3[j] + (C31 * k1[j] + C32 * k2[j]) / h
+    solve(lu, piv, k3)
+    for j in range(y.shape[0]):
+        tmp[j] = y[j] + A41 * k1[j] + A43 * k3[j]
+
+
+@njit
+def _stage_four(y, h, f4, lu, piv, kst, ynew, yerr):
+    """Stage 4 from f4, the new solution and the error estimate."""
+    k1, k2, k3, k4 = kst[0], kst[1], kst[2], kst[3]
+    for j in range(y.shape[0]):
+        k4[j] = f4[j] + (C41 * k1[j] + C42 * k2[j] + C43 * k3[j]) / h
+    solve(lu, piv, k4)
+    for j in range(y.shape[0]):
+        ynew[j] = y[j] + M1 * k1[j] + M3 * k3[j] + M4 * k4[j]
+        yerr[j] = k4[j]
+
+
 @njit(inline="always")
 def step(fun, args, t, y, h, f0, ft, lu, piv, kst, ynew, yerr, fnew, tmp):
     """One Rodas3 step of size h from (t, y) with f0 = f(t, y), ft = df/dt and the factors (``lu``, ``piv``)
     of I / (h GAMMA) - J given: fills the stages ``kst`` (4 x n), ``ynew``, the error estimate ``yerr`` and
-    ``fnew`` = f(t + h, ynew) (the next step's f0, evaluated last so that ``args``' scratch describes ynew)."""
-    n = y.shape[0]
-    k1, k2, k3, k4 = kst[0], kst[1], kst[2], kst[3]
-    for j in range(n):
-        k1[j] = f0[j] + h * G1 * ft[j]
-    solve(lu, piv, k1)
-    for j in range(n):  # alpha2 = 0, A2j = 0: stage 2 reuses f0
-        k2[j] = f0[j] + (C21 / h) * k1[j] + h * G2 * ft[j]
-    solve(lu, piv, k2)
-    for j in range(n):
-        tmp[j] = y[j] + A31 * k1[j]
+    ``fnew`` = f(t + h, ynew) (the next step's f0, evaluated last so that ``args``' scratch describes ynew).
+    Inlined where it is called (``fun`` is a first-class function); the arithmetic lives in the stage
+    functions, which keeps the inlined body, and so the caller's compilation, short."""
+    _stages_one_two(y, h, f0, ft, lu, piv, kst, tmp)
     fun(t + h, tmp, args, fnew)
-    for j in range(n):
-        k3[j] = fnew[j] + (C31 * k1[j] + C32 * k2[j]) / h
-    solve(lu, piv, k3)
-    for j in range(n):
-        tmp[j] = y[j] + A41 * k1[j] + A43 * k3[j]
+    _stage_three(y, h, fnew, lu, piv, kst, tmp)
     fun(t + h, tmp, args, fnew)
-    for j in range(n):
-        k4[j] = fnew[j] + (C41 * k1[j] + C42 * k2[j] + C43 * k3[j]) / h
-    solve(lu, piv, k4)
-    for j in range(n):
-        ynew[j] = y[j] + M1 * k1[j] + M3 * k3[j] + M4 * k4[j]
-        yerr[j] = k4[j]
+    _stage_four(y, h, fnew, lu, piv, kst, ynew, yerr)
     fun(t + h, ynew, args, fnew)
