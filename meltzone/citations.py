@@ -179,6 +179,12 @@ REGISTRY = {
     "hamano2013": Citation("solidification types I and II; oxygen of escaped water taken up by the magma ocean "
                            "(abstract and institute summary checked)", "Hamano, Abe & Genda 2013, Nature 497:607",
                            CHECKED),
+    "sandu1997": Citation("Rodas3 Rosenbrock method (order 3, L-stable) for stiff stretches of the evolution",
+                          "Sandu et al. 1997, Atmos. Environ. 31:3459 (coefficients as transcribed in the Kinetic "
+                          "PreProcessor's Rosenbrock integrator; Hairer & Wanner 1996, Solving ODEs II, IV.7)",
+                          CHECKED),
+    "hairer1993": Citation("stiffness test of the Dormand-Prince pair (h |lambda| > 3.25 from its last two "
+                           "stages)", "Hairer, Norsett & Wanner 1993, Solving ODEs I, 2nd ed., II.6", MEMORY),
 }
 
 # volcanism of the boundary-layer scheme (meltzone._core.volcanism)
@@ -229,7 +235,8 @@ CHECKED_MELTING_MODELS = ("peridotite-lowp", "katz2003")
 def boundary_layer_keys(spec) -> tuple[str, ...]:
     """Registry keys of the laws a boundary-layer run of ``spec`` uses."""
     cv = spec.convection
-    keys = ["tosi2017", "stevenson1983", "dormand1980", "mei2002", "abe1997", "solomatov2015", "roscoe1952",
+    keys = ["tosi2017", "stevenson1983", "dormand1980", "sandu1997", "hairer1993",
+            "mei2002", "abe1997", "solomatov2015", "roscoe1952",
             "lejeune1995", "karki2010", "rheology_blend", "mckenzie1988", "labrosse2015", "anzellini2013",
             "alfe2003", "latent_scaling", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
     if cv.activation_volume_decay_pa > 0.0:

@@ -33,6 +33,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from . import magma_ocean
+from . import surface_melt
 from .constants import YEAR
 from .water import water_outcomes
 from .volcanics import volcanism_outcomes
@@ -287,6 +288,8 @@ def summarize(result, table=None, events=None) -> dict:
         "n_layers": n_layers,
         "max_melt_depth_m": float(np.max(table["bottom_depth"])) if n_layers else None,
         "max_melt_pressure_pa": float(np.max(table["bottom_pressure"])) if n_layers else None,
+        # melt that reaches the surface (lava worlds): at the end, and its greatest depth over the run
+        **surface_melt.summary(h),
         "energy_closure": closure,
         "energy_closure_ok": bool(closure <= ENERGY_CLOSURE_TOLERANCE),
         "end_time_yr": float(h["time"][-1] / YEAR),

@@ -177,6 +177,11 @@ def _magma_ocean_text(s: dict) -> str:
         again = "forms" if not s["magma_ocean_at_start"] else "forms again"
         text += (f"; {again} at {format_years(s['magma_ocean_reformed_yr'])} (the mantle warmed past the "
                  "rheological transition)" + (" and is present at the end" if s["magma_ocean_at_end"] else ""))
+    if s.get("surface_above_solidus_at_end"):
+        molten = s.get("surface_molten_depth_at_end_m")
+        text += (f"; surface above the solidus at the end, melt to {km(s['surface_melt_depth_at_end_m'])} km"
+                 + ("" if molten is None else f", fully molten to {km(molten)} km")
+                 + (" (lava world)" if s["magma_ocean_at_end"] else ""))
     return text
 
 

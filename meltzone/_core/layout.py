@@ -181,6 +181,10 @@ STATE += tuple(STATE_Y[N_Y_ENERGY:]) + tuple("rate_" + name for name in STATE_Y[
 S_YV = N_STATE
 S_DYV = S_YV + N_Y - N_Y_ENERGY
 N_STATE = len(STATE)
+# the stiffness switch of loop.integrate: method in use (1 the implicit Rodas3, 0 Dormand-Prince), the counts of
+# the stiffness test (steps above and below its bound) and the accepted implicit steps
+STATE += ("implicit_method", "stiff_count", "nonstiff_count", "implicit_steps")
+S_IMPLICIT, S_STIFF_COUNT, S_NONSTIFF_COUNT, S_N_IMPLICIT = range(N_STATE, N_STATE := len(STATE))
 
 # ------------------------------------------------------------ mixing-length scheme (implicit.py, mlt_physics.py)
 #: per-face geometry, faces 0 (CMB) .. n (surface) of the n mantle cells

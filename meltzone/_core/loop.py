@@ -1,8 +1,10 @@
-"""The integration loop of the boundary-layer scheme: step control, the unseen-extremum check, landing on the
-first crossing of the rheological transition, and recording.
+"""The integration loop of the boundary-layer scheme: step control, the switch between an explicit and an
+implicit method, the unseen-extremum check, landing on the first crossing of the rheological transition, and
+recording.
 
 :func:`integrate` advances the state vector ``state`` (indices S_* of :mod:`meltzone._core.layout`) with the
-Dormand-Prince pair of :mod:`meltzone._core.dopri` on the right-hand side of :mod:`meltzone._core.physics`,
+Dormand-Prince pair of :mod:`meltzone._core.dopri` (Rodas3 of :mod:`meltzone._core.rosenbrock` where the
+problem is stiff) on the right-hand side of :mod:`meltzone._core.physics`,
 records every accepted step (:mod:`meltzone._core.record`) and returns a STATUS_* code when it ends, a buffer
 fills or ``max_steps`` are done; ``state`` is updated in place so that the next call resumes exactly.
 """
@@ -13,13 +15,14 @@ import math
 
 import numpy as np
 
-from . import dopri
+from . import dopri, rosenbrock
 from ._jit import njit
 from .layout import N_Y_ENERGY, S_DYV, S_YV, Y_CRUST
 from .layout import (C_W, D_PHI_SURF, G_F, G_TSOL, N_D, N_Y, NOT_YET, P_ATOL, P_CC, P_CM, P_DT_MAX,
                      P_H_MAX, P_MANTLE_MASS, P_PHI_C, P_RTOL, P_T_END, S_DY, S_H, S_N_H, S_N_IV, S_N_REJ,
                      S_SLOPE_C, S_SLOPE_M, S_T, S_T_SWITCH, S_TC, S_TU, S_Y, STATUS_DONE, STATUS_HISTORY_FULL,
                      STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL, Y_EC, Y_EM, Y_LID)
+from .layout import S_IMPLICIT, S_N_IMPLICIT, S_NONSTIFF_COUNT, S_STIFF_COUNT, Y_OUT
 from .physics import node_melt, temperature_rates
 from .volcanism import rhs_packed
 from .record import record
@@ -46,6 +49,8 @@ LID_SCALE = 1.0e3
 CRUST_ATOL, CRUST_RTOL = 1.0, 1.0e-4
 #: relative end-time slack of the loop
 END_SLACK = 1e-14
+#: the right-hand side depends on the state's components before this one (not on the time-integrated heat loss)
+N_DEP = Y_OUT
 
 
 @njit
@@ -117,7 +122,58 @@ def dy_slot(j):
 
 
 @njit
-def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch):
+def _implicit_step(args, t, y, h, k1, fresh, ws, ynew, yerr, k7, tmp):
+    """One Rodas3 step of the boundary-layer right-hand side (the Jacobian first unless ``fresh``, i.e. already
+    at (t, y)); False when the step's matrix is singular. A function of its own, so that the Rosenbrock stages
+    are not inlined into the loop's body."""
+    jac, ft, lu, piv, kst, fwork = ws
+    if not fresh:
+        rosenbrock.jacobian(rhs_packed, args, t, y, k1, N_DEP, jac, ft, tmp, fwork, kst[0], h)
+    if not rosenbrock.factor(jac, h, lu, piv):
+        return False
+    rosenbrock.step(rhs_packed, args, t, y, h, k1, ft, lu, piv, kst, ynew, yerr, k7, tmp)
+    return True
+
+
+@njit
+def _count_stiffness(mode, implicit, h, jac, k, ysti, ynew, sc, rtol):
+    """Update the stiffness switch ``mode`` (method, count above, count below the bound) with the h |lambda|
+    estimate of an accepted step of size h, scaled as the error norm (``sc`` holds the absolute scales, the
+    state's dependent components): the explicit pair's (its last two stages ``k`` at t + h, evaluated at
+    ``ysti`` and ``ynew``) switches to the implicit method after STIFF_STEPS estimates above
+    rosenbrock.STIFF_BOUND (NONSTIFF_STEPS below it reset the count; Hairer et al. 1993, II.6); the implicit
+    method's (the Gershgorin bound of its Jacobian ``jac``) back after NONSTIFF_STEPS in a row below it."""
+    scale = np.empty(N_DEP)
+    for j in range(N_DEP):
+        scale[j] = sc[j] + rtol * abs(ynew[j])
+    if implicit:
+        h_lambda = h * rosenbrock.spectral_bound(jac[:N_DEP, :N_DEP], scale)
+    else:
+        h_lambda = rosenbrock.explicit_stiffness(h, k[dopri.N_STAGES - 2], k[dopri.N_STAGES - 1], ysti, ynew,
+                                                 scale)
+    if mode[0] < 0.5:
+        if h_lambda > rosenbrock.STIFF_BOUND:
+            mode[2] = 0.0
+            mode[1] += 1.0
+            if mode[1] >= rosenbrock.STIFF_STEPS:
+                mode[0] = 1.0
+                mode[1] = 0.0
+        else:
+            mode[2] += 1.0
+            if mode[2] == rosenbrock.NONSTIFF_STEPS:
+                mode[1] = 0.0
+    elif h_lambda < rosenbrock.STIFF_BOUND:
+        mode[2] += 1.0
+        if mode[2] >= rosenbrock.NONSTIFF_STEPS:
+            mode[0] = 0.0
+            mode[1] = 0.0
+            mode[2] = 0.0
+    else:
+        mode[2] = 0.0
+
+
+@njit
+def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode):
     state[S_T] = t
     for j in range(N_Y):
         state[y_slot(j)] = y[j]
@@ -131,6 +187,10 @@ def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch):
     state[S_SLOPE_M] = work[2]
     state[S_SLOPE_C] = work[3]
     state[S_T_SWITCH] = t_switch
+    state[S_IMPLICIT] = mode[0]
+    state[S_STIFF_COUNT] = mode[1]
+    state[S_NONSTIFF_COUNT] = mode[2]
+    state[S_N_IMPLICIT] = mode[3]
 
 
 @njit
@@ -145,6 +205,12 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     profiles. The step that first takes the top of the mantle below phi_c ends on the crossing (within
     PHI_TOL), and its end is the rheological switch time (state S_T_SWITCH, NOT_YET before), from which the
     solidified mantle's criterion and law apply; so the switch does not depend on the step size.
+
+    Steps are Dormand-Prince until its stiffness test (:mod:`meltzone._core.rosenbrock`) finds them limited by
+    stability rather than accuracy (a magma ocean held near the equilibrium temperature relaxes in ~1e3 yr);
+    then Rodas3 with a finite-difference Jacobian, under the same error norm, temperature-step bound, checks
+    and recording (the slopes at both ends of every step, as before), until the explicit pair would be stable
+    again. A run the test never flags takes exactly the steps it took without the switch.
     """
     diag = np.empty(N_D)
     work = np.zeros(4)  # (T_u, T_c, dE_m/dT_u, dE_c/dT_c) of the last inversion: the next one's start
@@ -168,6 +234,16 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     work[2] = state[S_SLOPE_M]
     work[3] = state[S_SLOPE_C]
     t_switch = state[S_T_SWITCH]
+    # the stiffness switch (S_IMPLICIT ..): method, the test's counts, accepted implicit steps; and the
+    # implicit method's arrays (Jacobian and time derivative at the step's start, LU factors, stages)
+    mode = np.empty(4)
+    mode[0] = state[S_IMPLICIT]
+    mode[1] = state[S_STIFF_COUNT]
+    mode[2] = state[S_NONSTIFF_COUNT]
+    mode[3] = state[S_N_IMPLICIT]
+    ws = rosenbrock.workspace(N_Y)
+    jac = ws[0]
+    jac_fresh = False  # jac and ft belong to the current (t, y)
     t_end = par[P_T_END]
     rtol = par[P_RTOL]
     dt_max = par[P_DT_MAX]
@@ -175,6 +251,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     abs_e_m = par[P_ATOL] * par[P_MANTLE_MASS] * par[P_CM]
     abs_e_c = par[P_ATOL] * max(core[C_W].sum() * par[P_CC], 1.0)
     abs_lid = par[P_ATOL] * LID_SCALE
+    sc = np.array([abs_e_m, abs_e_c, abs_lid])  # the error norm's absolute scales of Y_EM, Y_EC, Y_LID
     args = (t_switch, grid, core, iso, par, law, work, diag)
     if n_h == 0:
         rhs_packed(t, y, args, k1)
@@ -199,10 +276,10 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     steps = 0
     while t < t_end * (1.0 - END_SLACK):
         if n_h >= hist.shape[0]:
-            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode)
             return STATUS_HISTORY_FULL
         if steps >= max_steps:
-            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode)
             return STATUS_MAX_STEPS
         # temperature-step limit from the current slopes
         dtu, dtc = temperature_rates(tu, tc, y[Y_LID], k1, grid, core, par, law)
@@ -211,11 +288,19 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             h = min(h, dt_max / rate)
         h = min(h, par[P_H_MAX], t_end - t)
         if h < MIN_STEP:
-            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch)
+            _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode)
             return STATUS_STEP_TOO_SMALL
         for j in range(4):
             work0[j] = work[j]
-        dopri.step(rhs_packed, args, t, y, h, k, ynew, yerr, tmp)
+        implicit = mode[0] > 0.5
+        if implicit:
+            if not _implicit_step(args, t, y, h, k1, jac_fresh, ws, ynew, yerr, k7, tmp):
+                h = JUMP_FACTOR * h  # singular at this step size: try a shorter one
+                n_rej += 1
+                continue
+            jac_fresh = True
+        else:
+            dopri.step(rhs_packed, args, t, y, h, k, ynew, yerr, tmp)
         tu_new = work[0]
         tc_new = work[1]
         err = 0.0
@@ -238,6 +323,8 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
         overshoot = (crossing and err <= 1.0 and not big_jump and not unseen and h > CHECKED_STEP
                      and phi_c - phi_end > PHI_TOL and phi_prev > phi_c)
         if err <= 1.0 and not big_jump and not unseen and not overshoot:
+            _count_stiffness(mode, implicit, h, jac, k, tmp, ynew, sc, rtol)
+            jac_fresh = False
             if crossing:
                 # from here on the solidified mantle: its slopes at the step's end (the heat flow jumps here
                 # when the solid mantle's (a, beta) differ from the classical law's)
@@ -250,7 +337,7 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             if res < 0:
                 if crossing:
                     t_switch = NOT_YET
-                _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work0, k1, t_switch)
+                _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work0, k1, t_switch, mode)
                 return STATUS_INTERVALS_FULL
             phi_prev = phi_end
             t = t + h
@@ -262,7 +349,11 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             n_iv = res
             n_h += 1
             steps += 1
-            h = h * dopri.accepted_factor(err)
+            if implicit:
+                mode[3] += 1
+                h = h * rosenbrock.accepted_factor(err)
+            else:
+                h = h * dopri.accepted_factor(err)
         else:
             n_rej += 1
             work[0] = tu
@@ -274,7 +365,9 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
             elif overshoot:  # secant on the surface melt fraction
                 h = h * min(max((phi_prev - phi_c) / (phi_prev - phi_end), CROSSING_MIN_FACTOR),
                             CROSSING_MAX_FACTOR)
+            elif implicit:
+                h = h * rosenbrock.rejected_factor(err)
             else:
                 h = h * dopri.rejected_factor(err)
-    _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch)
+    _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode)
     return STATUS_DONE
