@@ -231,25 +231,6 @@ def melt_mass_adiabat(tu, grid, law):
 
 
 @njit
-def grey_emissivity(m_melt, par):
-    """:func:`grey_emissivity_with` without volcanic outgassing."""
-    return grey_emissivity_with(m_melt, par, 0.0, 0.0)
-
-
-@njit
-def grey_emissivity_with(m_melt, par, added_h2o, added_co2):
-    """(eps, M_H2O, M_CO2) of the grey atmosphere over a mantle holding ``m_melt`` of melt: the volatiles in
-    solubility equilibrium with the melt, X_H2O = 6.8e-8 P^0.7 and X_CO2 = 4.4e-12 P (mass fractions, P in Pa;
-    as used by Lebrun et al. 2013), grey optical depth tau_i = (3 M_i / (8 pi R^2)) sqrt(kappa_i g / (3 P0)),
-    P0 = 1 atm, kappa_H2O = 0.01, kappa_CO2 = 0.001 m^2/kg, eps = 2 / (tau + 2) (Abe & Matsui 1985;
-    Elkins-Tanton 2008). ``added_h2o``, ``added_co2`` [kg]: volcanically outgassed masses, added to the
-    inventories of surface.water_inventory_kg and co2_inventory_kg before the solubility partition (see
-    :func:`meltzone._core.radiation.volatiles` for the general form, with water lost to space)."""
-    eps, m_h2o, m_co2, _, _ = volatiles(m_melt, 0.0, GREY_H2O_COEFF, GREY_H2O_EXPONENT, par, added_h2o, added_co2)
-    return eps, m_h2o, m_co2
-
-
-@njit
 def _stored_heat_residual(t, args):
     kind, e, d, mb, grid, core, par, law = args
     return (mantle_energy(t, d, mb, grid, par, law) if kind == 0 else core_energy(t, grid, core, par)) - e
