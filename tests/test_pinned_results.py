@@ -1,0 +1,77 @@
+"""Pinned results: the numbers of five planets stay what they were when the fixture was written.
+
+Source: ``tests/data/pinned.{npz,json}``, written by ``tests/data/make_pinned_fixture.py`` (the commit is
+recorded in the fixture) after the deliberate physics changes of this version: the peridotite-based default
+melting curves, density-dependent expansivity and conductivity, the base-flux lid growth law, the starting core
+rule, the iron curve's depression and latent heat, volcanism, the host star, the steam atmosphere and the
+Rosenbrock path for stiff stretches. Five planets: a mobile-lid Earth, a stagnant-lid 3 M_E planet with a grey
+H2O-CO2 atmosphere and the Katz 2003 melt law, an iron-rich 0.8 M_E planet (core fraction 0.6), a lava world
+(T_eq = 1800 K, stagnant lid: the implicit path) and a steam world around a 0.3 M_sun star. Tolerance: 1e-12
+relative (1e-12 of the series' largest magnitude for quantities that pass through zero). A refactor must not
+move them; a physics change that does re-pins them in a commit that names it (common practice: golden-master
+tests).
+"""
+
+import json
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+import meltzone
+
+DATA = Path(__file__).parent / "data"
+FIXTURE = json.loads((DATA / "pinned.json").read_text())
+ARRAYS = np.load(DATA / "pinned.npz")
+RTOL = 1e-12
+CASES = sorted(name for name in FIXTURE if not name.startswith("_"))
+
+
+def _close(a, b):
+    a = np.asarray(a, dtype=float)
+    b = np.asarray(b, dtype=float)
+    scale = max(float(np.nanmax(np.abs(b))), 1e-300) if b.size else 1.0
+    same_nan = np.array_equal(np.isnan(a), np.isnan(b)) if a.shape == b.shape else False
+    ok = np.abs(a - b) <= RTOL * np.maximum(np.abs(b), scale * 1e-3)
+    return a.shape == b.shape and same_nan and bool(np.all(ok | np.isnan(b)))
+
+
+@pytest.fixture(scope="module", params=CASES)
+def case(request):
+    name = request.param
+    return name, meltzone.evolve(FIXTURE[name]["config"])
+
+
+def test_history_unchanged(case):
+    name, result = case
+    fields = sorted({key.split("/", 1)[1] for key in ARRAYS.files if key.startswith(name + "/")})
+    assert len(fields) >= 20
+    bad = [f for f in fields if not _close(result.history[f], ARRAYS[f"{name}/{f}"])]
+    assert not bad, f"{name}: pinned history fields changed: {bad}"
+
+
+def _flatten(obj, prefix=""):
+    if isinstance(obj, dict):
+        out = {}
+        for k, v in obj.items():
+            out.update(_flatten(v, f"{prefix}{k}."))
+        return out
+    if isinstance(obj, list):
+        out = {}
+        for i, v in enumerate(obj):
+            out.update(_flatten(v, f"{prefix}{i}."))
+        return out
+    return {prefix.rstrip("."): obj}
+
+
+def test_summary_unchanged(case):
+    name, result = case
+    old = _flatten(FIXTURE[name]["summary"])
+    new = _flatten(result.summary())
+    assert old.keys() <= new.keys()
+    for key, value in old.items():
+        got = new[key]
+        if isinstance(value, float) and isinstance(got, float):
+            assert got == pytest.approx(value, rel=RTOL, abs=1e-300, nan_ok=True), (name, key)
+        else:
+            assert got == value, (name, key)
