@@ -23,18 +23,22 @@ class Range(NamedTuple):
     key: str
     kind: str
     values: tuple
-    when: tuple | None = None  # (section, key, value) of an earlier row
-    otherwise: object = 0.0
+    when: tuple | None = None  # (section, key, accepted) of an earlier row: a value, a tuple of values or "nonzero"
+    otherwise: object = 0.0  # the value elsewhere; None leaves the key unset
 
 
 BOX = (
     Range("planet", "mass_earth", "log", (0.5, 15.0)),
     Range("planet", "core_mass_fraction", "uniform", (0.1, 0.7)),
     Range("convection", "regime", "choice", ("mobile-lid", "stagnant-lid")),
-    Range("surface", "atmosphere", "choice", ("none", "grey")),
-    Range("surface", "water_inventory_kg", "uniform", (0.0, 1e22), when=("surface", "atmosphere", "grey")),
-    Range("surface", "co2_inventory_kg", "uniform", (0.0, 1e21), when=("surface", "atmosphere", "grey")),
-    Range("surface", "equilibrium_temperature_k", "uniform", (200.0, 2000.0)),
+    Range("surface", "atmosphere", "choice", ("none", "grey", "steam")),
+    Range("surface", "water_inventory_kg", "uniform", (0.0, 1e22), when=("surface", "atmosphere", ("grey", "steam"))),
+    Range("surface", "co2_inventory_kg", "uniform", (0.0, 1e21), when=("surface", "atmosphere", ("grey", "steam"))),
+    # half the planets under a fixed irradiation, half around a host star (never both: a config error)
+    Range("star", "mass_msun", "fixed-or-uniform", (0.0, 0.1, 1.2)),
+    Range("orbit", "semi_major_axis_au", "log", (0.01, 2.0), when=("star", "mass_msun", "nonzero"), otherwise=None),
+    Range("surface", "equilibrium_temperature_k", "uniform", (200.0, 2000.0), when=("star", "mass_msun", 0.0),
+          otherwise=None),
     Range("initial", "upper_temperature_k", "fixed-or-uniform", (0.0, 1700.0, 2200.0)),
 )
 
@@ -58,11 +62,20 @@ def planet(rng: random.Random, scheme: str = "boundary-layer", end_time_gyr: flo
     cfg: dict = {"convection": {"scheme": scheme}, "run": {"end_time_gyr": end_time_gyr}}
     for row in box:
         section = cfg.setdefault(row.section, {})
-        if row.when is not None and cfg.get(row.when[0], {}).get(row.when[1]) != row.when[2]:
-            section[row.key] = row.otherwise
+        if row.when is not None and not _accepted(cfg.get(row.when[0], {}).get(row.when[1]), row.when[2]):
+            if row.otherwise is not None:
+                section[row.key] = row.otherwise
         else:
             section[row.key] = _draw(rng, row)
     return cfg
+
+
+def _accepted(value, accepted) -> bool:
+    if accepted == "nonzero":
+        return value is not None and value != 0.0
+    if isinstance(accepted, tuple):
+        return value in accepted
+    return value == accepted
 
 
 def check(cfg: dict) -> dict:

@@ -1,6 +1,7 @@
-"""Reliability over the documented box: 100 seeded random planets of tests/planet_box.py (both regimes, bare and
-grey surfaces with water and CO2, equilibrium temperatures 200-2000 K, hot and cool starts), boundary-layer
-scheme.
+"""Reliability over the documented box: 100 seeded random planets of tests/planet_box.py (0.5-15 M_E, core
+fraction 0.1-0.7, both regimes, bare, grey and steam surfaces with 0-1e22 kg water and 0-1e21 kg CO2, half under
+a fixed equilibrium temperature of 200-2000 K and half around a host star of 0.1-1.2 M_sun at 0.01-2 AU, hot and
+cool starts), boundary-layer scheme.
 
 Every planet either finishes or fails with the one documented configuration error of the box (a cool start
 below the equilibrium temperature, which the config rejects); none stops at run.max_steps or on a collapsed
