@@ -4,8 +4,9 @@
                                            [--end-time-gyr 4.5]
 
 The box is the table ``BOX`` of tests/planet_box.py (invented planets): mass 0.5-15 M_E (log-uniform), core
-mass fraction 0.1-0.7, mobile or stagnant lid, surface none or grey with 0-1e22 kg water and 0-1e21 kg CO2,
-equilibrium temperature 200-2000 K, a hot (molten) or cool (T_u 1700-2200 K) start; run to 4.5 Gyr (default
+mass fraction 0.1-0.7, mobile or stagnant lid, surface none, grey or steam with 0-1e22 kg water and 0-1e21 kg
+CO2, half under an equilibrium temperature of 200-2000 K and half around a host star of 0.1-1.2 M_sun at
+0.01-2 AU, a hot (molten) or cool (T_u 1700-2200 K) start; run to 4.5 Gyr (default
 N = 1000). Prints, per scheme, the failures by message, NaN counts, the runs whose energy closure exceeds the
 summary's tolerance, the largest closure error, and the median, 99th-percentile and largest wall time of the
 runs that finished (evolve and summary, one process, after a compiling warm-up).
