@@ -246,7 +246,7 @@ def _announce_compilation() -> None:
     from ._core._jit import CACHE_DIR, is_cached
 
     if not is_cached("meltzone._core.loop", "integrate"):
-        click.echo(f"meltzone: first run: compiling the numba kernels (about 15 s, once; they are cached in "
+        click.echo(f"meltzone: first run: compiling the numba kernels (about half a minute, once; they are cached in "
                    f"{CACHE_DIR})", err=True)
 
 
