@@ -222,6 +222,11 @@ REGISTRY.update({
     "crust_heat_sources": Citation("heat-producing elements enter the melt by batch melting (bulk D = 0.002) and "
                                    "heat the crust; a Mars crust >= 30 km holds >= 50% of them (abstract)",
                                    "McLennan 2001, GRL 28:4019", CHECKED),
+    "lid_base_regime": Citation("under a stagnant lid the solidified mantle's regime (magma ocean or not) is judged "
+                                "by the isentropic melt fraction at the lid's base, the convecting mantle's top",
+                                "meltzone", CHOICE),
+    "crust_follows_lid": Citation("stagnant-lid crust at its lid cap follows a thinning lid and returns to the "
+                                  "mantle with its share of the heat sources", "meltzone", CHOICE),
     "conductive_crust": Citation("steady conductive lid with the crust's heat sources at its top: the surface flux "
                                  "gains sH/A (1 - D_cr/(2 D_l)), the lid base loses sH/A D_cr/(2 D_l)",
                                  "Turcotte & Schubert, Geodynamics (common practice)", MEMORY),
@@ -244,7 +249,7 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     if cv.beta != 1.0 / 3.0 or cv.nusselt_prefactor != 1.0:
         keys += ["korenaga2008", "christensen1985"]
     if cv.regime == "stagnant-lid":
-        keys += ["solomatov2000", "grasset1998", "thiriet2019"]
+        keys += ["solomatov2000", "grasset1998", "thiriet2019", "lid_base_regime"]
         keys += ["schubert1990", "morschhauser2011"] if cv.lid_growth_law == "base-flux" else ["goodman1958"]
     if spec.surface.atmosphere == "grey":
         keys += ["abe1985", "elkins_tanton2008", "lebrun2013"]
@@ -255,7 +260,7 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     if spec.volcanism.enabled == "on":
         vc = spec.volcanism
         keys += ["morschhauser2011", "kite2009", "moore2013", "crisp1984", "volatile_partition", "stixrude2009",
-                 "volcanism_choices"] + (["orourke2012"] if cv.regime == "stagnant-lid" else [])
+                 "volcanism_choices"] + (["orourke2012", "crust_follows_lid"] if cv.regime == "stagnant-lid" else [])
         keys += (["vent_solubility", "tosi2017_outgassing"] if vc.vent_solubility == "on" else []) + (
             ["melt_depletion"] if vc.melt_depletion == "on" else []) + (
             ["crust_heat_sources", "conductive_crust"] if vc.crust_heat_sources == "on" else [])

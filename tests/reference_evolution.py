@@ -26,8 +26,8 @@ The model (equations and sources; every law below repeats its own):
   over its sublayer); the solid mantle keeps a = 1, beta = 1/3 until the top first reaches phi_c and takes
   the configured (a, beta) from then on; a surface temperature in radiative balance (bare or grey);
 * regime: phi_top is the batch melt fraction of the adiabat at the surface until it first falls to phi_c,
-  the isentropic one after (McKenzie & Bickle 1988, J. Petrol. 29:625; from memory); a magma ocean while
-  phi_top > phi_c. The solid branch of a solidified mantle has melt weakening up to phi_c, no suspension;
+  the isentropic one after (McKenzie & Bickle 1988, J. Petrol. 29:625; from memory), at the stagnant lid's
+  base under a lid (regime_melt); a magma ocean while phi_top > phi_c. The solid branch of a solidified mantle has melt weakening up to phi_c, no suspension;
 * bottom: a boundary layer from the local critical Rayleigh number; core adiabat with an inner core where it
   falls below the iron-alloy melting curve; radiogenic heating with decay.
 
@@ -279,26 +279,40 @@ def melt_fraction(t, mantle, sl=slice(None)):
     return np.where(t <= sol, 0.0, np.where(t >= liq, 1.0, phi))
 
 
-def top_melt(t, mantle):
-    """Batch melt fraction of the top node at temperature ``t``."""
-    return float(melt_fraction(np.array([t]), mantle, slice(-1, None))[0])
+def top_melt(t, mantle, i=-1):
+    """Batch melt fraction of node ``i`` (the top by default) at temperature ``t``."""
+    i = i % len(mantle.r)
+    return float(melt_fraction(np.array([t]), mantle, slice(i, i + 1))[0])
 
 
-def isentropic_top_melt(t, mantle, ph):
-    """Melt fraction at the top of a solid mantle that melts as it rises: phi = phi_eq(T - (L / c_p) phi), the
-    batch limit of isentropic decompression melting (McKenzie & Bickle 1988, J. Petrol. 29:625; from memory).
-    Closed form for the linear law, brentq for Katz's."""
+def isentropic_top_melt(t, mantle, ph, i=-1):
+    """Melt fraction at node ``i`` (the top by default) of a solid mantle that melts as it rises:
+    phi = phi_eq(T - (L / c_p) phi), the batch limit of isentropic decompression melting (McKenzie & Bickle
+    1988, J. Petrol. 29:625; from memory). Closed form for the linear law, brentq for Katz's."""
     lc = ph.latent_heat / ph.heat_capacity
-    batch = top_melt(t, mantle)
+    batch = top_melt(t, mantle, i)
     if batch <= 0.0 or lc <= 0.0:
         return batch
     if not mantle.katz:
-        sol, liq = mantle.solidus[-1], mantle.liquidus[-1]
+        sol, liq = mantle.solidus[i], mantle.liquidus[i]
         return min(max((t - sol) / (liq - sol + lc), 0.0), 1.0)
-    g = lambda phi: top_melt(t - lc * phi, mantle) - phi  # noqa: E731  (falls with phi)
+    g = lambda phi: top_melt(t - lc * phi, mantle, i) - phi  # noqa: E731  (falls with phi)
     if g(batch) >= 0.0:
         return batch
     return brentq(g, 0.0, batch, xtol=1e-15, rtol=1e-14)
+
+
+def regime_melt(tu, d, mantle, ph):
+    """Isentropic melt fraction that sets a solidified mantle's regime: at the surface (mobile lid) or at the
+    stagnant lid's base, depth max(d, LID_MIN), linear between the nodes there at the adiabat's temperature
+    interpolated to that depth (this model's choice: the regime of the mantle that convects)."""
+    if not ph.stagnant_lid:
+        return isentropic_top_melt(tu * mantle.adiabat[-1], mantle, ph)
+    r = mantle.r[-1] - max(d, LID_MIN)
+    j = int(np.clip(np.searchsorted(mantle.r, r) - 1, 0, len(mantle.r) - 2))
+    s = (r - mantle.r[j]) / (mantle.r[j + 1] - mantle.r[j])
+    t = tu * (mantle.adiabat[j] + s * (mantle.adiabat[j + 1] - mantle.adiabat[j]))
+    return (1.0 - s) * isentropic_top_melt(t, mantle, ph, j) + s * isentropic_top_melt(t, mantle, ph, j + 1)
 
 
 def activation_enthalpy(p, ph):
@@ -524,7 +538,7 @@ class ReferenceModel:
         phi_c = ph.critical_melt_fraction
         phi_surf = top_melt(tu * mantle.adiabat[-1], mantle)
         solid = t >= self.t_solid
-        phi_top = isentropic_top_melt(tu * mantle.adiabat[-1], mantle, ph) if solid else phi_surf
+        phi_top = regime_melt(tu, d, mantle, ph) if solid else phi_surf
         eta_mo = viscosity(tu, ph.pressure_top, phi_top, ph)
         eta_s = self.solid_viscosity(tu, d, phi_surf) if solid else eta_mo
         # bottom boundary layer: delta_c = (kappa eta_c Ra_cr / (alpha rho g_c |dT_c|))^(1/3) <= D / 2,
@@ -620,8 +634,7 @@ class ReferenceModel:
             t_solid = self.t_solid
 
             def reforms(t, y):
-                return isentropic_top_melt(self.temperatures(y)[0] * self.mantle.adiabat[-1], self.mantle,
-                                           ph) - phi_c
+                return regime_melt(self.temperatures(y)[0], self._lid(y), self.mantle, ph) - phi_c
             reforms.direction = 1  # rising through phi_c: the magma ocean forms again
             second = solve_ivp(self.rhs, (t_solid, t_end), y0, events=reforms,
                                first_step=1.0 if t_solid == 0.0 else None, **opts)

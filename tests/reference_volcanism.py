@@ -26,7 +26,7 @@ def node_masses(interior) -> np.ndarray:
 
 
 def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, extracted_co2, surface_h2o=0.0,
-               surface_co2=0.0, share=0.0, radiogenic=0.0):
+               surface_co2=0.0, share=0.0, radiogenic=0.0, lid_rate=0.0):
     """Melt production [kg/s], heat out of the mantle [W], crust rate [m/s], H2O and CO2 taken from the mantle
     and outgassed [kg/s], the convective velocity [m/s], the rate of the crust's share of the heat sources
     [1/s], the crust's heat [W], the surface flux it adds [W/m^2] and the lid rate it adds [m/s] of a solid
@@ -52,8 +52,10 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
       (s H / A) (1 - min(D_cr / D_l, 1) / 2), lid rate -(s H / A) min(D_cr / D_l, 1) / 2 / (rho c (T_u - T_lm))
       under a stagnant lid (T_lm the mean of T_eq and T_l), all of s H / A at the surface under a mobile lid;
     * crust: production / (rho_cr 4 pi (R - D_cr)^2), times smoothstep((cap - D_cr) / (0.05 cap)) with
-      cap = min(lid, P_ecl / (rho_cr g)) under a stagnant lid, plus min(cap - D_cr, 0) u / d; under a mobile
-      lid less D_cr u / d (subduction).
+      cap = min(lid, P_ecl / (rho_cr g)) under a stagnant lid, plus min(cap - D_cr, 0) u / d, plus, where the
+      lid (above its minimum) is the cap, (1 - smoothstep) min(lid_rate + crust lid rate, 0): the crust follows
+      a thinning lid (``lid_rate``: the lid's rate without the crust's heat [m/s]); under a mobile lid less
+      D_cr u / d (subduction).
     """
     v, cv = spec.volcanism, spec.convection
     stagnant = cv.regime == "stagnant-lid"
@@ -69,6 +71,7 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
 
     big_r, r_c = interior.radius, interior.core_radius
     depth = big_r - r_c
+    lid_in = lid
     lid = max(lid, 1.0e3) if stagnant else 0.0  # the scheme's smallest lid (boundary_layer.LID_MIN)
     d = max(depth - lid, 0.05 * depth) if stagnant else depth
     u = 0.25 * math.pi * cv.thermal_diffusivity * d / delta ** 2
@@ -124,11 +127,20 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
     prod = k * sums["melt"]
     area_base = 4.0 * math.pi * (big_r - crust) ** 2
     grow = prod / (rho_cr * area_base)
+    # the crust's heat sources: the lid rate they add (needed by the crust that follows a thinning lid)
+    flux = share * radiogenic / (4.0 * math.pi * big_r ** 2) if v.crust_heat_sources == "on" else 0.0
+    half = 0.5 * min(crust / lid, 1.0) if stagnant else 0.0
+    # the lid's rock at T_l (base-flux growth law) or at the mean of its linear profile (heat-balance
+    # integral; no star: T_eq fixed)
+    t_lid = tl if cv.lid_growth_law == "base-flux" else 0.5 * (spec.surface.equilibrium_temperature_k + tl)
+    crust_lid_rate = -flux * half / (interior.rho[ms][-1] * cv.mantle_heat_capacity * max(tu - t_lid, 1.0))
     if stagnant:
         cap = min(lid, v.eclogite_pressure_gpa * 1e9 / (rho_cr * interior.surface_gravity))
         s = min(max((cap - crust) / (0.05 * cap), 0.0), 1.0)
         keep = s * s * (3.0 - 2.0 * s)
         loss = min(cap - crust, 0.0) * u / d
+        if lid_in > 1.0e3 and lid < v.eclogite_pressure_gpa * 1e9 / (rho_cr * interior.surface_gravity):
+            loss += (1.0 - keep) * min(lid_rate + crust_lid_rate, 0.0)
     else:
         keep, loss = 1.0, -crust * u / depth
     rate = grow * keep + loss
@@ -140,16 +152,7 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
         recycled = (1.0 - keep) * prod - rho_cr * area_base * loss
         out["share_rate"] = (k * sums["hpe"] * (1.0 - share) / interior.mantle_mass
                              - (share * recycled / m_crust if m_crust > 0.0 else 0.0))
-        flux = share * radiogenic / (4.0 * math.pi * big_r ** 2)
         out["crust_heat"] = share * radiogenic
-        if stagnant:
-            half = 0.5 * min(crust / lid, 1.0)
-            # the lid's rock at T_l (base-flux growth law) or at the mean of its linear profile (heat-balance
-            # integral; no star: T_eq fixed)
-            t_lid = tl if cv.lid_growth_law == "base-flux" else 0.5 * (spec.surface.equilibrium_temperature_k + tl)
-            out["crust_heat_flux"] = flux * (1.0 - half)
-            out["crust_lid_rate"] = -flux * half / (interior.rho[ms][-1] * cv.mantle_heat_capacity
-                                                   * max(tu - t_lid, 1.0))
-        else:
-            out["crust_heat_flux"] = flux
+        out["crust_heat_flux"] = flux * (1.0 - half)
+        out["crust_lid_rate"] = crust_lid_rate if stagnant else 0.0
     return out

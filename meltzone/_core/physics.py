@@ -17,7 +17,7 @@ from ..constants import GAS_CONSTANT, STEFAN_BOLTZMANN, YEAR
 from ._jit import njit
 from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DELTA_C, D_DELTA_U, D_DLID, D_EPS,
                      D_ETA_C, D_ETA_U, D_H, D_PHI_SURF, D_PHI_TOP, D_QC, D_QS, D_QU, D_REGIME, D_RIC, D_TB, D_TL,
-                     D_TS, G_AUX1, G_AUX2, G_F, G_R, G_TLIQ, G_TSOL, G_W, ISO_DECAY, ISO_HEAT, P_A_RH, P_A_VISC,
+                     D_TS, G_F, G_R, G_W, ISO_DECAY, ISO_HEAT, P_A_RH, P_A_VISC,
                      P_ALPHA, P_ATMOSPHERE, P_BETA, P_BLEND, P_CC, P_CM, P_CORE_RADIUS, P_E_ACT,
                      P_ETA_LIQ, P_G_CMB, P_G_SURF, P_K, P_KAPPA, P_LATENT, P_LID_MIN,
                      P_MANTLE_MASS, P_MELT_WEAK, P_NU_A, P_P_CMB, P_P_TOP, P_PHI_C, P_RA_CR, P_RADIUS,
@@ -30,7 +30,7 @@ from .lid import lid_growth, lid_heat_temperature
 from .properties import at_depth, depth_index, property_factors
 from .layout import D_MB, D_RB, G_P, G_RHO, P_BMO, P_BMO_MREF, P_RA_VISC, RA_VISC_MID, RA_VISC_SURFACE
 from .layout import Y_OG_CO2, Y_OG_H2O
-from .melt import melt_fraction
+from .isentropic import PHI_XTOL, isentropic_melt, isentropic_top_melt, node_melt  # noqa: F401
 from .roots import bisect, illinois
 from .layout import (D_ABS, D_DISSOLVED, D_ESCAPE, D_LOST, D_OCEAN, D_OLR, D_P_CO2, D_P_H2O, P_H2O_SOL_C,
                      P_H2O_SOL_E, P_STEAM, Y_WATER)
@@ -48,8 +48,6 @@ NO, YES = np.bool_(False), np.bool_(True)
 
 #: Temperature bracket of the stored-heat inversion [K]
 T_MIN, T_MAX = 10.0, 2.0e5
-#: Absolute tolerance of the isentropic melt fraction's bisection
-PHI_XTOL = 1e-13
 #: Time over which a lid thins back to its minimum where the top is molten [s] (this model's choice)
 LID_RELAX_TIME = 1.0e3 * YEAR
 
@@ -112,32 +110,6 @@ def log_viscosity(t, h_act, phi, par):
 def viscosity(t, p, phi, par):
     """Effective viscosity [Pa s] at temperature t [K], pressure p [Pa] and melt fraction phi."""
     return math.exp(log_viscosity(t, activation_enthalpy(p, par), phi, par))
-
-
-@njit
-def node_melt(t, grid, i, law):
-    return melt_fraction(t, grid[G_TSOL, i], grid[G_TLIQ, i], grid[G_AUX1, i], grid[G_AUX2, i], law)
-
-
-@njit
-def _isentropic_residual(x, args):
-    t, lc, tsol, tliq, aux1, aux2, law = args
-    return x - melt_fraction(t - lc * x, tsol, tliq, aux1, aux2, law)
-
-
-@njit
-def isentropic_melt(t, grid, i, law, par):
-    """Melt fraction phi = phi_eq(t - (L / c_p) phi) at node i: the batch melt of a parcel that rose
-    adiabatically from below its solidus and paid the latent heat of its melt (the batch limit of
-    isentropic decompression melting, McKenzie & Bickle 1988, J. Petrol. 29:625; from memory). It ignores
-    the steeper adiabat of a melting parcel. Bisection: phi - phi_eq(t - L phi / c) rises with phi."""
-    lc = par[P_LATENT] / par[P_CM]
-    hi = node_melt(t, grid, i, law)
-    if hi <= 0.0 or lc <= 0.0:
-        return hi
-    # plain floats in the tuple: no reference counting in the hot loop
-    args = (t, lc, grid[G_TSOL, i], grid[G_TLIQ, i], grid[G_AUX1, i], grid[G_AUX2, i], law)
-    return bisect(_isentropic_residual, args, 0.0, hi, PHI_XTOL, 0.0, 60)
 
 
 @njit
@@ -436,9 +408,10 @@ def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag, 
     # the surface magma ocean is above the rheological transition; once the top has first reached it
     # (t >= t_switch), the isentropic value of a solid mantle that melts as it rises, so that a solid
     # mantle does not turn back into a magma ocean as soon as its adiabat crosses phi_c at the surface
+    # (under a stagnant lid, at the lid's base: the convecting mantle's top; see isentropic_top_melt)
     phi_surf = node_melt(tu * grid[G_F, top], grid, top, law_i)
     solidified = t >= t_switch
-    phi_top = isentropic_melt(tu * grid[G_F, top], grid, top, law_i, par) if solidified else phi_surf
+    phi_top = isentropic_top_melt(tu, d_lid, grid, par, law_i) if solidified else phi_surf
     magma = phi_top > par[P_PHI_C]
     stagnant = par[P_STAGNANT] > 0.5 and not magma
     # magma-ocean branch: the suspension viscosity of the same melt fraction that sets the regime, so that

@@ -13,7 +13,7 @@ import math
 
 from ._jit import njit
 from .lid import lid_heat_temperature
-from .layout import (D_ATM_CO2, D_ATM_H2O, D_DCRUST, D_DELTA_U, D_DHPE, D_DLID_CRUST, D_H, D_MPROD, D_OCEAN,
+from .layout import (D_ATM_CO2, D_ATM_H2O, D_DCRUST, D_DELTA_U, D_DHPE, D_DLID, D_DLID_CRUST, D_H, D_MPROD, D_OCEAN,
                      D_OG_CO2, D_OG_H2O, D_QCRUST, D_QS, D_QS_CRUST, D_QVOLC, D_REGIME, D_TL, D_TS, D_UCONV, D_XCO2,
                      D_XH2O, G_F, G_P, G_R, G_W, P_ATMOSPHERE, P_CM, P_CORE_RADIUS, P_CRUST_HEAT, P_D_CO2,
                      P_D_H2O, P_D_HPE, P_DEPLETE, P_ERUPT, P_G_SURF, P_KAPPA, P_LATENT, P_LID_MIN, P_MANTLE_MASS,
@@ -56,9 +56,10 @@ def volcanism(tu, y, diag, grid, par, law):
     after :func:`meltzone._core.physics.diagnose` has filled ``diag``; fills D_MPROD (melt mass extracted
     [kg/s]), D_QVOLC (heat the erupted melt carries to the surface [W]), D_DCRUST (crust growth [m/s]),
     D_XH2O and D_XCO2 (H2O and CO2 the melt takes out of the mantle [kg/s]) and D_UCONV (convective
-    velocity [m/s]). All zero in the magma-ocean regime (the ocean is its own melt; in the blend across the
-    rheological transition the regime is the magma ocean's and so is the upper boundary layer) and with
-    volcanism off: production starts at the rheological switch, where the integrator lands a step.
+    velocity [m/s]). No extraction in the magma-ocean regime (the ocean is its own melt; in the blend across the
+    rheological transition the regime is the magma ocean's and so is the upper boundary layer): there only the
+    crust's heat (all of it at the surface) and its return with the thinning lid; all zero with volcanism off.
+    Production starts at the rheological switch, where the integrator lands a step.
 
     * Melt zone (nodes from the surface down, to the deepest pressure melt rises from, P_P_EXTRACT: deeper
       melt is denser than its residue, Stixrude et al. 2009, EPSL 278:226; Kite et al. 2009, ApJ 700:1732;
@@ -90,7 +91,10 @@ def volcanism(tu, y, diag, grid, par, law):
       lid: no thicker than the lid (crust below it is recycled, Morschhauser et al. 2011) nor than the depth
       where its base turns to eclogite, P_P_ECLOGITE / (rho_cr g) (dense eclogite founders; O'Rourke &
       Korenaga 2012, Icarus 221:1043; from memory); growth fades over CRUST_CAP_WIDTH below that cap and crust
-      above it is removed at the convective rate u / d_conv. Mobile lid: subducted at the rate plates are
+      above it is removed at the convective rate u / d_conv. Where the lid (above its minimum) is the cap, crust
+      in the cut-off band also follows a lid that thins, (1 - smoothstep) min(dD_lid/dt, 0): the lid's base
+      overtakes it and it returns to the mantle with its share of the heat sources (this model's choice; in a
+      reformed magma ocean, where the lid thins to its minimum, so does the crust). Mobile lid: subducted at the rate plates are
       consumed, D u / d_mantle (this model's choice).
     * Depleted source (P_DEPLETE): the crust's mass is missing from the mantle, whose mean depletion is
       F = M_crust / M_mantle (the whole mantle, well mixed; recycled crust refertilises it). A residue that lost
@@ -120,8 +124,9 @@ def volcanism(tu, y, diag, grid, par, law):
       Turcotte & Schubert). Mobile lid: all of sH leaves at the surface."""
     for j in OUTPUTS:
         diag[j] = 0.0
-    if par[P_VOLC] < 0.5 or diag[D_REGIME] == REGIME_MAGMA_OCEAN:
+    if par[P_VOLC] < 0.5:
         return
+    magma = diag[D_REGIME] == REGIME_MAGMA_OCEAN
     stagnant = par[P_STAGNANT] > 0.5
     r_p = par[P_RADIUS]
     depth = r_p - par[P_CORE_RADIUS]
@@ -134,18 +139,27 @@ def volcanism(tu, y, diag, grid, par, law):
     rho_cr = par[P_RHO_CRUST]
     area_base = 4.0 * math.pi * (r_p - crust) ** 2
     m_crust = rho_cr * 4.0 / 3.0 * math.pi * (r_p ** 3 - (r_p - crust) ** 3)
+    share = min(max(y[Y_HPE], 0.0), 1.0)
+    heat_sources = par[P_CRUST_HEAT] > 0.5
+    if heat_sources:  # in a reformed magma ocean all of it at the surface
+        crust_heat(tu, share, crust, d_lid, stagnant and not magma, diag, par)
     cap = 0.0
+    keep = 1.0  # share of the extracted melt the crust keeps (the rest recycles crust from its base)
     if stagnant:
         cap = min(d_lid, par[P_P_ECLOGITE] / (rho_cr * par[P_G_SURF]))
-        # crust above its cap is removed at the convective rate (the lid thinned, or its base turned to eclogite)
+        keep = smoothstep((cap - crust) / (CRUST_CAP_WIDTH * cap)) if cap > 0.0 else 0.0
+        # crust above its cap is removed at the convective rate (its base turned to eclogite), and crust in the
+        # cap's cut-off band follows a lid that thins: the lid's base overtakes it (this model's choice)
         loss = min(cap - crust, 0.0) * u / d_conv
+        if y[Y_LID] > par[P_LID_MIN] and d_lid < par[P_P_ECLOGITE] / (rho_cr * par[P_G_SURF]):
+            loss += (1.0 - keep) * min(diag[D_DLID] + diag[D_DLID_CRUST], 0.0)
     else:
         loss = -crust * u / depth
     diag[D_DCRUST] = loss
-    share = min(max(y[Y_HPE], 0.0), 1.0)
-    heat_sources = par[P_CRUST_HEAT] > 0.5
-    if heat_sources:
-        crust_heat(tu, share, crust, d_lid, stagnant, diag, par)
+    if magma:  # no extraction: the ocean is its own melt; the crust and its share return as the lid thins
+        if heat_sources and m_crust > 0.0:
+            diag[D_DHPE] = share * rho_cr * area_base * loss / m_crust
+        return
     cp = par[P_CM]
     lat = par[P_LATENT]
     ts = diag[D_TS]
@@ -212,9 +226,6 @@ def volcanism(tu, y, diag, grid, par, law):
     diag[D_XCO2] = k * s_c
     diag[D_OG_H2O] = k * f_e * s_oh
     diag[D_OG_CO2] = k * f_e * s_oc
-    keep = 1.0  # share of the extracted melt the crust keeps (the rest recycles crust from its base)
-    if stagnant:
-        keep = smoothstep((cap - crust) / (CRUST_CAP_WIDTH * cap)) if cap > 0.0 else 0.0
     diag[D_DCRUST] += keep * mprod / (rho_cr * area_base)
     if heat_sources:
         # HPE in, and out with the crust that recycles (the cap's share of the new melt, and the crust removed)

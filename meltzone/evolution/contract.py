@@ -32,7 +32,8 @@ SERIES = {
     "melt_mass": ("kg", "mass of melt in the mantle", True),
     "regime": ("1", "0 magma ocean, 1 mobile lid, 2 stagnant lid", True),
     "top_melt_fraction": ("1", "melt fraction at the top of the convecting mantle that sets the regime: batch "
-                          "on the adiabat until it first falls to phi_c, isentropic after", True),
+                          "on the adiabat until it first falls to phi_c, isentropic after (at the stagnant lid's "
+                          "base)", True),
     "stored_energy": ("J", "stored heat of mantle and core (sensible + latent)", True),
     "heat_out_minus_radiogenic": ("J", "time integral of surface heat flow minus radiogenic power", True),
     "closure_error": ("1", "relative energy-closure error: (stored-energy loss - time-integrated surface heat "
