@@ -125,10 +125,19 @@ def dy_slot(j):
 def _implicit_step(args, t, y, h, k1, fresh, ws, ynew, yerr, k7, tmp):
     """One Rodas3 step of the boundary-layer right-hand side (the Jacobian first unless ``fresh``, i.e. already
     at (t, y)); False when the step's matrix is singular. A function of its own, so that the Rosenbrock stages
-    are not inlined into the loop's body."""
+    are not inlined into the loop's body. The components after the heat out (water lost, crust, extracted and
+    outgassed volatiles, the crust's heat share) are records of rates that switch on and off with the regime and
+    the melt zone: their Jacobian rows and time derivatives are zeroed, so the method treats them explicitly (a
+    W-method for them: their increments combine their own rates and stay zero where those are zero; a
+    difference across a switch once drove a crust and outgassed masses negative under a reformed magma ocean).
+    The energy rows keep theirs, so the linear energy invariant still closes."""
     jac, ft, lu, piv, kst, fwork = ws
     if not fresh:
         rosenbrock.jacobian(rhs_packed, args, t, y, k1, N_DEP, jac, ft, tmp, fwork, kst[0], h)
+        for i in range(Y_OUT + 1, jac.shape[0]):
+            ft[i] = 0.0
+            for j in range(jac.shape[1]):
+                jac[i, j] = 0.0
     if not rosenbrock.factor(jac, h, lu, piv):
         return False
     rosenbrock.step(rhs_packed, args, t, y, h, k1, ft, lu, piv, kst, ynew, yerr, k7, tmp)
