@@ -175,15 +175,14 @@ def test_earth_evolution_melts_under_ridges_today(earth):
 
 @pytest.fixture(scope="module")
 def mars():
-    """The Mars-like planet with the default melting model, and with the peridotite model."""
-    return evolve(PlanetSpec(**MARS)), evolve(PlanetSpec(**MARS, model="peridotite-mantle"))
+    """The Mars-like planet with the chondritic whole-mantle curves, and with the peridotite model (the default)."""
+    return evolve(PlanetSpec(**MARS, model="whole-mantle-sg")), evolve(PlanetSpec(**MARS, model="peridotite-mantle"))
 
 
-@pytest.mark.xfail(strict=True, reason="known limitation: measured 28 km with the default melting model (melting "
-                   "ends ~35 Myr after the magma ocean) and 79 km with the peridotite model (90% of it within ~160 "
-                   "Myr; melting ends at ~0.46 Gyr), with the depleted source and the crust's heat sources (31 and "
-                   "126 km without them); the crust is set by the burst of melting right after the magma ocean, "
-                   "which depends on the melting model; no threshold melt fraction or crustal conductivity")
+@pytest.mark.xfail(strict=True, reason="known limitation: measured 115 km with the default peridotite curves "
+                   "(volcanism ends at 1.06 Gyr) and 82 km with the chondritic whole-mantle curves (ends at 0.61 "
+                   "Gyr), with the depleted source and the crust's heat sources; the crust is set by the bursts of "
+                   "sub-lid melting after the magma ocean; no threshold melt fraction or crustal conductivity")
 def test_mars_crust_thickness(mars):
     """Mars-like stagnant-lid planet at 4.5 Gyr: mean crustal thickness 50 +- 12 km (Wieczorek & Zuber 2004,
     JGR 109:E01009; checked in a review page), with either melting model."""
