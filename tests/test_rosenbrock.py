@@ -47,7 +47,7 @@ def _make_driver(fun):
         while t < t_end * (1 - 1e-14):
             h = min(h, t_end - t)
             if not fresh:
-                rb.jacobian(fun, args, t, y, f0, n, jac, ft, tmp, fwork, kst[0], h)
+                rb.jacobian(fun, args, t, y, f0, n, jac, ft, tmp, fwork, kst[0], h, np.full(n + 1, rb.FD_REL))
                 fresh = True
             rb.factor(jac, h, lu, piv)
             rb.step(fun, args, t, y, h, f0, ft, lu, piv, kst, ynew, yerr, fnew, tmp)

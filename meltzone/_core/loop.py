@@ -51,6 +51,19 @@ CRUST_ATOL, CRUST_RTOL = 1.0, 1.0e-4
 END_SLACK = 1e-14
 #: the right-hand side depends on the state's components before this one (not on the time-integrated heat loss)
 N_DEP = Y_OUT
+#: relative perturbation of the Rosenbrock Jacobian's columns and of its df/dt (this model's choice, measured).
+#: rosenbrock.FD_REL (6.1e-6) moves a ~5000 K magma ocean under steam by ~0.03 K and, at 1 Gyr, the time by
+#: ~6e3 yr: so misjudged, the stiff radiative relaxation dominated Rodas3's error estimate and held the implicit
+#: steps at 1e4-3e5 yr for Gyr (five steam planets at 0.027-0.05 AU: 19-78 thousand steps; 2-4 thousand at
+#: 1e-7; 65659 instead of 18702 at 1e-4). The mantle-energy column keeps rosenbrock.FD_REL unless the top of
+#: the mantle is fully molten: a partly molten 7.2 M_E stagnant lid (T_u held at a melt-fraction kink) stalled
+#: at ~5e3 yr steps with 1e-7 there (200000 steps by 3.2 Gyr)
+FD_REL_ENERGY = 1.0e-7
+#: (Y_EM, Y_EC, Y_LID, time) perturbations of :func:`rosenbrock.jacobian`: with a partly molten top, and fully
+#: molten
+FD_RELS = np.full(N_DEP + 1, FD_REL_ENERGY)
+FD_RELS[Y_EM] = rosenbrock.FD_REL
+FD_RELS_MOLTEN = np.full(N_DEP + 1, FD_REL_ENERGY)
 
 
 @njit
@@ -133,7 +146,9 @@ def _implicit_step(args, t, y, h, k1, fresh, ws, ynew, yerr, k7, tmp):
     The energy rows keep theirs, so the linear energy invariant still closes."""
     jac, ft, lu, piv, kst, fwork = ws
     if not fresh:
-        rosenbrock.jacobian(rhs_packed, args, t, y, k1, N_DEP, jac, ft, tmp, fwork, kst[0], h)
+        molten = args[7][D_PHI_SURF] >= 1.0  # diag: of the last evaluation, f(t, y) = k1
+        rosenbrock.jacobian(rhs_packed, args, t, y, k1, N_DEP, jac, ft, tmp, fwork, kst[0], h,
+                            FD_RELS_MOLTEN if molten else FD_RELS)
         for i in range(Y_OUT + 1, jac.shape[0]):
             ft[i] = 0.0
             for j in range(jac.shape[1]):

@@ -65,7 +65,8 @@ NONSTIFF_STEPS = 6
 #: cube root of the double-precision epsilon, the usual optimum of a central difference. The right-hand side
 #: carries the round-off of the stored-heat inversion (~1e-5 relative in the lid's rate, a difference of two
 #: near-equal heat flows), with which a forward difference at sqrt(epsilon) misjudged the lid's column by ~2 %
-#: and the error estimate stopped falling with the step (measured)
+#: and the error estimate stopped falling with the step (measured). A caller may pass smaller perturbations
+#: for columns whose rates are smooth only on a smaller scale (:func:`jacobian`'s ``rel``)
 FD_REL = 6.055454452393343e-06
 
 
@@ -122,11 +123,11 @@ def spectral_bound(jac, scale):
 
 
 @njit
-def _perturb(y, tmp, j, sign):
-    """tmp = y with component j moved by sign FD_REL max(|y_j|, 1); returns the move actually represented."""
+def _perturb(y, tmp, j, sign, rel):
+    """tmp = y with component j moved by sign rel max(|y_j|, 1); returns the move actually represented."""
     for i in range(y.shape[0]):
         tmp[i] = y[i]
-    tmp[j] = y[j] + sign * FD_REL * max(abs(y[j]), 1.0)
+    tmp[j] = y[j] + sign * rel * max(abs(y[j]), 1.0)
     return abs(tmp[j] - y[j])
 
 
@@ -137,21 +138,21 @@ def _difference(out, f1, f0, d):
 
 
 @njit(inline="always")
-def jacobian(fun, args, t, y, f0, n_dep, jac, ft, tmp, fwork, kscr, h):
+def jacobian(fun, args, t, y, f0, n_dep, jac, ft, tmp, fwork, kscr, h, rel):
     """Finite-difference Jacobian ``jac`` = df/dy at (t, y) with f0 = f(t, y) given, and ``ft`` = df/dt.
 
     Only the first ``n_dep`` components of y enter f (the later columns are zero and not differenced).
-    Central differences in y with the perturbation FD_REL max(|y_j|, 1); a forward difference in time with
-    FD_REL max(|t|, h) (never backwards: f may change its law at a past switch time). ``kscr`` (n) is scratch.
+    Central differences in y with the perturbation rel[j] max(|y_j|, 1); a forward difference in time with
+    rel[n_dep] max(|t|, h) (``rel``: n_dep + 1 relative perturbations, FD_REL where nothing better is known) (never backwards: f may change its law at a past switch time). ``kscr`` (n) is scratch.
     Inlined where it is called, like :func:`step`."""
     jac[:, :] = 0.0
     for j in range(n_dep):
-        up = _perturb(y, tmp, j, 1.0)
+        up = _perturb(y, tmp, j, 1.0, rel[j])
         fun(t, tmp, args, fwork)
-        down = _perturb(y, tmp, j, -1.0)
+        down = _perturb(y, tmp, j, -1.0, rel[j])
         fun(t, tmp, args, kscr)
         _difference(jac[:, j], fwork, kscr, up + down)
-    dt = FD_REL * max(abs(t), h)
+    dt = rel[n_dep] * max(abs(t), h)
     fun(t + dt, y, args, fwork)
     _difference(ft, fwork, f0, dt)
 
