@@ -563,14 +563,6 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     dy[Y_WATER] = diag[D_ESCAPE]
 
 
-@njit(inline="always")
-def rhs_packed(t, y, args, dy):
-    """:func:`rhs` with its inputs in one tuple (t_switch, grid, core, iso, par, law, work, diag), the form the
-    stepper of :mod:`meltzone._core.dopri` calls."""
-    t_switch, grid, core, iso, par, law, work, diag = args
-    rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy)
-
-
 @njit
 def profile(tu, tc, d_lid, diag, grid, par, law, temp, phi):
     """Temperature T(r) and melt fraction on the mantle nodes (CMB -> surface).
