@@ -23,8 +23,8 @@ import numpy as np
 from ..constants import G
 from ._jit import njit
 from .layout import (BLEW_UP, EMPTIED, FORM_INCOMPRESSIBLE, FORM_VINET, MAT_CV, MAT_FORM, MAT_GAMMA0, MAT_K0,
-                     MAT_KP, MAT_Q, MAT_RHO0, OUT_OF_ROOM, PATH_I, PATH_M, PATH_P, PATH_R, PATH_REGION,
-                     PATH_RHO, PATH_T, REACHED_CENTRE)
+                     MAT_KP, MAT_Q, MAT_RHO0, OUT_OF_ROOM, PATH_COLS, PATH_I, PATH_M, PATH_P, PATH_R, PATH_REGION,
+                     PATH_RHO, PATH_T, REACHED_CENTRE)  # noqa: F401 (PATH_COLS: read by meltzone.interior)
 
 FOUR_PI = 4.0 * math.pi
 EIGHT_PI_THIRD = 8.0 * math.pi / 3.0
