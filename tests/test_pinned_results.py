@@ -10,9 +10,18 @@ H2O-CO2 atmosphere and the Katz 2003 melt law, an iron-rich 0.8 M_E planet (core
 relative (1e-12 of the series' largest magnitude for quantities that pass through zero). A refactor must not
 move them; a physics change that does re-pins them in a commit that names it (common practice: golden-master
 tests).
+
+The 1e-12 pin holds only where the fixture was written: numba compiles for the host CPU (vector width, fused
+multiply-add) and numpy/scipy/numba releases change round-off, which adaptive step control amplifies (measured:
+a fixture written on one x86-64 machine, run on an AMD Zen 3 with other library releases, gave other step
+counts and summary outcomes up to 0.6% apart, the stagnant-lid grey planet's outgassed water). The fixture
+records its environment (``tests/data/make_pinned_fixture.py``: host CPU name and features, numpy, scipy, numba,
+llvmlite); in another environment the summary outcomes are compared at CROSS_RTOL instead, which still catches a
+physics change of more than a few percent, and the full histories are compared only at home.
 """
 
 import json
+import sys
 from pathlib import Path
 
 import numpy as np
@@ -20,10 +29,16 @@ import pytest
 
 import meltzone
 
+sys.path.insert(0, str(Path(__file__).parent / "data"))
+from make_pinned_fixture import environment  # noqa: E402
+
 DATA = Path(__file__).parent / "data"
 FIXTURE = json.loads((DATA / "pinned.json").read_text())
 ARRAYS = np.load(DATA / "pinned.npz")
 RTOL = 1e-12
+#: summary outcomes in another environment (twice the largest difference measured between two machines, 0.6%)
+CROSS_RTOL = 2e-2
+HOME = FIXTURE.get("_written_by", {}).get("environment") == environment()
 CASES = sorted(name for name in FIXTURE if not name.startswith("_"))
 
 
@@ -43,6 +58,9 @@ def case(request):
 
 
 def test_history_unchanged(case):
+    if not HOME:
+        pytest.skip("the fixture was written in another environment (CPU or library releases): histories are "
+                    "pinned only where written; the summary outcomes are compared at CROSS_RTOL")
     name, result = case
     fields = sorted({key.split("/", 1)[1] for key in ARRAYS.files if key.startswith(name + "/")})
     assert len(fields) >= 20
@@ -69,9 +87,12 @@ def test_summary_unchanged(case):
     old = _flatten(FIXTURE[name]["summary"])
     new = _flatten(result.summary())
     assert old.keys() <= new.keys()
+    rtol = RTOL if HOME else CROSS_RTOL
     for key, value in old.items():
         got = new[key]
-        if isinstance(value, float) and isinstance(got, float):
-            assert got == pytest.approx(value, rel=RTOL, abs=1e-300, nan_ok=True), (name, key)
+        if not HOME and key == "energy_closure":  # round-off itself: only its bound carries over
+            assert got <= max(value, 1e-12) * 1e3, (name, key)
+        elif isinstance(value, float) and isinstance(got, float):
+            assert got == pytest.approx(value, rel=rtol, abs=1e-300, nan_ok=True), (name, key)
         else:
             assert got == value, (name, key)

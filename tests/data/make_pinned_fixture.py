@@ -1,10 +1,11 @@
-"""Write the pinned-results fixture (history arrays + summary) for three planets with the current code.
+"""Write the pinned-results fixture (history arrays + summary) for five planets with the current code.
 
 Run from the repository root: `python tests/data/make_pinned_fixture.py tests/data/pinned`. Re-pin only in a
 commit whose message names the deliberate physics change that moved the pinned numbers; a refactor must leave
 them unchanged (tests/test_pinned_results.py).
 """
 import json
+import platform
 import subprocess
 import sys
 
@@ -32,9 +33,21 @@ CASES = {
 }
 
 
+def environment():
+    """What the 1e-12 pin depends on besides the code: the host CPU numba compiles for and the numerical
+    libraries' releases."""
+    import llvmlite
+    import llvmlite.binding as llvm
+    import numba
+    import scipy
+    return {"machine": platform.machine(), "cpu": llvm.get_host_cpu_name(),
+            "cpu_features": llvm.get_host_cpu_features().flatten(), "numpy": np.__version__,
+            "scipy": scipy.__version__, "numba": numba.__version__, "llvmlite": llvmlite.__version__}
+
+
 def main(prefix):
     commit = subprocess.run(["git", "rev-parse", "--short", "HEAD"], capture_output=True, text=True).stdout.strip()
-    out = {"_written_by": {"commit": commit, "meltzone": meltzone.__version__}}
+    out = {"_written_by": {"commit": commit, "meltzone": meltzone.__version__, "environment": environment()}}
     arrays = {}
     for name, cfg in CASES.items():
         r = meltzone.evolve(cfg)
