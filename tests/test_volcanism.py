@@ -204,8 +204,12 @@ def mars():
                    "Gyr). The first crust, 35 km at 10 Myr under a mantle at 1640 K, is Morschhauser et al. 2011's "
                    "admissible start (~1650 K, ~30 km primordial crust; abstract checked); the rest is one burst "
                    "when the lid, grown to ~420 km while the mantle warmed to 1870 K without melting below it, "
-                   "thins at 0.8-1.1 Gyr (their second stage is extended and wanes ~3.5 Ga). A 10x lower viscosity "
-                   "prefactor (their iron-rich, wet mantle is softer) still gives 93 km; not tuned")
+                   "thins at 0.8-1.1 Gyr (their second stage is extended and wanes ~3.5 Ga). Measured variants: "
+                   "10x and 100x lower viscosity prefactor (their iron-rich, wet mantle is softer) 93 and 75 km; a "
+                   "cool start at 1650 K 123 km; crust heat sources off 137 km; the heat-balance-integral lid law "
+                   "(a slower lid: the default overshoots the exact conduction lid, tests/test_lid_growth.py) "
+                   "melts without a burst until 1.15 Gyr under a mantle at 1700-1780 K, yet builds 108 km; "
+                   "not tuned")
 def test_mars_crust_thickness(mars):
     """Mars-like stagnant-lid planet at 4.5 Gyr: mean crustal thickness 50 +- 12 km (Wieczorek & Zuber 2004,
     JGR 109:E01009; checked in a review page), with either melting model."""
