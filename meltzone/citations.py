@@ -207,9 +207,14 @@ REGISTRY.update({
                              "Stixrude et al. 2009, EPSL 278:226", MEMORY),
     "orourke2012": Citation("stagnant-lid crust capped where its base turns to eclogite (1.5 GPa)",
                             "O'Rourke & Korenaga 2012, Icarus 221:1043; Ito & Kennedy 1971", MEMORY),
-    "volcanism_choices": Citation("plate length = mantle depth in the convective velocity; intruded melt's heat "
-                                  "leaves through the lid; mobile-lid crust subducted at u / d; smooth cut-off of "
-                                  "crust growth over 5% of its cap", "meltzone", CHOICE),
+    "volcanism_choices": Citation("cell length = convecting depth in a stagnant lid's convective velocity; "
+                                  "intruded melt's heat leaves through the lid; mobile-lid crust subducted at the "
+                                  "plates' age; smooth cut-off of crust growth over 5% of its cap", "meltzone",
+                                  CHOICE),
+    "plate_area": Citation("mobile lid: the plates on both sides of the ridges cover the surface (length R / ridge "
+                           "factor), so seafloor is made at 4 pi R^2 over the age 4 delta^2 / (pi kappa); Earth "
+                           "makes ~3.4 km^2/yr", "common practice (area balance); Rowley 2002, GSA Bull. 114:927, "
+                           "the figure as summarised in Science 297:1239", CHECKED),
     "vent_solubility": Citation("erupted melt keeps the H2O (6.8e-8 P^0.7) and CO2 (4.4e-12 P) its solubility "
                                 "allows at each gas's partial pressure at the surface", "laws of Lebrun et al. "
                                 "2013, JGR Planets 118:1155", MEMORY),
@@ -260,7 +265,8 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     if spec.volcanism.enabled == "on":
         vc = spec.volcanism
         keys += ["morschhauser2011", "kite2009", "moore2013", "crisp1984", "volatile_partition", "stixrude2009",
-                 "volcanism_choices"] + (["orourke2012", "crust_follows_lid"] if cv.regime == "stagnant-lid" else [])
+                 "volcanism_choices"] + (["orourke2012", "crust_follows_lid"] if cv.regime == "stagnant-lid" else
+                                         ["plate_area"])
         keys += (["vent_solubility", "tosi2017_outgassing"] if vc.vent_solubility == "on" else []) + (
             ["melt_depletion"] if vc.melt_depletion == "on" else []) + (
             ["crust_heat_sources", "conductive_crust"] if vc.crust_heat_sources == "on" else [])

@@ -58,7 +58,8 @@ VOLCANISM_KEYS = {
                "from memory)"),
     "ridge_length_factor": dict(
         default=1.5, unit="1", lo=0.01, hi=10.0,
-        doc="length of spreading ridges over the planet's circumference (mobile lid)",
+        doc="length of spreading ridges over the planet's circumference (mobile lid); sets the plates' length "
+            "R / factor and so their speed, not the area of new seafloor (the plates cover the surface)",
         source="Earth: ~60000 km of ridges over a 40000 km circumference (common practice); Kite et al. 2009 "
                "scale ridge length with planet size (from memory)"),
     "vent_solubility": dict(

@@ -34,7 +34,8 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
     ``share``: the crust's share of the heat sources; ``radiogenic``: the planet's radiogenic power [W].
 
     * u = (pi / 4) kappa d / delta^2 (half-space cooling of a plate of length d; Turcotte & Schubert), d the
-      convecting depth (mantle depth less the lid) under a stagnant lid, the mantle depth under a mobile lid;
+      convecting depth (mantle depth less the lid) under a stagnant lid; under a mobile lid the plates' length
+      R / factor, so that the plates on both sides of ridges factor x 2 pi R long cover 4 pi R^2;
     * melt zone: the shallowest run of partially molten nodes below the lid and above the deepest extraction
       pressure. Stagnant lid: melt fraction at the profile's temperature (linear from T_l over delta below the
       lid, then the adiabat T_u f); mobile lid: isentropic phi = phi_eq(T_u f - L phi / c), melt at
@@ -73,7 +74,7 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
     depth = big_r - r_c
     lid_in = lid
     lid = max(lid, 1.0e3) if stagnant else 0.0  # the scheme's smallest lid (boundary_layer.LID_MIN)
-    d = max(depth - lid, 0.05 * depth) if stagnant else depth
+    d = max(depth - lid, 0.05 * depth) if stagnant else big_r / v.ridge_length_factor
     u = 0.25 * math.pi * cv.thermal_diffusivity * d / delta ** 2
     lc = cv.latent_heat / cv.mantle_heat_capacity
     fe = v.erupted_fraction
@@ -142,7 +143,7 @@ def extraction(spec, interior, tu, delta, ts, tl, lid, crust, extracted_h2o, ext
         if lid_in > 1.0e3 and lid < v.eclogite_pressure_gpa * 1e9 / (rho_cr * interior.surface_gravity):
             loss += (1.0 - keep) * min(lid_rate + crust_lid_rate, 0.0)
     else:
-        keep, loss = 1.0, -crust * u / depth
+        keep, loss = 1.0, -crust * u / d  # consumed at the plates' age d / u
     rate = grow * keep + loss
     out = {"production": prod, "heat": k * sums["heat"] if stagnant else 0.0, "crust_rate": rate, "h2o": k * sums["h2o"],
            "co2": k * sums["co2"], "velocity": u, "h2o_outgassing": fe * k * sums["og_h2o"],

@@ -41,7 +41,9 @@ def convective_velocity(d, delta, par):
     whose upper thermal boundary layer is delta.
 
     Half-space cooling of a plate of length d moving at u has the mean flux 2 k dT / sqrt(pi kappa d / u)
-    (Turcotte & Schubert, Geodynamics, checked); equated with k dT / delta it gives u above. With the
+    (Turcotte & Schubert, Geodynamics, checked; the surface flux k dT / sqrt(pi kappa t) averaged over ages 0 to
+    d / u, the area-weighted mean of a plate whose area is uniform in age); equated with k dT / delta it gives
+    u above: the plate is consumed at the age tau = d / u = 4 delta^2 / (pi kappa), whatever its length. With the
     boundary-layer law delta = d (Ra_cr / Ra)^beta this is u0 (Ra / Ra_cr)^(2 beta) with u0 = pi kappa / (4 d),
     the form of the convective velocity of Morschhauser, Grott & Breuer 2011, Icarus 212:541 (their u0 is a
     constant, ~2e-12 m/s for Mars, from memory; the same order as pi kappa / (4 d) = 5e-13 m/s there).
@@ -73,7 +75,13 @@ def volcanism(tu, y, diag, grid, par, law):
       4 pi R^2 u sum_i(m_i phi_i) / V_mantle (m_i the node masses of the melt zone). Mobile lid (Kite,
       Manga & Gaidos 2009, ApJ 700:1732; from memory): plate speed x ridge length x melt column, two plates
       per ridge: 2 u L_ridge sum_i(rho_i dz_i phi_i), L_ridge = P_RIDGE x 2 pi R. u from
-      :func:`convective_velocity` with the convecting depth (stagnant lid) or the mantle depth (mobile lid).
+      :func:`convective_velocity` with the convecting depth (stagnant lid) or, under a mobile lid, the plates'
+      length R / P_RIDGE: the plates on both sides of the ridges cover the surface, 2 L_ridge d = 4 pi R^2,
+      so new seafloor is made at 2 u L_ridge = 4 pi R^2 / tau, the surface over the plate's age at the trench
+      tau = 4 delta^2 / (pi kappa), whatever the ridge length (area balance; common practice: Earth makes
+      ~3.4 km^2/yr, Rowley 2002, GSA Bull. 114:927, from memory; the figure checked in Science
+      297:1239 (2002), the journal's summary). The plates were the mantle's depth long before: with ridges
+      1.5 circumferences long they covered 0.68 of Earth's surface (17.1 km^3/yr of ridge melt today).
     * Heat (D_QVOLC, out of the mantle and into the heat out): the erupted fraction f_e carries
       c_p (T_melt - T_s) + L per kg to the surface (heat pipe, Moore & Webb 2013, Nature 501:501, abstract
       checked); the intruded rest freezes in the crust and lid and brings them L + c_p (T_melt - T_l), the
@@ -95,7 +103,7 @@ def volcanism(tu, y, diag, grid, par, law):
       in the cut-off band also follows a lid that thins, (1 - smoothstep) min(dD_lid/dt, 0): the lid's base
       overtakes it and it returns to the mantle with its share of the heat sources (this model's choice; in a
       reformed magma ocean, where the lid thins to its minimum, so does the crust). Mobile lid: subducted at the rate plates are
-      consumed, D u / d_mantle (this model's choice).
+      consumed, D / tau = D u / (R / P_RIDGE) (this model's choice).
     * Depleted source (P_DEPLETE): the crust's mass is missing from the mantle, whose mean depletion is
       F = M_crust / M_mantle (the whole mantle, well mixed; recycled crust refertilises it). A residue that lost
       the fraction F melts again only where the fertile rock would hold more than F of melt, so each node's
@@ -132,7 +140,9 @@ def volcanism(tu, y, diag, grid, par, law):
     depth = r_p - par[P_CORE_RADIUS]
     delta = max(diag[D_DELTA_U], 1.0)
     d_lid = max(y[Y_LID], par[P_LID_MIN]) if stagnant else 0.0
-    d_conv = max(depth - d_lid, 0.05 * depth) if stagnant else depth
+    # stagnant: the convecting depth; mobile: the plates' length, R / P_RIDGE (the plates on both sides of ridges
+    # of length P_RIDGE 2 pi R cover the surface 4 pi R^2 the boundary layer's flux leaves through)
+    d_conv = max(depth - d_lid, 0.05 * depth) if stagnant else r_p / par[P_RIDGE]
     u = convective_velocity(d_conv, delta, par)
     diag[D_UCONV] = u
     crust = min(max(y[Y_CRUST], 0.0), 0.5 * r_p)
@@ -154,7 +164,7 @@ def volcanism(tu, y, diag, grid, par, law):
         if y[Y_LID] > par[P_LID_MIN] and d_lid < par[P_P_ECLOGITE] / (rho_cr * par[P_G_SURF]):
             loss += (1.0 - keep) * min(diag[D_DLID] + diag[D_DLID_CRUST], 0.0)
     else:
-        loss = -crust * u / depth
+        loss = -crust * u / d_conv  # consumed at the plates' age at the trench, d_conv / u
     diag[D_DCRUST] = loss
     if magma:  # no extraction: the ocean is its own melt; the crust and its share return as the lid thins
         if heat_sources and m_crust > 0.0:
