@@ -158,6 +158,24 @@ def test_earth_inner_core_age(earth):
     assert INNER_CORE_AGE_GYR[0] <= age <= INNER_CORE_AGE_GYR[1]
 
 
+#: Published cooling of Earth's core over the last 4 Gyr [K] (Nimmo 2015, Treatise on Geophysics 2nd ed. vol. 8,
+#: abstract checked: "The change in core temperature over 4 Gyr was 600-1600 K").
+CORE_COOLING_4GYR_K = (600.0, 1600.0)
+
+
+@pytest.mark.xfail(strict=True, reason="measured 410 K from 0.5 to 4.5 Gyr (410 K without the basal ocean; 445 and "
+                   "489 K from starts at the mantle liquidus at the CMB, 4774 K, and at 5500 K): the core-mantle "
+                   "coupling draws ~8 TW today against the published 12 +- 5 TW and the start is forgotten within "
+                   "~0.5 Gyr; not tuned")
+def test_earth_core_cooling_over_four_gyr(earth):
+    """Earth's CMB temperature falls by 600-1600 K from 0.5 to 4.5 Gyr (Nimmo 2015, abstract checked), no extra
+    tolerance; the same run as the inner-core checks above."""
+    h = earth.history
+    t_gyr = h.time / YEAR / 1e9
+    drop = float(np.interp(0.5, t_gyr, h["core_temperature"])) - float(h["core_temperature"][-1])
+    assert CORE_COOLING_4GYR_K[0] <= drop <= CORE_COOLING_4GYR_K[1]
+
+
 def test_iron_curve_flagged_beyond_its_static_experiments():
     """The iron melting curve (Anzellini et al. 2013) rests on static data to 200 GPa (checked in the paper's
     summary; its 330 GPa value is extrapolated); laser-shock data reach 1000 GPa (Kraus et al. 2022, Science
