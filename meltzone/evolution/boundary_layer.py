@@ -93,10 +93,13 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   gives the scheme without it (the lower boundary layer on the core). Off by default: its melting-curve form
   and its three parameters are this model's choice; at 0.5-2 M_E it stays at its cap for > 10 Gyr while the
   mixing-length scheme's basal layer ends at 1.1-1.6 Gyr; and it moves Earth's inner core further from PREM
-  (1841 against 1649 km without it). Its lifetime falls with planet mass (2.4 Gyr at 5 M_E, 0.31 at 10), as
-  the mixing-length scheme's does, against the published rise (Lherm, Nakajima & Blackman 2026, JGR Planets 131;
-  abstract checked): with a constant activation volume both schemes keep it > 10 Gyr at 5-10 M_E, so the fall
-  comes from the deep mantle's viscosity law (``convection.activation_volume_decay_pa``), not the reservoir;
+  (2367 against 2226 km without it, measured). Its lifetime falls with planet mass (0.96 Gyr at 5 M_E, 92 Myr at
+  10), as the mixing-length scheme's does, against the published rise (Lherm, Nakajima & Blackman 2026, JGR
+  Planets 131; abstract checked): with a constant activation volume both schemes keep it > 10 Gyr at 5-10 M_E, so
+  the fall comes from the deep mantle's viscosity law (``convection.activation_volume_decay_pa``), not the
+  reservoir nor the core's start (the adiabat rule's 10,273 K at 5 M_E: 0.98 Gyr); at P_d = 260 GPa, where the
+  deepest viscosity of a 10 M_E adiabat reaches Tackley et al. 2013's 1e30 Pa s, it still falls (3.3 Gyr, 0.28
+  Gyr and 61 Myr at 5, 10 and 15 M_E);
 * energy: the stored heat (sensible heat on the adiabat, latent heat of the
   melt, the lid's conductive profile, core sensible heat less the inner core's
   latent and gravitational energy) is one function of (T_u, lid) for the mantle
