@@ -128,7 +128,9 @@ def test_core_times_in_the_summary(five, earth):
 #: PREM's). Most of the gap is the core adiabat: the core is epsilon-iron on its Vinet isotherm (K 1507 GPa at the
 #: ICB, 770 at the CMB, against PREM's 1304 and 644), less compressible than Earth's liquid outer core, so
 #: (rho_icb / rho_cmb)^1.5 is 1.31 where PREM's densities give 1.36 (Labrosse 2015's form, gamma 1.5), which
-#: would need only ~4060 K at the CMB. The start does not matter: a core started at 4774 K (the mantle liquidus
+#: would need only ~4060 K at the CMB (an experiment with the core's f raised to PREM's 1.36 at the ICB, not in
+#: the code: 1899 km and 2.7 Gyr without the reservoir, 2070 km and 2.97 Gyr with it, the runs ending at
+#: 3968 and 3936 K, ~90 K short). The start does not matter: a core started at 4774 K (the mantle liquidus
 #: at the CMB) or 5500 K ends at 3965-3974 K (thermostat). The curve is not too steep (dT_m/dP 9.2 K/GPa at the
 #: ICB, Labrosse 2015's 9 K/GPa). Not tuned: 10% of PREM is ~20 K of T_c, and the curve alone is uncertain by
 #: +-500 K (Anzellini 2013).
