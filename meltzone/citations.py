@@ -104,6 +104,12 @@ REGISTRY = {
     "labrosse2015": Citation("inner-core latent and gravitational energy (values from memory); a CMB heat flow above "
                              "the isentropic 13.25 TW gives an inner core < 700 Myr old (abstract checked)",
                              "Labrosse 2015, PEPI 247:36", MEMORY),
+    "braginsky1995": Citation("gravitational energy of the inner core's growth: the rejected light elements "
+                              "redistributed in the liquid core's potential, (dRho_chi / rho) (mean psi - psi_icb) "
+                              "per kg", "Braginsky & Roberts 1995, GAFD 79:1", MEMORY),
+    "nakagawa2020": Citation("Labrosse 2015's core parameters: compositional density jump at the ICB 580 kg/m^3, "
+                             "c_p 750 J/kg/K, Grueneisen 1.5, dT_m/dP 9 K/GPa (Table 2)",
+                             "Nakagawa 2020, Prog. Earth Planet. Sci. 7:57", CHECKED),
     "anzellini2013": Citation("iron melting curve (Simon-Glatzel fit from memory; data to 200 GPa and 6230 +- 500 K "
                               "extrapolated to 330 GPa checked)",
                               "Anzellini et al. 2013, Science 340:464", MEMORY),
@@ -274,7 +280,12 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
         keys += ["reynard1990", "manga1997", "haigis2012", "property_exponents"]
     if cv.rayleigh_viscosity_depth != "surface":
         keys += ["rayleigh_point", "stamenkovic2012", "tackley2013"]
-    return tuple(keys + _start_keys(spec))
+    return tuple(keys + _start_keys(spec) + _core_keys(spec))
+
+
+def _core_keys(spec) -> list[str]:
+    """Keys of the inner core's gravitational energy (from the structure when core.gravitational_energy = 0)."""
+    return ["braginsky1995", "nakagawa2020"] if spec.core.gravitational_energy == 0.0 else []
 
 
 def _start_keys(spec) -> list[str]:
@@ -298,7 +309,7 @@ def mixing_length_keys(spec) -> tuple[str, ...]:
         keys.append("mlt_mobile_lid")
     if spec.surface.atmosphere == "grey":
         keys += ["abe1985", "elkins_tanton2008", "lebrun2013"]
-    return tuple(keys + _start_keys(spec)) + surface_keys(spec)
+    return tuple(keys + _start_keys(spec) + _core_keys(spec)) + surface_keys(spec)
 
 
 def surface_keys(spec) -> tuple[str, ...]:

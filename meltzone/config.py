@@ -199,9 +199,20 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
             source='order of published values, 6e5-1e6 J/kg (e.g. Labrosse 2015, PEPI 247:36; from memory); the '
                    'scaling: Clausius-Clapeyron with a constant entropy of fusion (Alfe et al. 2002, PRB 65:165118; '
                    'from memory)'),
-        "gravitational_energy": Key(3.0e5, "J/kg", "gravitational energy released per kg of inner core",
-                                    lo=0.0, hi=5.0e6,
-            source='order of published values (Labrosse 2015; from memory)'),
+        "gravitational_energy": Key(0.0, "J/kg", "gravitational energy released per kg of inner core, a constant; "
+                                    "0 = from the structure: the light elements the inner core rejects, "
+                                    "(compositional_density_jump / rho) x (mean potential of the liquid core - "
+                                    "potential at the inner core's edge)",
+                                    lo=1.0, hi=5.0e6, special=0.0,
+            source='from the structure (0): Braginsky & Roberts 1995, GAFD 79:1; Labrosse 2015, PEPI 247:36 (the '
+                   'integral form from memory); a constant: the former default 3e5 J/kg (order of published values, '
+                   'from memory)'),
+        "compositional_density_jump": Key(580.0, "kg/m^3", "compositional part of the density jump at the inner "
+                                          "core's edge (light elements rejected by the solid); used when "
+                                          "gravitational_energy = 0", lo=0.0, hi=3000.0,
+            source="Labrosse 2015, PEPI 247:36 (580 kg/m^3 for Earth, checked in Nakagawa 2020, PEPS 7:57, Table 2, "
+                   "which lists Labrosse 2015's parameters); Earth's total ICB jump 600-800 kg/m^3 (PREM; Masters & "
+                   "Gubbins 2003, PEPI 140:159, from memory)"),
     },
     "heating": {
         "radiogenic_scale": Key(1.0, "1", "scale of bulk-silicate-Earth heat-producing element abundances",

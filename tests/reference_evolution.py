@@ -45,6 +45,7 @@ from scipy.integrate import solve_ivp
 from scipy.optimize import brentq
 
 from meltzone import melting
+from meltzone.constants import G
 from meltzone.evolution.heating import ISOTOPES
 from meltzone.interior import build_interior
 from meltzone.iron import iron_melting_temperature
@@ -109,7 +110,6 @@ class Physics:
     blend_width: float
     core_heat_capacity: float
     core_latent_heat: float
-    core_gravitational_energy: float
     core_melting_depression: float
     equilibrium_temperature: float
     grey_atmosphere: bool
@@ -152,6 +152,20 @@ class CoreNodes:
     mass: np.ndarray
     enclosed: np.ndarray
     melting: np.ndarray
+    gravitational: np.ndarray  # E_g [J/kg] of an inner core whose edge is at each node
+
+
+def gravitational_energy(r, enclosed, jump, rho):
+    """E_g [J/kg] at each core node: (dRho_chi / rho) (mean potential of the liquid above - potential there), the
+    potential from g = G m(r) / r^2 (Newton, the enclosed mass; trapezoid in r), its mean over the liquid's mass
+    (trapezoid in enclosed mass); 0 at the CMB (Braginsky & Roberts 1995, GAFD 79:1)."""
+    g = np.where(r > 0.0, G * enclosed / np.where(r > 0.0, r, 1.0) ** 2, 0.0)
+    psi = np.concatenate([[0.0], np.cumsum(np.diff(r) * 0.5 * (g[1:] + g[:-1]))])
+    out = np.zeros_like(r)
+    for j in range(len(r) - 1):
+        dm, mid = np.diff(enclosed[j:]), 0.5 * (psi[j + 1:] + psi[j:-1])
+        out[j] = jump / rho[j] * (float(np.sum(dm * mid)) / (enclosed[-1] - enclosed[j]) - psi[j])
+    return out
 
 
 def shell_mass(r_in, r_out, r, rho):
@@ -196,9 +210,13 @@ def build_inputs(spec, interior=None):
     if nc >= 2:
         r_c, rho_c = it.r[:nc], it.rho[:nc]
         enclosed = np.array([shell_mass(0.0, x, r_c, rho_c) if x > 0 else 0.0 for x in r_c])
+        enclosed = enclosed * (it.core_mass / enclosed[-1])
+        eg = spec.core.gravitational_energy
         core = CoreNodes(r=r_c, adiabat=it.adiabat[:nc], mass=node_masses(r_c, rho_c, it.core_mass),
-                         enclosed=enclosed * (it.core_mass / enclosed[-1]),
-                         melting=iron_melting_temperature(it.P[:nc], spec.melting.core_melting_depression_k))
+                         enclosed=enclosed,
+                         melting=iron_melting_temperature(it.P[:nc], spec.melting.core_melting_depression_k),
+                         gravitational=(gravitational_energy(r_c, enclosed, spec.core.compositional_density_jump, rho_c)
+                                        if eg == 0.0 else np.full(nc, eg)))
     cv, sf = spec.convection, spec.surface
     scale = spec.heating.radiogenic_scale
     phys = Physics(
@@ -214,7 +232,6 @@ def build_inputs(spec, interior=None):
         rheology_a=cv.rheology_a, melt_weakening=cv.melt_weakening, liquid_viscosity=cv.liquid_viscosity_pa_s,
         critical_melt_fraction=cv.critical_melt_fraction, blend_width=cv.rheology_blend_width,
         core_heat_capacity=spec.core.core_heat_capacity, core_latent_heat=spec.core.core_latent_heat,
-        core_gravitational_energy=spec.core.gravitational_energy,
         core_melting_depression=spec.melting.core_melting_depression_k,
         equilibrium_temperature=sf.equilibrium_temperature_k, grey_atmosphere=sf.atmosphere == "grey",
         water_kg=sf.water_inventory_kg, co2_kg=sf.co2_inventory_kg, stagnant_lid=cv.regime == "stagnant-lid",
@@ -386,9 +403,11 @@ def inner_core(tc, core):
 def inner_core_release(m_ic, ph, core):
     """Latent + gravitational energy [J] released by an inner core of mass m_ic: the integral over its mass of
     L + E_g with L = L_ICB T_m / T_m(330 GPa) (constant entropy of melting; T_m the alloy's curve, each interval
-    between core nodes at the mean of its ends) and E_g constant; linear in mass inside an interval."""
+    between core nodes at the mean of its ends) and E_g of :func:`gravitational_energy` (or the configured
+    constant), also the mean of the interval's ends; linear in mass inside an interval."""
     t_ref = float(iron_melting_temperature(330e9, ph.core_melting_depression))
-    per_kg = ph.core_latent_heat * 0.5 * (core.melting[1:] + core.melting[:-1]) / t_ref + ph.core_gravitational_energy
+    per_kg = (ph.core_latent_heat * 0.5 * (core.melting[1:] + core.melting[:-1]) / t_ref
+              + 0.5 * (core.gravitational[1:] + core.gravitational[:-1]))
     edges = core.enclosed
     done = np.clip(m_ic - edges[:-1], 0.0, np.diff(edges))  # mass of each interval inside the inner core
     return float(np.sum(done * per_kg))

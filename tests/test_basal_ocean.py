@@ -30,7 +30,7 @@ def earth():
 
 @pytest.fixture(scope="module")
 def five():
-    """5 M_E to 3 Gyr at 256 and 512 mantle nodes (its basal ocean freezes at ~2.4 Gyr)."""
+    """5 M_E to 3 Gyr at 256 and 512 mantle nodes (its basal ocean freezes at ~0.96 Gyr)."""
     return {n: evolve(PlanetSpec(mass_earth=5.0, end_time_gyr=3.0, mantle_nodes=n, basal_magma_ocean="reservoir")) for n in (256, 512)}
 
 
@@ -45,7 +45,7 @@ def _lifetime(result):
 def test_reservoir_converges_with_the_mantle_nodes(five):
     """Doubling interior.mantle_nodes (256 -> 512) changes the basal ocean's largest thickness and its lifetime by
     <= 5% (the thickness is interpolated between nodes, not a node count). Tolerance 5%: asked of this model;
-    measured 0.02% and 0.14% (134.0 km, 2.42 Gyr)."""
+    measured 0.02% and 0.04% (134.0 km, 0.96 Gyr)."""
     a, b = five[256], five[512]
     assert a.history["basal_ocean_thickness"].max() > 50e3
     assert b.history["basal_ocean_thickness"].max() == pytest.approx(a.history["basal_ocean_thickness"].max(),
@@ -105,7 +105,7 @@ def test_basal_layer_summary_reads_the_series(five):
 
 def test_core_times_in_the_summary(five, earth):
     """Summary keys inner_core_nucleation_yr (the inner-core-nucleated event) and core_solid_yr (the inner core
-    fills the core; None if never): the 5 M_E core nucleates within the run and freezes at ~2.2 Gyr (measured),
+    fills the core; None if never): the 5 M_E core nucleates within the run and freezes at ~0.88 Gyr (measured),
     Earth's has not frozen; when present, the nucleation precedes the freezing."""
     s5 = five[256].summary()
     assert s5["inner_core_nucleation_yr"] is not None and s5["core_solid_yr"] is not None
@@ -118,19 +118,28 @@ def test_core_times_in_the_summary(five, earth):
     assert se["inner_core_nucleation_yr"] == (nucleated[0] if nucleated else None)
 
 
-#: Why Earth misses PREM here (measured, defaults, 4.5 Gyr): a 1221.5 km inner core needs T_c = 4213 K at the CMB
-#: on this core adiabat (f = 1.312 at the ICB, constant Grueneisen 1.5) and the alloy curve (5530 K at 330 GPa);
-#: the run ends at 3958 K with the reservoir (3998 K without). With constant expansivity and conductivity it
-#: ended at 4103 K (4143 K): the density-dependent conductivity raises k at the CMB to ~12 W/m/K and today's CMB
-#: heat flow to 7.4-8.0 TW (5.8-6.6 TW before; published 12 +- 5 TW, Nimmo 2015), and the default core start
-#: (4611 K, the CMB's rheological transition plus 200 K) is ~450 K below the former adiabat rule. The curve is not
-#: too steep (dT_m/dP 9.2 K/GPa at the ICB, Labrosse 2015's 9 K/GPa). The radius moves ~5.6 km per K of T_c, so
-#: 10% of PREM asks T_c to +-20 K while the curve alone is uncertain by +-500 K (Anzellini 2013): not tuned.
-_TOO_COLD = ("the core ends ~250 K colder (3958 K) than the 4213 K a 1221.5 km inner core needs on this adiabat and "
-             "curve; every ingredient within its published range; not tuned")
+#: Why Earth misses PREM here (measured, defaults, 4.5 Gyr): a 1221.5 km inner core needs T_c = 4215 K at the CMB
+#: on this core adiabat (f = 1.313 at the ICB, constant Grueneisen 1.5) and the alloy curve (5530 K at 330 GPa);
+#: the run ends at 3965 K with the reservoir (4007 K without), with a CMB heat flow of 8.1 TW (7.5 TW; published
+#: 12 +- 5 TW, Nimmo 2015). The core's energy budget is not what misses: per kelvin of CMB cooling today it
+#: releases 4.3e27 J (sensible 1.79e27 with c_p 800 J/kg/K; latent heat 7.5e5 J/kg and gravitational energy from
+#: the structure, 4.7e5 J/kg at the ICB with Labrosse 2015's 580 kg/m^3 compositional jump), and Labrosse 2015's
+#: form dc/dT_cmb = f_icb / (rho g (dT_m/dP - dT_ad/dP)) gives 7.3 km/K with this model's numbers (9.6 km/K with
+#: PREM's). Most of the gap is the core adiabat: the core is epsilon-iron on its Vinet isotherm (K 1507 GPa at the
+#: ICB, 770 at the CMB, against PREM's 1304 and 644), less compressible than Earth's liquid outer core, so
+#: (rho_icb / rho_cmb)^1.5 is 1.31 where PREM's densities give 1.36 (Labrosse 2015's form, gamma 1.5), which
+#: would need only ~4060 K at the CMB (an experiment with the core's f raised to PREM's 1.36 at the ICB, not in
+#: the code: 1899 km and 2.7 Gyr without the reservoir, 2070 km and 2.97 Gyr with it, the runs ending at
+#: 3968 and 3936 K, ~90 K short). The start does not matter: a core started at 4774 K (the mantle liquidus
+#: at the CMB) or 5500 K ends at 3965-3974 K (thermostat). The curve is not too steep (dT_m/dP 9.2 K/GPa at the
+#: ICB, Labrosse 2015's 9 K/GPa). Not tuned: 10% of PREM is ~20 K of T_c, and the curve alone is uncertain by
+#: +-500 K (Anzellini 2013).
+_TOO_COLD = ("the core ends ~250 K colder (3965 K) than the 4215 K a 1221.5 km inner core needs on this adiabat and "
+             "curve; most of it is the core adiabat of the epsilon-iron structure (f_icb 1.31 against 1.36 from PREM's "
+             "densities); not tuned")
 
 
-@pytest.mark.xfail(strict=True, reason="measured 2391 km at 4.5 Gyr (2256 km without the basal ocean): " + _TOO_COLD)
+@pytest.mark.xfail(strict=True, reason="measured 2367 km at 4.5 Gyr (2226 km without the basal ocean): " + _TOO_COLD)
 def test_earth_inner_core_radius_against_prem(earth):
     """Earth today (4.5 Gyr, defaults with the reservoir): inner-core radius against PREM's 1221.5 km (Dziewonski
     & Anderson 1981), tolerance 10% (122 km). The radius moves ~5.6 km per kelvin of core temperature here
@@ -149,6 +158,24 @@ def test_earth_inner_core_age(earth):
     assert nucleation is not None
     age = 4.5 - nucleation / 1e9
     assert INNER_CORE_AGE_GYR[0] <= age <= INNER_CORE_AGE_GYR[1]
+
+
+#: Published cooling of Earth's core over the last 4 Gyr [K] (Nimmo 2015, Treatise on Geophysics 2nd ed. vol. 8,
+#: abstract checked: "The change in core temperature over 4 Gyr was 600-1600 K").
+CORE_COOLING_4GYR_K = (600.0, 1600.0)
+
+
+@pytest.mark.xfail(strict=True, reason="measured 410 K from 0.5 to 4.5 Gyr (410 K without the basal ocean; 445 and "
+                   "489 K from starts at the mantle liquidus at the CMB, 4774 K, and at 5500 K): the core-mantle "
+                   "coupling draws ~8 TW today against the published 12 +- 5 TW and the start is forgotten within "
+                   "~0.5 Gyr; not tuned")
+def test_earth_core_cooling_over_four_gyr(earth):
+    """Earth's CMB temperature falls by 600-1600 K from 0.5 to 4.5 Gyr (Nimmo 2015, abstract checked), no extra
+    tolerance; the same run as the inner-core checks above."""
+    h = earth.history
+    t_gyr = h.time / YEAR / 1e9
+    drop = float(np.interp(0.5, t_gyr, h["core_temperature"])) - float(h["core_temperature"][-1])
+    assert CORE_COOLING_4GYR_K[0] <= drop <= CORE_COOLING_4GYR_K[1]
 
 
 def test_iron_curve_flagged_beyond_its_static_experiments():

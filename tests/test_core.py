@@ -76,13 +76,15 @@ def test_no_inner_core_at_the_start_of_a_default_run():
 def test_inner_core_heat_follows_the_melting_temperature():
     """Latent heat at a constant entropy of melting (Clausius-Clapeyron with Richards' rule; from memory):
     L(P) = L_ICB T_m(P) / T_m(330 GPa). The kernel's released heat grows with the inner core's mass at
-    L(P) + E_g per kg: near Earth's ICB (330 GPa) at the configured 7.5e5 + 3e5 J/kg (tolerance 1%: one core
-    interval), at the centre of 10 M_E about 4x that latent heat (its T_m is 4.1x Earth's ICB value);
+    L(P) + E_g per kg (E_g from the structure, tests below): near Earth's ICB (330 GPa) at the configured
+    7.5e5 J/kg (tolerance 1%: one core interval), at the centre of 10 M_E about 4x that latent heat (its T_m is
+    4.1x Earth's ICB value);
     and it equals the plain reference (tests/reference_evolution.py, its own node masses) to 1e-3."""
     import reference_evolution as ref
 
     from meltzone._core import layout as k
     from meltzone._core.inner_core import inner_core_heat
+    from meltzone.evolution.boundary_layer import gravitational_energy_nodes
     from meltzone.interior import build_interior
 
     for mass in (1.0, 10.0):
@@ -91,11 +93,14 @@ def test_inner_core_heat_follows_the_melting_temperature():
         per_kg = np.diff(core[k.C_EIC]) / np.diff(core[k.C_MCUM])
         t_mid = 0.5 * (core[k.C_TMELT, 1:] + core[k.C_TMELT, :-1])
         t_icb = iron.iron_melting_temperature(330 * GPA, spec.melting.core_melting_depression_k)
-        latent = per_kg - spec.core.gravitational_energy
+        it = build_interior(spec)
+        eg = gravitational_energy_nodes(it.r[it.core], it.m[it.core], it.g[it.core], it.rho[it.core],
+                                        spec.core.compositional_density_jump)
+        latent = per_kg - 0.5 * (eg[1:] + eg[:-1])
         np.testing.assert_allclose(latent, spec.core.core_latent_heat * t_mid / t_icb, rtol=1e-12)
         if mass == 1.0:
             icb = int(np.argmin(np.abs(core[k.C_R, 1:] - 1221.5e3)))
-            assert per_kg[icb] == pytest.approx(7.5e5 + 3.0e5, rel=0.01)
+            assert latent[icb] == pytest.approx(7.5e5, rel=0.01)
         else:
             assert latent[0] / spec.core.core_latent_heat == pytest.approx(t_mid[0] / t_icb, rel=1e-12)
             assert 3.5 < latent[0] / spec.core.core_latent_heat < 4.5
@@ -161,3 +166,46 @@ def test_basal_ocean_lifetime_follows_the_deep_mantle_viscosity():
     assert t[int(len(alive) - np.argmax(alive[::-1]))] < 1.0 * GYR
     t, th = thickness(activation_volume_decay_pa=0.0)
     assert np.all(th > 0.0)
+
+
+def test_gravitational_energy_of_a_uniform_core():
+    """E_g from the structure (meltzone.evolution.boundary_layer.gravitational_energy_nodes) against the analytic
+    uniform-density core: psi = (2/3) pi G rho r^2, its mean over the liquid above c is (2/3) pi G rho
+    (3/5)(b^5 - c^5)/(b^3 - c^3), so E_g(c) = (dRho_chi / rho)(2/3) pi G rho [(3/5)(b^5 - c^5)/(b^3 - c^3) - c^2]
+    (Newton's shell theorem; common practice); 400 nodes, tolerance 1e-3 relative (trapezoid rule); 0 at the CMB."""
+    from meltzone.constants import G
+    from meltzone.evolution.boundary_layer import gravitational_energy_nodes
+
+    rho, b, jump = 11000.0, 3.48e6, 580.0
+    r = np.linspace(0.0, b, 400)
+    m = 4.0 / 3.0 * np.pi * rho * r ** 3
+    g = G * m / np.where(r > 0, r, 1.0) ** 2
+    eg = gravitational_energy_nodes(r, m, g, np.full_like(r, rho), jump)
+    c = r[:-1]
+    exact = jump / rho * 2.0 / 3.0 * np.pi * G * rho * (0.6 * (b ** 5 - c ** 5) / (b ** 3 - c ** 3) - c ** 2)
+    np.testing.assert_allclose(eg[:-1], exact, rtol=1e-3)
+    assert eg[-1] == 0.0
+
+
+def test_gravitational_energy_grows_with_the_potential_well():
+    """With core.gravitational_energy = 0 the released energy per kg of inner core comes from the structure: at
+    Earth's ICB it is 0.4-1.0x the latent heat (published Earth budgets put the gravitational term below the
+    latent one and of the same order: Labrosse 2015, PEPI 247:36; Nimmo 2015, Treatise vol. 8; from memory;
+    measured 0.62x), and at the centre it grows with the planet's mass (a deeper potential well; measured
+    5.5e5, 1.2e6 and 1.7e6 J/kg at 1, 5 and 10 M_E); a configured constant replaces it."""
+    from meltzone._core import layout as k
+
+    centre = []
+    for mass in (1.0, 5.0, 10.0):
+        spec, inputs = _inputs(mass)
+        core = inputs.core
+        per_kg = np.diff(core[k.C_EIC]) / np.diff(core[k.C_MCUM])
+        t_mid = 0.5 * (core[k.C_TMELT, 1:] + core[k.C_TMELT, :-1])
+        t_icb = iron.iron_melting_temperature(330 * GPA, spec.melting.core_melting_depression_k)
+        eg = per_kg - spec.core.core_latent_heat * t_mid / t_icb
+        if mass == 1.0:
+            icb = int(np.argmin(np.abs(core[k.C_R, 1:] - 1221.5e3)))
+            assert 0.4 < eg[icb] / spec.core.core_latent_heat < 1.0
+        centre.append(eg[0])
+    assert centre[0] < centre[1] < centre[2]
+    assert 4e5 < centre[0] < 7e5

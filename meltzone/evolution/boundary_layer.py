@@ -70,7 +70,9 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   below the iron-alloy melting curve, releasing latent and gravitational energy
   (Stevenson et al. 1983; Labrosse 2015, PEPI 247:36); the latent heat scales with
   the alloy's melting temperature at the inner core's edge (constant entropy of
-  melting, :func:`inner_core_heat_row`), ~4x Earth's at the centre of a 10 M_E core;
+  melting, :func:`inner_core_heat_row`), ~4x Earth's at the centre of a 10 M_E core; the gravitational energy
+  from the light elements the solid rejects, in the structure's own potential well
+  (:func:`gravitational_energy_nodes`, ``core.compositional_density_jump``; ~0.6x the latent heat at Earth's ICB);
 * basal magma ocean (``melting.basal_magma_ocean = "reservoir"``, experimental and off by default; Labrosse, Hernlund & Coltice
   2007, Nature 450:866; parameterised models: Blanc, Stegman & Ziegler 2020, EPSL 534; O'Rourke 2020, GRL 47;
   abstracts seen, details from memory): a well-mixed melt layer on the core at the core's temperature T_c.
@@ -91,10 +93,13 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   gives the scheme without it (the lower boundary layer on the core). Off by default: its melting-curve form
   and its three parameters are this model's choice; at 0.5-2 M_E it stays at its cap for > 10 Gyr while the
   mixing-length scheme's basal layer ends at 1.1-1.6 Gyr; and it moves Earth's inner core further from PREM
-  (1841 against 1649 km without it). Its lifetime falls with planet mass (2.4 Gyr at 5 M_E, 0.31 at 10), as
-  the mixing-length scheme's does, against the published rise (Lherm, Nakajima & Blackman 2026, JGR Planets 131;
-  abstract checked): with a constant activation volume both schemes keep it > 10 Gyr at 5-10 M_E, so the fall
-  comes from the deep mantle's viscosity law (``convection.activation_volume_decay_pa``), not the reservoir;
+  (2367 against 2226 km without it, measured). Its lifetime falls with planet mass (0.96 Gyr at 5 M_E, 92 Myr at
+  10), as the mixing-length scheme's does, against the published rise (Lherm, Nakajima & Blackman 2026, JGR
+  Planets 131; abstract checked): with a constant activation volume both schemes keep it > 10 Gyr at 5-10 M_E, so
+  the fall comes from the deep mantle's viscosity law (``convection.activation_volume_decay_pa``), not the
+  reservoir nor the core's start (the adiabat rule's 10,273 K at 5 M_E: 0.98 Gyr); at P_d = 260 GPa, where the
+  deepest viscosity of a 10 M_E adiabat reaches Tackley et al. 2013's 1e30 Pa s, it still falls (3.3 Gyr, 0.28
+  Gyr and 61 Myr at 5, 10 and 15 M_E);
 * energy: the stored heat (sensible heat on the adiabat, latent heat of the
   melt, the lid's conductive profile, core sensible heat less the inner core's
   latent and gravitational energy) is one function of (T_u, lid) for the mantle
@@ -168,16 +173,37 @@ def _node_weights(r: np.ndarray, m: np.ndarray, m_bottom: float, m_top: float) -
     return np.diff(edges)
 
 
+def gravitational_energy_nodes(r, enclosed_mass, gravity, density, jump):
+    """Gravitational energy [J] released per kg of inner core grown at each core node (centre to CMB): the
+    solid rejects light elements, which the convecting liquid carries up, E_g = (dRho_chi / rho) (psi_bar - psi)
+    with psi(r) the gravitational potential (d psi / dr = g, trapezoid on the nodes), psi_bar its mean over the
+    liquid's mass above the node (trapezoid in enclosed mass), rho the node's density and dRho_chi the
+    compositional part of the density jump at the inner core's edge (Braginsky & Roberts 1995, GAFD 79:1;
+    Labrosse 2015, PEPI 247:36: the energy of the light elements' redistribution, from memory; dRho_chi = 580
+    kg/m^3 for Earth, checked). 0 at the CMB (no liquid left). It grows with the planet's potential well:
+    ~4.7e5 J/kg at Earth's ICB, ~1e6 at 5 M_E and ~1.4e6 at 10 M_E (measured on this model's cores)."""
+    r, m, g = (np.asarray(a, dtype=float) for a in (r, enclosed_mass, gravity))
+    psi = np.concatenate([[0.0], np.cumsum(0.5 * (g[1:] + g[:-1]) * np.diff(r))])
+    shell = np.diff(m) * 0.5 * (psi[1:] + psi[:-1])  # integral of psi dm over each interval
+    above = np.concatenate([np.cumsum(shell[::-1])[::-1], [0.0]])
+    liquid = m[-1] - m
+    mean = np.where(liquid > 0.0, above / np.where(liquid > 0.0, liquid, 1.0), psi)
+    return jump / np.asarray(density, dtype=float) * (mean - psi)
+
+
 def inner_core_heat_row(enclosed_mass, melting_k, latent_ref, gravitational, melting_ref_k):
     """Heat [J] released by an inner core grown to each core node: the integral over its mass of the latent heat
     L(P) + the gravitational energy E_g (both J/kg). L = L_ref T_m(P) / T_m,ref: the entropy of melting
     L / T_m is held at its value at Earth's ICB (``core.core_latent_heat`` at 330 GPa), so the latent heat grows
     with the alloy's melting temperature (Clausius-Clapeyron at a constant entropy of fusion, Richards' rule;
     ab initio entropies of melting of iron vary little along the curve, Alfe et al. 2002, PRB 65:165118; from
-    memory). Each interval between nodes uses the mean of its two nodes' T_m; E_g is constant (as configured)."""
+    memory). Each interval between nodes uses the mean of its two nodes' T_m; ``gravitational`` is a constant
+    or an array on the nodes (:func:`gravitational_energy_nodes`), then also the mean of the two ends."""
     m = np.asarray(enclosed_mass, dtype=float)
     t_mid = 0.5 * (melting_k[1:] + melting_k[:-1])
-    per_kg = latent_ref * t_mid / melting_ref_k + gravitational
+    eg = np.asarray(gravitational, dtype=float)
+    eg_mid = 0.5 * (eg[1:] + eg[:-1]) if eg.ndim else eg
+    per_kg = latent_ref * t_mid / melting_ref_k + eg_mid
     return np.concatenate([[0.0], np.cumsum(np.diff(m) * per_kg)])
 
 
@@ -210,8 +236,11 @@ def build_inputs(spec, interior, curves):
         core[k.C_TMELT] = iron_melting_temperature(it.P[cs], spec.melting.core_melting_depression_k)
         core[k.C_MCUM] = it.m[cs]
         depression = spec.melting.core_melting_depression_k
-        core[k.C_EIC] = inner_core_heat_row(core[k.C_MCUM], core[k.C_TMELT], spec.core.core_latent_heat,
-                                            spec.core.gravitational_energy,
+        eg = spec.core.gravitational_energy
+        if eg == 0.0:  # from the structure
+            eg = gravitational_energy_nodes(it.r[cs], it.m[cs], it.g[cs], it.rho[cs],
+                                            spec.core.compositional_density_jump)
+        core[k.C_EIC] = inner_core_heat_row(core[k.C_MCUM], core[k.C_TMELT], spec.core.core_latent_heat, eg,
                                             float(iron_melting_temperature(EARTH_ICB_PRESSURE_PA, depression)))
     else:  # coreless planet: a dummy core without heat capacity that never freezes
         core[k.C_F] = 1.0
