@@ -49,7 +49,10 @@ class Reference:
         self.g_f = np.interp(rf, r, it.g[nc:])
         self.p_f = np.interp(rf, r, it.P[nc:])
         self.length = np.minimum(rf - r[0], r[-1] - rf)
-        self.dr = np.concatenate([[0.5 * (r[1] - r[0])], np.diff(r), [0.5 * (r[-1] - r[-2])]])
+        # distances between centroids: an outer half cell's lies a quarter node spacing from its boundary
+        self.dr = np.concatenate([[0.25 * (r[1] - r[0])], np.diff(r), [0.25 * (r[-1] - r[-2])]])
+        self.dr[1] = 0.75 * (r[1] - r[0])
+        self.dr[-2] = 0.75 * (r[-1] - r[-2])
         f = self.mantle.adiabat
         self.ratio = f[1:] / f[:-1]  # interior faces 1 .. n-1
         self.mobile = spec.convection.regime == "mobile-lid"

@@ -39,12 +39,15 @@ def earth():
 
 def test_history_keeps_the_contract_and_a_file_round_trip(earth, tmp_path):
     """The History passes the contract's own check (common practice); the evaluator returns the recorded
-    profile at a step and one between the neighbours' inside it; the file read back gives the same summary."""
+    profile and regime melt fraction at a step and a profile between the neighbours' inside it; the file read back gives the same summary."""
     h = earth.history
     h.check()
     assert h.scheme == "mixing-length"
     s = len(h.time) // 2
     assert np.allclose(h.at(h.time[s]).temperature, h.temperature[s], rtol=1e-12)
+    # the regime's melt fraction (the top convecting cell's isentrope at the surface) as recorded, at every step
+    for j in range(1, len(h.time)):
+        assert h.at(h.time[j]).regime_melt_fraction == pytest.approx(h["top_melt_fraction"][j], abs=1e-9)
     mid = h.at(0.5 * (h.time[s] + h.time[s + 1])).temperature
     lo = np.minimum(h.temperature[s], h.temperature[s + 1]) - 1e-9
     hi = np.maximum(h.temperature[s], h.temperature[s + 1]) + 1e-9
@@ -98,14 +101,13 @@ def test_energy_closes(which):
 
 
 def test_grid_convergence_of_the_basal_layer():
-    """Doubling the cells (256 -> 512 nodes, 1 M_E, 2 Gyr): the basal layer separates from the surface magma
-    ocean at the same time within 6%, reaches the same largest thickness within 8% and freezes (last melt) within
-    3% (measured with the peridotite-based default curves and density-dependent properties: 3.5%, 6.4% and 2.0%;
-    with the former whole-mantle curves 3.7%, 1.0% and 2.0%); the last cell above phi_c (the CMB cell) freezes
-    within 20% (measured 9.8%). Tolerances are this model's measured state, short of the 2% aimed at: with the
-    former curves, from 512 to 1024 nodes the separation moved by 16%, the thickness by 5.5%, the last melt by
-    0.9% (the front moves cell by cell), and the CMB cell's freezing (66, 57, 49 Myr at 256, 512, 1024) had not
-    converged."""
+    """Doubling the cells (256 -> 512 nodes, 1 M_E, 2 Gyr): the basal layer freezes (last melt) within 2% and
+    the last cell above phi_c (the CMB cell) within 5% (measured 0.6% and 2.9%; 9.8% before the outer half
+    cells' centroid distances); it separates from the surface magma ocean within 12% and reaches its largest
+    thickness within 16% (measured 10% and 15%, short of the 2% aimed at: the largest thickness is reached at the
+    separation, where T - T_sol touches zero between the layers, so the separation's time and edge are
+    ill-conditioned; 64 to 1024 nodes: 27.1, 24.1, 24.6, 22.1, 22.9 kyr and 891, 988, 948, 1091, 1014 km; the
+    edges at fixed times after it converge, see the next test). Tolerances are this model's measured state."""
     out = []
     for nodes in (256, 512):
         r = evolve(spec_of(1.0, nodes, 2.0))
@@ -114,10 +116,42 @@ def test_grid_convergence_of_the_basal_layer():
         out.append((basal["start_yr"], basal["max_thickness_m"], ev["last-melt"],
                     r.history.switch_times["rheological_switch"]))
     (s1, d1, l1, w1), (s2, d2, l2, w2) = out
-    assert s2 == pytest.approx(s1, rel=0.06)
-    assert d2 == pytest.approx(d1, rel=0.08)
-    assert l2 == pytest.approx(l1, rel=0.03)
-    assert w2 == pytest.approx(w1, rel=0.20)
+    assert s2 == pytest.approx(s1, rel=0.12)
+    assert d2 == pytest.approx(d1, rel=0.16)
+    assert l2 == pytest.approx(l1, rel=0.02)
+    assert w2 == pytest.approx(w1, rel=0.05)
+
+
+def basal_top(history, t):
+    """Radius [m] of the basal melt layer's top at time ``t`` [s]: where T - T_sol, positive at the CMB, first
+    falls to zero going up (linear between nodes); the evaluator's profile inside the step."""
+    d = history.at(t).temperature - history.grid.solidus
+    j = int(np.argmax(d <= 0.0))
+    r = history.grid.radius
+    return r[j - 1] + (r[j] - r[j - 1]) * d[j - 1] / (d[j - 1] - d[j])
+
+
+def test_grid_convergence_of_the_basal_layer_edge():
+    """Issue #12's criterion "doubling the cells moves layer edges by less than one old cell" on the basal layer's
+    top at 30, 40 and 60 kyr after the start (1 M_E, 256 -> 512 nodes; it separated at ~23 kyr). Measured: 1.6,
+    1.3 and 1.3 km against a median cell of 11.4 km (thickness 805, 661, 510 km; the same within 2 km from 64 to
+    1024 nodes)."""
+    runs = [evolve(spec_of(1.0, n, 1e-4)).history for n in (256, 512)]
+    cell = float(np.median(np.diff(runs[0].grid.radius)))
+    for t in np.array([3e4, 4e4, 6e4]) * YR:
+        coarse, fine = (basal_top(h, t) for h in runs)
+        assert abs(fine - coarse) < cell
+
+
+@pytest.mark.xfail(strict=True, reason="measured 93 and 145 km at 256 and 512 nodes (170 km at 1024), 51 km against "
+                                       "an 11 km cell: the CMB boundary's heat flow is not grid converged")
+def test_grid_convergence_of_the_late_basal_layer_edge():
+    """The same criterion at 1 Myr, when the basal layer's top follows the heat the core hands it (strict xfail:
+    the measured state is in the reason)."""
+    runs = [evolve(spec_of(1.0, n, 1.1e-3)).history for n in (256, 512)]
+    cell = float(np.median(np.diff(runs[0].grid.radius)))
+    coarse, fine = (basal_top(h, 1e6 * YR) for h in runs)
+    assert abs(fine - coarse) < cell
 
 
 def mass_above_end(history, share):
@@ -166,15 +200,38 @@ def test_grid_convergence_of_the_rheological_front():
 @pytest.mark.parametrize("mass, nodes", [(5.0, 256), (1.0, 64), (1.0, 128)])
 def test_surface_magma_ocean_ends_once(mass, nodes):
     """A cooling planet without re-melting from outside: the regime series leaves the magma ocean once and does
-    not return within 50 Myr (common practice: the top cell's melt fraction falls through phi_c once). With the
+    not return within 50 Myr (common practice: the top of the convecting mantle falls through phi_c once). With the
     face viscosity at the cells' mean melt fraction the top cell froze and re-melted 83, 11 and 3 times in these
-    runs; the end lies between 0.5 and 5 Myr (measured 2.7, 0.9 and 1.2 Myr)."""
+    runs; the end lies between 2 and 50 Myr (measured 18.6, 9.5 and 9.1 Myr; with the top cell's own melt fraction
+    as the regime's, 2.7, 0.9 and 1.2 Myr)."""
     h = evolve(spec_of(mass, nodes, 0.05)).history
     regime = h.series["regime"]
     flips = np.flatnonzero(np.diff(regime) != 0)
     assert regime[0] == 0
     assert flips.size == 1
-    assert 0.5 <= h.time[flips[0] + 1] / (1e6 * YEAR) <= 5.0
+    assert 2.0 <= h.time[flips[0] + 1] / (1e6 * YEAR) <= 50.0
+
+
+def surface_end_yr(mass, nodes, end_gyr):
+    return evolve(spec_of(mass, nodes, end_gyr)).summary()["surface_magma_ocean_end_yr"]
+
+
+def test_grid_convergence_of_the_surface_magma_ocean_end():
+    """Issue #12's criterion "doubling the cells moves event times by <= 2%" on the end of the surface magma ocean
+    (the regime's melt fraction, the isentrope of the top convecting cell at the surface, leaving phi_c), 1 M_E,
+    256 -> 512 nodes. Asserted within 4%, the measured state short of the 2% aimed at: 5.35 and 5.47 Myr (2.2%;
+    3.5% from 512 to 1024 nodes). With the top cell's own melt fraction it was 1.55 and 0.89 Myr (43%)."""
+    coarse, fine = (surface_end_yr(1.0, n, 0.01) for n in (256, 512))
+    assert fine == pytest.approx(coarse, rel=0.04)
+
+
+@pytest.mark.xfail(strict=True, reason="measured 18.4 and 15.9 Myr (13%) at 256 and 512 nodes, 8.2 Myr at 1024: "
+                                       "the 5 M_E near-surface mush and CMB heat flow are not grid converged")
+def test_grid_convergence_of_the_surface_magma_ocean_end_at_five_earth_masses():
+    """Issue #12's criterion "doubling the cells moves event times by <= 2%" on the end of the surface magma ocean
+    of 5 M_E, 256 -> 512 nodes (strict xfail: the measured state is in the reason)."""
+    coarse, fine = (surface_end_yr(5.0, n, 0.025) for n in (256, 512))
+    assert fine == pytest.approx(coarse, rel=0.02)
 
 
 def test_crystallisation_direction_and_time_as_published():

@@ -31,11 +31,11 @@ from .layout import (C_W, F_A, F_DR, F_R, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR, M_
                      P_H_MAX, P_K, P_LATENT, P_RADIUS, P_STAGNANT, P_T_END, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS,
                      STATUS_STEP_TOO_SMALL)
 from .mlt_physics import (CW_DLN_ETA, CW_DTDH, CW_H_ACT, CW_LN_ETA, N_CW, adiabat_floor, cell_activation,
-                          cell_log_viscosity, cell_slope, cell_state, cmb_flux, interior_flux, surface_flux,
-                          surface_flux_slope)
+                          cell_log_viscosity, cell_slope, cell_state, cmb_flux, interior_flux, surface_adiabat_state,
+                          surface_flux, surface_flux_slope)
 from .record import find_intervals
 from .physics import CORE, GREY_H2O_COEFF, GREY_H2O_EXPONENT, _invert, core_energy, inner_core, radiogenic_power
-from .layout import (MH_ABS, MH_DISSOLVED, MH_LOST, MH_OCEAN, MH_OLR, MH_P_CO2, MH_P_H2O, MS_LOST, P_G_SURF,
+from .layout import (MH_UPPER_CELL, MH_ABS, MH_DISSOLVED, MH_LOST, MH_OCEAN, MH_OLR, MH_P_CO2, MH_P_H2O, MS_LOST, P_G_SURF,
                      P_H2O_SOL_C, P_H2O_SOL_E, P_H2O_TOTAL, P_STEAM)
 from .radiation import condense, escape_rate, radiation_state, thin_weight, volatiles
 from .tridiag import solve
@@ -248,7 +248,12 @@ def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, 
     hist[n_h, MH_LID] = par[P_RADIUS] - faces[F_R, top_face] if stagnant else 0.0
     hist[n_h, MH_RIC] = inner_core(tc, core)[0] if has_core else 0.0
     hist[n_h, MH_MELT] = melt
-    hist[n_h, MH_PHI_TOP] = phi[n - 1]
+    # the regime's melt fraction: the isentrope of the top convecting cell at the surface (the top cell's own
+    # melt fraction when its boundary layer is thinner than the half cell)
+    ir = upper_cell(temp, flux, faces, par)
+    h_u = par[P_CM] * temp[ir] + par[P_LATENT] * phi[ir]
+    hist[n_h, MH_PHI_TOP] = surface_adiabat_state(h_u, temp[ir], ir, grid, law, par)[1]
+    hist[n_h, MH_UPPER_CELL] = ir
     hist[n_h, MH_E_STORED] = e + e_core
     hist[n_h, MH_OUT] = out
     m_h2o, m_co2, ocean, dissolved, lost = wat

@@ -215,6 +215,19 @@ def cmb_flux(tc, t0, phi0, faces, t_floor, par):
 
 
 @njit
+def surface_adiabat_state(h_u, t_u, iu, grid, law, par):
+    """(T [K], phi) at the surface (the top cell's pressure and curves) of the two-phase adiabat through cell
+    ``iu`` (enthalpy h_u, temperature t_u): h_s = h_u + c_p T_u (f_top / f_u - 1), the discrete isentrope of
+    :func:`interior_flux` (c_p dT + L dphi = alpha T dP / rho with alpha dP / (rho c_p) = d ln f), inverted with
+    the top cell's solidus and liquidus. With ``iu`` the top convecting cell this is the melt fraction at the top
+    of the convecting mantle with the upper boundary layer taken away (the boundary-layer scheme's regime
+    melt fraction: the isentrope's at the surface)."""
+    top = grid.shape[1] - 1
+    h_s = h_u + par[P_CM] * t_u * (grid[G_F, top] / grid[G_F, iu] - 1.0)
+    return cell_state(h_s, grid, top, law, par)
+
+
+@njit
 def adiabat_floor(h_mid, mid, grid, law, par, floors):
     """Temperature floors [K] of the cell viscosities in mobile-lid mode: the adiabat through cell ``mid``,
     T_mid f(r_i) / f(r_mid)."""
