@@ -49,7 +49,9 @@ rate, takes the slopes of the convective flux at an excess of at least 1e-3 K wh
 the onset of convection the slope vanishes and a front would otherwise be found one cell per iteration), and
 treats a non-positive temperature iterate as a failed step; a step that needed more than SLOW_NEWTON iterations
 does not let the next one grow (the constants in :mod:`meltzone._core.implicit`). Measured for 5 M_E over 10 Gyr
-at 256 nodes: 4.0 Newton iterations per accepted step and 172 rejected steps, against 5.7 and 395 before.
+at 256 nodes: 4.0 Newton iterations per accepted step and 172 rejected steps, against 5.7 and 395 before (in a
+later version, with the current curves and outer faces: 4.4 per accepted step with the rejected steps' included,
+2493 accepted and 680 rejected steps).
 
 Outer cells: the nodes at the CMB and at the surface carry half cells; the mean of a half cell lies at its
 centroid, a quarter of the node spacing from the boundary, so the outer faces' conduction distance (and the
@@ -64,27 +66,34 @@ taken away: the boundary-layer scheme's definition (its regime follows the isent
 top). The top cell's own melt fraction is not grid independent: the half cell at r = R lies inside the upper
 boundary layer once that is resolved (the material at r = R is at the surface temperature in the continuum
 limit), and the mixing length at its lower face is a quarter of a cell, so the cell freezes when the boundary
-layer outgrows it; measured for 1 M_E, the top cell leaving phi_c at 1.55, 0.89 and 0.68 Myr at 256, 512 and 1024
-nodes. ``upper_temperature`` = potential temperature T / f of the top convecting cell, counting the top cell
+layer outgrows it; measured, the top cell leaving phi_c at 256, 512 and 1024 nodes: 1 M_E 0.88, 0.34, 0.16 Myr,
+5 M_E 3.6, 3.2, 1.5 Myr, 10 M_E 6.1, 5.3, 3.7 Myr (with the node distances at the outer faces 1 M_E 1.55, 0.89,
+0.68 Myr). ``upper_temperature`` = potential temperature T / f of the top convecting cell, counting the top cell
 when its boundary layer is thinner than the half cell; ``lid_thickness`` (stagnant lid) = depth of that cell's
 upper face; ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
 
-Grid convergence (measured, ``benchmarks/convergence_mlt.py``, mobile lid, 0.1 Gyr; 64, 128, 256, 512, 1024
-nodes). The bulk of the magma ocean passes the rheological transition within ~1-2 kyr and this converges: the
-time at which less than 1% of the mantle mass is above phi_c, 5 M_E: 1.685, 1.744, 1.770, 1.791, 1.806 kyr (1.5%,
-1.2%, 0.9% per doubling). The surface magma ocean's end (the regime's isentrope leaving phi_c), 1 M_E: 9.39, 9.00,
-5.35, 5.47, 5.66 Myr (2.2% and 3.5% from 256 nodes on); 5 M_E: 8.2, 11.7, 18.4, 15.9, 8.2 Myr, not converged:
-the regime's melt fraction drifts by ~0.005 per Myr a few hundredths above phi_c, and at 1024 nodes it wanders
-by +-0.01 around phi_c (the near-surface mush and the CMB heat flow, 2.8e15 W at 512 and 4.2e15 W at 1024 nodes
-at 8 Myr, still differ), so a 2% crossing time would need it to ~1e-3. The 1 M_E time of less than 1% above
-phi_c falls on a plateau of ~1-1.4% of the mantle mass (1.3, 2.1, 2.9, 2.5, 1.8 Myr) and so does the reported
-``magma_ocean_end_yr`` (which needs both). The basal layer's separation converges to 0.0-0.4% for 5 M_E and 3-11%
-for 1 M_E, its largest thickness to 2-15%, and the last cell above phi_c (the CMB cell for 1 M_E) to 3-8% from
-256 nodes on (7.9, 7.8, 48.9, 47.4, 43.7 Myr), for 5 M_E 10-12%; the CMB boundary's heat flow (a factor 1.5 per
-doubling at 512 nodes) is the main remaining grid dependence. Halving the step tolerance
-(run.max_temperature_step_k) moves every event by < 1% except the basal layer's largest thickness (2-10%).
-Tried without effect on the top cell's freezing: mixing lengths at the geometric mean of the two nodes' distances
-to the boundary, and the node distance at the faces next to the outer half cells.
+Grid convergence (measured with ``benchmarks/convergence_mlt.py``, mobile lid, at 64, 128, 256, 512, 1024 nodes
+unless said). The bulk of the magma ocean passes the rheological transition within ~1-3 kyr and this converges:
+the time at which less than 1% of the mantle mass is above phi_c, 5 M_E: 1.685, 1.744, 1.770, 1.791, 1.806 kyr
+(1.5%, 1.2%, 0.9% per doubling); 10 M_E 2.87, 2.95, 2.94 kyr at 128-512. The surface magma ocean's end (the
+regime's isentrope leaving phi_c), 1 M_E: 9.39, 9.00, 5.35, 5.47, 5.66 Myr (2.2% and 3.5% per doubling from 256
+nodes on). For 5 and 10 M_E it is not converged (5 M_E 8.2, 11.7, 18.4, 15.9, 8.2 Myr; 10 M_E 136, 237, 151 Myr
+at 256-1024): there the regime's melt fraction drifts along phi_c (~0.005 per Myr for 5 M_E, and at 1024 nodes it
+wanders by +-0.01 around it), the boundary-layer scheme's "top held at phi_c" plateau, so a 2% crossing time
+would need it to ~1e-3. The 1 M_E time of less than 1% above phi_c falls on a plateau of ~1-1.4% of the mantle
+mass (1.3, 2.1, 2.9, 2.5, 1.8 Myr), and so does the reported ``magma_ocean_end_yr`` (which needs both). The basal
+layer: its edges at fixed times after it separates converge (1 M_E, 30-60 kyr: within 2 km from 64 to 1024
+nodes), but its separation is a tangency of T - T_sol with zero and moves by 3-11% per doubling (1 M_E; 0.0-0.4%
+for 5 M_E), and its largest thickness, reached at the separation, by 4-15% (1 M_E; 0.3-1.9% for 5 M_E from 128
+nodes on); from ~0.3 Myr on its top follows the core's heat, and the CMB heat flow is the main remaining grid
+dependence (1 M_E at 1 Myr: 3e14, 1.3e15, 1.9e15 W at 256, 512, 1024 nodes; the basal top at 93, 145, 170 km).
+The last melt (the basal layer's freezing) moves by 0.6% (1 M_E, 256 -> 512), 3.1% and 3.9% (5 M_E, 128-512),
+7.3% and 5.6% (10 M_E); with the node distances at the outer faces 2.0%, 13.9% and 11.3%, 13.6% and 10.7%. The
+last cell above phi_c leaves it (``rheological_transition_yr``) 1 M_E: 7.9, 7.8, 48.9, 47.4, 43.7 Myr; 5 M_E
+4.7, 6.9, 16.8, 14.8, 13.4 Myr. Halving the step tolerance (run.max_temperature_step_k) moves every event by
+< 1% except the basal layer's largest thickness (2-10%). Tried without effect on the top cell's freezing: mixing
+lengths at the geometric mean of the two nodes' distances to the boundary, and the node distance at the faces
+next to the outer half cells.
 """
 
 from __future__ import annotations
