@@ -119,7 +119,10 @@ class Reference:
         tc = 0.0
         if self.core:
             tc = self.core_temperature(y[0])
-            q[0] = self.boundary(tc - t[0], 0.5 * (tc + t[0]), phi[0], 0, floors[0])
+            # the layer's material at its mean temperature, with that temperature's melt fraction at the CMB
+            tm = 0.5 * (tc + t[0])
+            phi_m = float(ref.melt_fraction(np.array([tm]), self.mantle, slice(0, 1))[0])
+            q[0] = self.boundary(tc - t[0], tm, phi_m, 0, floors[0])
         c = ph.heat_capacity
         # interior faces: conduction + mixing length on the two-phase adiabat's enthalpy excess
         ta, tb = t[:-1], t[1:]

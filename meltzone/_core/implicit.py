@@ -102,14 +102,14 @@ def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core,
     # CMB face
     if has_core:
         dtc = FD_REL * tc + 1e-6
-        flux[0] = cmb_flux(tc, temp[0], phi[0], faces, floors[0], par)
-        f_t = cmb_flux(tc + dtc, temp[0], phi[0], faces, floors[0], par)
+        flux[0] = cmb_flux(tc, temp[0], grid, law, faces, floors[0], par)
+        f_t = cmb_flux(tc + dtc, temp[0], grid, law, faces, floors[0], par)
         # dE_c/dT_c from the stored-heat function (inner-core release included)
         slope = (core_energy(tc + dtc, grid, core, par) - core_energy(tc, grid, core, par)) / dtc
         d_lo[0] = (f_t - flux[0]) / dtc / slope
         dh = FD_REL * abs(h[0]) + 1e-3
-        t1, p1 = cell_state(h[0] + dh, grid, 0, law, par)
-        d_hi[0] = (cmb_flux(tc, t1, p1, faces, floors[0], par) - flux[0]) / dh
+        t1, _ = cell_state(h[0] + dh, grid, 0, law, par)
+        d_hi[0] = (cmb_flux(tc, t1, grid, law, faces, floors[0], par) - flux[0]) / dh
     else:
         flux[0] = 0.0
         d_lo[0] = 0.0
@@ -196,7 +196,7 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
             _states(h, grid, law, par, temp, phi)
             if has_core:
                 tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
-                flux[0] = cmb_flux(tc, temp[0], phi[0], faces, floors[0], par)
+                flux[0] = cmb_flux(tc, temp[0], grid, law, faces, floors[0], par)
             flux[n], ts = surface_flux(temp[n - 1], phi[n - 1], faces, n, floors[n - 1], rad, par)
             return True, it + 1, tc, ts
     return False, max_it, tc, ts

@@ -32,7 +32,9 @@ Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltz
   Bower et al. 2018's abstract was found, not the forms);
 * outer faces: thermal boundary layers from a local critical Rayleigh number, delta = (kappa eta Ra_cr /
   (alpha rho g |dT|))^(1/3), flux k dT / min(delta, half cell) (Stevenson, Spohn & Schubert 1983, Icarus
-  54:466, the boundary-layer scheme's lower layer): at the CMB dT = T_c - T_0, eta at their mean; at the
+  54:466, the boundary-layer scheme's lower layer): at the CMB dT = T_c - T_0, eta of the layer's material at
+  their mean temperature and that temperature's melt fraction at the CMB (this model's choice; the lowest cell's
+  own melt fraction made the core's heat flow follow the cell size, see :func:`meltzone._core.mlt_physics.cmb_flux`); at the
   surface dT = T_top - T_s, eta of the top cell, and T_s balances that flux with eps sigma (T_s^4 - T_eq^4)
   (bare, or the grey atmosphere in solubility equilibrium with the melt, eps lagged by one step); a
   stagnant lid emerges where the viscosity shuts the convective flux off;
@@ -66,34 +68,33 @@ taken away: the boundary-layer scheme's definition (its regime follows the isent
 top). The top cell's own melt fraction is not grid independent: the half cell at r = R lies inside the upper
 boundary layer once that is resolved (the material at r = R is at the surface temperature in the continuum
 limit), and the mixing length at its lower face is a quarter of a cell, so the cell freezes when the boundary
-layer outgrows it; measured, the top cell leaving phi_c at 256, 512 and 1024 nodes: 1 M_E 0.88, 0.34, 0.16 Myr,
-5 M_E 3.6, 3.2, 1.5 Myr, 10 M_E 6.1, 5.3, 3.7 Myr (with the node distances at the outer faces 1 M_E 1.55, 0.89,
+layer outgrows it; measured, the top cell leaving phi_c at 256, 512 and 1024 nodes: 1 M_E 0.96, 0.37, 0.17 Myr,
+5 M_E 3.8, 3.2, 1.5 Myr, 10 M_E 5.2, 5.2, 3.5 Myr (with the node distances at the outer faces 1 M_E 1.55, 0.89,
 0.68 Myr). ``upper_temperature`` = potential temperature T / f of the top convecting cell, counting the top cell
 when its boundary layer is thinner than the half cell; ``lid_thickness`` (stagnant lid) = depth of that cell's
 upper face; ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
 
 Grid convergence (measured with ``benchmarks/convergence_mlt.py``, mobile lid, at 64, 128, 256, 512, 1024 nodes
 unless said). The bulk of the magma ocean passes the rheological transition within ~1-3 kyr and this converges:
-the time at which less than 1% of the mantle mass is above phi_c, 5 M_E: 1.685, 1.744, 1.770, 1.791, 1.806 kyr
-(1.5%, 1.2%, 0.9% per doubling); 10 M_E 2.87, 2.95, 2.94 kyr at 128-512. The surface magma ocean's end (the
-regime's isentrope leaving phi_c), 1 M_E: 9.39, 9.00, 5.35, 5.47, 5.66 Myr (2.2% and 3.5% per doubling from 256
-nodes on). For 5 and 10 M_E it is not converged (5 M_E 8.2, 11.7, 18.4, 15.9, 8.2 Myr; 10 M_E 136, 237, 151 Myr
-at 256-1024): there the regime's melt fraction drifts along phi_c (~0.005 per Myr for 5 M_E, and at 1024 nodes it
-wanders by +-0.01 around it), the boundary-layer scheme's "top held at phi_c" plateau, so a 2% crossing time
-would need it to ~1e-3. The 1 M_E time of less than 1% above phi_c falls on a plateau of ~1-1.4% of the mantle
-mass (1.3, 2.1, 2.9, 2.5, 1.8 Myr), and so does the reported ``magma_ocean_end_yr`` (which needs both). The basal
-layer: its edges at fixed times after it separates converge (1 M_E, 30-60 kyr: within 2 km from 64 to 1024
-nodes), but its separation is a tangency of T - T_sol with zero and moves by 3-11% per doubling (1 M_E; 0.0-0.4%
-for 5 M_E), and its largest thickness, reached at the separation, by 4-15% (1 M_E; 0.3-1.9% for 5 M_E from 128
-nodes on); from ~0.3 Myr on its top follows the core's heat, and the CMB heat flow is the main remaining grid
-dependence (1 M_E at 1 Myr: 3e14, 1.3e15, 1.9e15 W at 256, 512, 1024 nodes; the basal top at 93, 145, 170 km).
-The last melt (the basal layer's freezing) moves by 0.6% (1 M_E, 256 -> 512), 3.1% and 3.9% (5 M_E, 128-512),
-7.3% and 5.6% (10 M_E); with the node distances at the outer faces 2.0%, 13.9% and 11.3%, 13.6% and 10.7%. The
-last cell above phi_c leaves it (``rheological_transition_yr``) 1 M_E: 7.9, 7.8, 48.9, 47.4, 43.7 Myr; 5 M_E
-4.7, 6.9, 16.8, 14.8, 13.4 Myr. Halving the step tolerance (run.max_temperature_step_k) moves every event by
-< 1% except the basal layer's largest thickness (2-10%). Tried without effect on the top cell's freezing: mixing
-lengths at the geometric mean of the two nodes' distances to the boundary, and the node distance at the faces
-next to the outer half cells.
+the time at which less than 1% of the mantle mass is above phi_c, 5 M_E: 1.710, 1.771, 1.798, 1.819, 1.835 kyr
+(1.5%, 1.2%, 0.9% per doubling). The surface magma ocean's end (the regime's isentrope leaving phi_c), 1 M_E:
+9.40, 9.00, 5.43, 4.86, 4.80 Myr (1.2% from 512 to 1024 nodes, 10% from 256 to 512). For 5 M_E it is not
+converged (8.2, 12.8, 22.3, 17.0, 7.8 Myr), nor for 10 M_E: there the regime's melt fraction drifts along phi_c
+(~0.005 per Myr for 5 M_E, and at 1024 nodes it wanders by +-0.01 around it), the boundary-layer scheme's "top
+held at phi_c" plateau, so a 2% crossing time would need it to ~1e-3. The 1 M_E time of less than 1% above phi_c
+falls on a plateau of ~1-1.4% of the mantle mass (1.35, 2.24, 2.98, 2.38, 1.55 Myr), and so does the reported
+``magma_ocean_end_yr`` (which needs both). The basal layer's edges at fixed times converge (1 M_E, top at 40 kyr
+to 1 Myr: within 3 km from 256 to 1024 nodes, cells of 11 to 3 km; the core's heat flow at 1 Myr 3.3e14, 3.7e14,
+3.6e14 W), but its separation is a tangency of T - T_sol with zero: 1 M_E 33.9, 33.5, 32.9, 30.0, 31.2 kyr, its
+largest thickness (reached then) 965, 960, 963, 1063, 1006 km; 5 M_E 530 kyr within 0.2% and 438, 439, 423, 427,
+425 km. The last melt (the basal layer's freezing) moves by 4.7% and 2.4% (1 M_E, 128-512 nodes), 4.0% and 2.8%
+(5 M_E), 7.6% and 5.9% (10 M_E); with the node distances at the outer faces and the cell's melt fraction at the
+CMB 13.9% and 11.3% (5 M_E), 13.6% and 10.7% (10 M_E). The last cell above phi_c (``rheological_transition_yr``)
+is one cell on a plateau at phi_c and does not converge (1 M_E 8.0, 7.8, 5.7, 22.2, 29.5 Myr; 5 M_E 4.7, 7.4,
+20.2, 15.9, 12.2 Myr). Halving the step tolerance (run.max_temperature_step_k) moves every event by < 1% except
+the basal layer's largest thickness (1-6%). Tried without effect on the top cell's freezing: mixing lengths at the
+geometric mean of the two nodes' distances to the boundary, and the node distance at the faces next to the outer
+half cells.
 """
 
 from __future__ import annotations
