@@ -52,8 +52,8 @@ the onset of convection the slope vanishes and a front would otherwise be found 
 treats a non-positive temperature iterate as a failed step; a step that needed more than SLOW_NEWTON iterations
 does not let the next one grow (the constants in :mod:`meltzone._core.implicit`). Measured for 5 M_E over 10 Gyr
 at 256 nodes: 4.0 Newton iterations per accepted step and 172 rejected steps, against 5.7 and 395 before (in a
-later version, with the current curves and outer faces: 4.4 per accepted step with the rejected steps' included,
-2493 accepted and 680 rejected steps).
+later version, with the current curves, outer faces and CMB layer: 4.4 per accepted step with the rejected steps'
+included, 2830 accepted and 819 rejected steps; 2395 and 648 before the outer faces and the CMB layer).
 
 Outer cells: the nodes at the CMB and at the surface carry half cells; the mean of a half cell lies at its
 centroid, a quarter of the node spacing from the boundary, so the outer faces' conduction distance (and the
