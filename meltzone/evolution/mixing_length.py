@@ -31,11 +31,12 @@ Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltz
   5 M_E at 256 nodes, none with the geometric mean). The mixing-length forms are from memory (searched: only
   Bower et al. 2018's abstract was found, not the forms);
 * outer faces: thermal boundary layers from a local critical Rayleigh number, delta = (kappa eta Ra_cr /
-  (alpha rho g |dT|))^(1/3), flux k dT / min(delta, half cell) (Stevenson, Spohn & Schubert 1983, Icarus
+  (alpha rho g |dT|))^(1/3), flux k dT / min(delta, dr_0) with dr_0 the distance to the outer cell's centroid
+  (see "Outer cells"; Stevenson, Spohn & Schubert 1983, Icarus
   54:466, the boundary-layer scheme's lower layer): at the CMB dT = T_c - T_0, eta of the layer's material at
   their mean temperature and that temperature's melt fraction at the CMB (this model's choice; the lowest cell's
-  own melt fraction made the core's heat flow follow the cell size, see :func:`meltzone._core.mlt_physics.cmb_flux`); at the
-  surface dT = T_top - T_s, eta of the top cell, and T_s balances that flux with eps sigma (T_s^4 - T_eq^4)
+  own melt fraction made the core's heat flow follow the cell size, :func:`meltzone._core.mlt_physics.cmb_flux`);
+  at the surface dT = T_top - T_s, eta of the top cell, and T_s balances that flux with eps sigma (T_s^4 - T_eq^4)
   (bare, or the grey atmosphere in solubility equilibrium with the melt, eps lagged by one step); a
   stagnant lid emerges where the viscosity shuts the convective flux off;
 * mobile lid (``convection.regime = "mobile-lid"``): the viscosity at every face is evaluated no colder than
@@ -134,9 +135,9 @@ MIN_BLEND = 0.15
 MAX_CELLS = 2048
 PROGRESS_STEPS = 100
 #: distance of an outer half cell's centroid from its boundary, in node spacings (a quarter: the mean of a linear
-#: profile over the half cell; common practice for cell-centred finite volumes, Patankar 1980, ch. 4). With a half
-#: (the node's distance) the conductive lid carried an extra half cell: measured 1 M_E surface heat flow at 6 Myr
-#: 1.61, 1.93, 2.04e15 W at 256, 512, 1024 nodes, with the quarter 1.98, 2.14, 2.17e15 W
+#: profile over the half cell; common practice for cell-centred finite volumes, Patankar 1980, ch. 4, from
+#: memory). With a half (the node's distance) the conductive lid carried an extra half cell: measured 1 M_E
+#: surface heat flow at 6 Myr 1.61, 1.93, 2.04e15 W at 256, 512, 1024 nodes, with the quarter 1.98, 2.14, 2.17e15 W
 OUTER_CENTROID = 0.25
 SWITCH = "rheological_switch"
 
