@@ -96,7 +96,8 @@ class Reference:
         return np.minimum(np.where(w > 0.0, w * log_susp + (1.0 - w) * log_solid, log_solid), ref.LOG_ETA_MAX)
 
     def boundary(self, dt, t_visc, phi, j, floor):
-        """k dT / min(delta, half cell), delta = (kappa eta Ra_cr / (alpha rho g |dT|))^(1/3)."""
+        """k dT / min(delta, distance to the outer cell's centroid), delta = (kappa eta Ra_cr / (alpha rho g
+        |dT|))^(1/3)."""
         ph = self.ph
         if abs(dt) <= 1e-12:
             return ph.conductivity * dt / self.dr[j]

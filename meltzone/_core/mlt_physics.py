@@ -162,8 +162,8 @@ def interior_flux(ha, hb, ta, tb, cells, a, b, faces, j, dh_jac, par):
 def boundary_flux(dt, t_visc, phi, faces, j, t_floor, par):
     """Flux [W/m^2] across a thermal boundary layer at an outer face (CMB j = 0, surface j = n) driven by the
     temperature difference dt [K]: k dt / delta with delta = (kappa eta Ra_cr / (alpha rho g |dt|))^(1/3)
-    (local critical Rayleigh number, Stevenson, Spohn & Schubert 1983), at most the half cell between the
-    face and its cell's node (then plain conduction)."""
+    (local critical Rayleigh number, Stevenson, Spohn & Schubert 1983), at most the distance F_DR from the
+    face to its cell's centroid, a quarter node spacing (then plain conduction)."""
     half = faces[F_DR, j]
     if abs(dt) <= DT_MIN:
         return par[P_K] * dt / half
