@@ -49,7 +49,10 @@ class Reference:
         self.g_f = np.interp(rf, r, it.g[nc:])
         self.p_f = np.interp(rf, r, it.P[nc:])
         self.length = np.minimum(rf - r[0], r[-1] - rf)
-        self.dr = np.concatenate([[0.5 * (r[1] - r[0])], np.diff(r), [0.5 * (r[-1] - r[-2])]])
+        # distances between centroids: an outer half cell's lies a quarter node spacing from its boundary
+        self.dr = np.concatenate([[0.25 * (r[1] - r[0])], np.diff(r), [0.25 * (r[-1] - r[-2])]])
+        self.dr[1] = 0.75 * (r[1] - r[0])
+        self.dr[-2] = 0.75 * (r[-1] - r[-2])
         f = self.mantle.adiabat
         self.ratio = f[1:] / f[:-1]  # interior faces 1 .. n-1
         self.mobile = spec.convection.regime == "mobile-lid"
@@ -93,7 +96,8 @@ class Reference:
         return np.minimum(np.where(w > 0.0, w * log_susp + (1.0 - w) * log_solid, log_solid), ref.LOG_ETA_MAX)
 
     def boundary(self, dt, t_visc, phi, j, floor):
-        """k dT / min(delta, half cell), delta = (kappa eta Ra_cr / (alpha rho g |dT|))^(1/3)."""
+        """k dT / min(delta, distance to the outer cell's centroid), delta = (kappa eta Ra_cr / (alpha rho g
+        |dT|))^(1/3)."""
         ph = self.ph
         if abs(dt) <= 1e-12:
             return ph.conductivity * dt / self.dr[j]
@@ -116,7 +120,10 @@ class Reference:
         tc = 0.0
         if self.core:
             tc = self.core_temperature(y[0])
-            q[0] = self.boundary(tc - t[0], 0.5 * (tc + t[0]), phi[0], 0, floors[0])
+            # the layer's material at its mean temperature, with that temperature's melt fraction at the CMB
+            tm = 0.5 * (tc + t[0])
+            phi_m = float(ref.melt_fraction(np.array([tm]), self.mantle, slice(0, 1))[0])
+            q[0] = self.boundary(tc - t[0], tm, phi_m, 0, floors[0])
         c = ph.heat_capacity
         # interior faces: conduction + mixing length on the two-phase adiabat's enthalpy excess
         ta, tb = t[:-1], t[1:]

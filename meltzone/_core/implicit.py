@@ -31,11 +31,11 @@ from .layout import (C_W, F_A, F_DR, F_R, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR, M_
                      P_H_MAX, P_K, P_LATENT, P_RADIUS, P_STAGNANT, P_T_END, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS,
                      STATUS_STEP_TOO_SMALL)
 from .mlt_physics import (CW_DLN_ETA, CW_DTDH, CW_H_ACT, CW_LN_ETA, N_CW, adiabat_floor, cell_activation,
-                          cell_log_viscosity, cell_slope, cell_state, cmb_flux, interior_flux, surface_flux,
-                          surface_flux_slope)
+                          cell_log_viscosity, cell_slope, cell_state, cmb_flux, interior_flux, surface_adiabat_state,
+                          surface_flux, surface_flux_slope)
 from .record import find_intervals
 from .physics import CORE, GREY_H2O_COEFF, GREY_H2O_EXPONENT, _invert, core_energy, inner_core, radiogenic_power
-from .layout import (MH_ABS, MH_DISSOLVED, MH_LOST, MH_OCEAN, MH_OLR, MH_P_CO2, MH_P_H2O, MS_LOST, P_G_SURF,
+from .layout import (MH_UPPER_CELL, MH_ABS, MH_DISSOLVED, MH_LOST, MH_OCEAN, MH_OLR, MH_P_CO2, MH_P_H2O, MS_LOST, P_G_SURF,
                      P_H2O_SOL_C, P_H2O_SOL_E, P_H2O_TOTAL, P_STEAM)
 from .radiation import condense, escape_rate, radiation_state, thin_weight, volatiles
 from .tridiag import solve
@@ -102,14 +102,14 @@ def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core,
     # CMB face
     if has_core:
         dtc = FD_REL * tc + 1e-6
-        flux[0] = cmb_flux(tc, temp[0], phi[0], faces, floors[0], par)
-        f_t = cmb_flux(tc + dtc, temp[0], phi[0], faces, floors[0], par)
+        flux[0] = cmb_flux(tc, temp[0], grid, law, faces, floors[0], par)
+        f_t = cmb_flux(tc + dtc, temp[0], grid, law, faces, floors[0], par)
         # dE_c/dT_c from the stored-heat function (inner-core release included)
         slope = (core_energy(tc + dtc, grid, core, par) - core_energy(tc, grid, core, par)) / dtc
         d_lo[0] = (f_t - flux[0]) / dtc / slope
         dh = FD_REL * abs(h[0]) + 1e-3
-        t1, p1 = cell_state(h[0] + dh, grid, 0, law, par)
-        d_hi[0] = (cmb_flux(tc, t1, p1, faces, floors[0], par) - flux[0]) / dh
+        t1, _ = cell_state(h[0] + dh, grid, 0, law, par)
+        d_hi[0] = (cmb_flux(tc, t1, grid, law, faces, floors[0], par) - flux[0]) / dh
     else:
         flux[0] = 0.0
         d_lo[0] = 0.0
@@ -196,7 +196,7 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
             _states(h, grid, law, par, temp, phi)
             if has_core:
                 tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
-                flux[0] = cmb_flux(tc, temp[0], phi[0], faces, floors[0], par)
+                flux[0] = cmb_flux(tc, temp[0], grid, law, faces, floors[0], par)
             flux[n], ts = surface_flux(temp[n - 1], phi[n - 1], faces, n, floors[n - 1], rad, par)
             return True, it + 1, tc, ts
     return False, max_it, tc, ts
@@ -248,7 +248,12 @@ def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, 
     hist[n_h, MH_LID] = par[P_RADIUS] - faces[F_R, top_face] if stagnant else 0.0
     hist[n_h, MH_RIC] = inner_core(tc, core)[0] if has_core else 0.0
     hist[n_h, MH_MELT] = melt
-    hist[n_h, MH_PHI_TOP] = phi[n - 1]
+    # the regime's melt fraction: the isentrope of the top convecting cell at the surface (the top cell's own
+    # melt fraction when its boundary layer is thinner than the half cell)
+    ir = upper_cell(temp, flux, faces, par)
+    h_u = par[P_CM] * temp[ir] + par[P_LATENT] * phi[ir]
+    hist[n_h, MH_PHI_TOP] = surface_adiabat_state(h_u, temp[ir], ir, grid, law, par)[1]
+    hist[n_h, MH_UPPER_CELL] = ir
     hist[n_h, MH_E_STORED] = e + e_core
     hist[n_h, MH_OUT] = out
     m_h2o, m_co2, ocean, dissolved, lost = wat

@@ -31,9 +31,12 @@ Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltz
   5 M_E at 256 nodes, none with the geometric mean). The mixing-length forms are from memory (searched: only
   Bower et al. 2018's abstract was found, not the forms);
 * outer faces: thermal boundary layers from a local critical Rayleigh number, delta = (kappa eta Ra_cr /
-  (alpha rho g |dT|))^(1/3), flux k dT / min(delta, half cell) (Stevenson, Spohn & Schubert 1983, Icarus
-  54:466, the boundary-layer scheme's lower layer): at the CMB dT = T_c - T_0, eta at their mean; at the
-  surface dT = T_top - T_s, eta of the top cell, and T_s balances that flux with eps sigma (T_s^4 - T_eq^4)
+  (alpha rho g |dT|))^(1/3), flux k dT / min(delta, dr_0) with dr_0 the distance to the outer cell's centroid
+  (see "Outer cells"; Stevenson, Spohn & Schubert 1983, Icarus
+  54:466, the boundary-layer scheme's lower layer): at the CMB dT = T_c - T_0, eta of the layer's material at
+  their mean temperature and that temperature's melt fraction at the CMB (this model's choice; the lowest cell's
+  own melt fraction made the core's heat flow follow the cell size, :func:`meltzone._core.mlt_physics.cmb_flux`);
+  at the surface dT = T_top - T_s, eta of the top cell, and T_s balances that flux with eps sigma (T_s^4 - T_eq^4)
   (bare, or the grey atmosphere in solubility equilibrium with the melt, eps lagged by one step); a
   stagnant lid emerges where the viscosity shuts the convective flux off;
 * mobile lid (``convection.regime = "mobile-lid"``): the viscosity at every face is evaluated no colder than
@@ -49,30 +52,50 @@ rate, takes the slopes of the convective flux at an excess of at least 1e-3 K wh
 the onset of convection the slope vanishes and a front would otherwise be found one cell per iteration), and
 treats a non-positive temperature iterate as a failed step; a step that needed more than SLOW_NEWTON iterations
 does not let the next one grow (the constants in :mod:`meltzone._core.implicit`). Measured for 5 M_E over 10 Gyr
-at 256 nodes: 4.0 Newton iterations per accepted step and 172 rejected steps, against 5.7 and 395 before.
+at 256 nodes: 4.0 Newton iterations per accepted step and 172 rejected steps, against 5.7 and 395 before (in a
+later version, with the current curves, outer faces and CMB layer: 4.4 per accepted step with the rejected steps'
+included, 2830 accepted and 819 rejected steps; 2395 and 648 before the outer faces and the CMB layer).
 
-History: regime 0 (magma ocean) while the top cell's melt fraction exceeds phi_c, else the configured solid
-regime; ``upper_temperature`` = potential temperature T / f of the top convecting cell (the highest cell whose
-upper face carries more heat by convection than by conduction); ``lid_thickness`` (stagnant lid) = depth of that
-cell's upper face; ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
+Outer cells: the nodes at the CMB and at the surface carry half cells; the mean of a half cell lies at its
+centroid, a quarter of the node spacing from the boundary, so the outer faces' conduction distance (and the
+boundary layers' cap) is that quarter and the faces next to them take three quarters (``OUTER_CENTROID``; with the
+node distances a conductive lid carried half a cell too much and its heat flow converged only to first order).
 
-Known limitations (measured): the half-cell outer faces add half a cell of conduction between each boundary and
-its node (the tests compare analytic solutions with the boundary moved by it). The bulk of the magma ocean
-passes the rheological transition within ~1-2 kyr, and this converges in the grid: the time at which less
-than 1% of the mantle mass is above phi_c (5 M_E: 1.665, 1.720, 1.753, 1.773, 1.786 kyr at 64 to 1024 nodes)
-or less than 10% (1 M_E: 0.719 to 0.725 kyr); the rheological front's radius at a given time moves by less
-than one cell per doubling (5 M_E at 0.3-1 kyr; 1 M_E but once, 38 km against a 23 km cell). The end of the surface magma ocean as the top cell falling below
-phi_c does not converge for 1 M_E (0.91, 1.18, 1.84, 1.40, 0.68 Myr at 64 to 1024 nodes; 5 M_E 3.08, 2.76,
-2.62, 2.82, 3.02 Myr): after the bulk has crystallised, a shallow mushy layer of ~1-1.5% of the mantle mass stays
-a few hundredths above phi_c for Myr, held there by the surface boundary layer, whose viscosity (the top
-cell's) falls by orders of magnitude across the blend. The top cell's temperature then drifts by ~1 K per
-100 kyr, so a 2% crossing time would need it to ~0.2 K, while the surface heat flow at 1 Myr still differs by
-a factor ~2 between 64 and 1024 nodes (the top cell's thickness sets the resistance of the face below it). For
-the same reason the 1 M_E time of "less than 1% above phi_c" falls on that plateau (0.13 kyr to 1.4 Myr). Tried
-without effect on this: mixing lengths at the geometric mean of the two nodes' distances to the boundary, and
-the node distance at the faces next to the outer half cells. The basal layer's onset converges to ~4% (256 to
-512 nodes; 16% to 1024), its largest thickness to 1-6%, its freezing (last melt) to 1-2%; the last cell above
-phi_c (the CMB cell) by 13-15% per doubling; inner-core nucleation to ~15% only.
+History: regime 0 (magma ocean) while the top of the convecting mantle is above phi_c, else the configured solid
+regime. ``top_melt_fraction`` (the regime's melt fraction) is the melt fraction at the surface of the two-phase
+isentrope through the top convecting cell (the highest cell whose upper face carries more heat by convection than
+by conduction; the top cell itself is never taken), i.e. the convecting mantle's with the upper boundary layer
+taken away: the boundary-layer scheme's definition (its regime follows the isentrope's melt fraction at the
+top). The top cell's own melt fraction is not grid independent: the half cell at r = R lies inside the upper
+boundary layer once that is resolved (the material at r = R is at the surface temperature in the continuum
+limit), and the mixing length at its lower face is a quarter of a cell, so the cell freezes when the boundary
+layer outgrows it; measured, the top cell leaving phi_c at 256, 512 and 1024 nodes: 1 M_E 0.96, 0.37, 0.17 Myr,
+5 M_E 3.8, 3.2, 1.5 Myr, 10 M_E 5.2, 5.2, 3.5 Myr (with the node distances at the outer faces 1 M_E 1.55, 0.89,
+0.68 Myr). ``upper_temperature`` = potential temperature T / f of the top convecting cell, counting the top cell
+when its boundary layer is thinner than the half cell; ``lid_thickness`` (stagnant lid) = depth of that cell's
+upper face; ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
+
+Grid convergence (measured with ``benchmarks/convergence_mlt.py``, mobile lid, at 64, 128, 256, 512, 1024 nodes
+unless said). The bulk of the magma ocean passes the rheological transition within ~1-3 kyr and this converges:
+the time at which less than 1% of the mantle mass is above phi_c, 5 M_E: 1.710, 1.771, 1.798, 1.819, 1.835 kyr
+(1.5%, 1.2%, 0.9% per doubling). The surface magma ocean's end (the regime's isentrope leaving phi_c), 1 M_E:
+9.40, 9.00, 5.43, 4.86, 4.80 Myr (1.2% from 512 to 1024 nodes, 10% from 256 to 512). For 5 M_E it is not
+converged (8.2, 12.8, 22.3, 17.0, 7.8 Myr), nor for 10 M_E: there the regime's melt fraction drifts along phi_c
+(~0.005 per Myr for 5 M_E, and at 1024 nodes it wanders by +-0.01 around it), the boundary-layer scheme's "top
+held at phi_c" plateau, so a 2% crossing time would need it to ~1e-3. The 1 M_E time of less than 1% above phi_c
+falls on a plateau of ~1-1.4% of the mantle mass (1.35, 2.24, 2.98, 2.38, 1.55 Myr), and so does the reported
+``magma_ocean_end_yr`` (which needs both). The basal layer's edges at fixed times converge (1 M_E, top at 40 kyr
+to 1 Myr: within 3 km from 256 to 1024 nodes, cells of 11 to 3 km; the core's heat flow at 1 Myr 3.3e14, 3.7e14,
+3.6e14 W), but its separation is a tangency of T - T_sol with zero: 1 M_E 33.9, 33.5, 32.9, 30.0, 31.2 kyr, its
+largest thickness (reached then) 965, 960, 963, 1063, 1006 km; 5 M_E 530 kyr within 0.2% and 438, 439, 423, 427,
+425 km. The last melt (the basal layer's freezing) moves by 4.7% and 2.4% (1 M_E, 128-512 nodes), 4.0% and 2.8%
+(5 M_E), 7.6% and 5.9% (10 M_E); with the node distances at the outer faces and the cell's melt fraction at the
+CMB 13.9% and 11.3% (5 M_E), 13.6% and 10.7% (10 M_E). The last cell above phi_c (``rheological_transition_yr``)
+is one cell on a plateau at phi_c and does not converge (1 M_E 8.0, 7.8, 5.7, 22.2, 29.5 Myr; 5 M_E 4.7, 7.4,
+20.2, 15.9, 12.2 Myr). Halving the step tolerance (run.max_temperature_step_k) moves every event by < 1% except
+the basal layer's largest thickness (1-6%). Tried without effect on the top cell's freezing: mixing lengths at the
+geometric mean of the two nodes' distances to the boundary, and the node distance at the faces next to the outer
+half cells.
 """
 
 from __future__ import annotations
@@ -111,6 +134,11 @@ MIN_BLEND = 0.15
 #: most cells the scheme takes: the history holds T and phi per cell and step (this model's choice)
 MAX_CELLS = 2048
 PROGRESS_STEPS = 100
+#: distance of an outer half cell's centroid from its boundary, in node spacings (a quarter: the mean of a linear
+#: profile over the half cell; common practice for cell-centred finite volumes, Patankar 1980, ch. 4, from
+#: memory). With a half (the node's distance) the conductive lid carried an extra half cell: measured 1 M_E
+#: surface heat flow at 6 Myr 1.61, 1.93, 2.04e15 W at 256, 512, 1024 nodes, with the quarter 1.98, 2.14, 2.17e15 W
+OUTER_CENTROID = 0.25
 SWITCH = "rheological_switch"
 
 
@@ -129,8 +157,13 @@ def build_faces(interior, grid) -> np.ndarray:
     faces[k.F_P] = np.interp(rf, r, it.P[ms])
     faces[k.F_L] = np.minimum(rf - r[0], r[-1] - rf)
     faces[k.F_DR, 1:n] = np.diff(r)
-    faces[k.F_DR, 0] = 0.5 * (r[1] - r[0])
-    faces[k.F_DR, n] = 0.5 * (r[-1] - r[-2])
+    # the outer cells are half cells whose mean lies at their centroid, a quarter of the node spacing from the
+    # boundary (linear profile): the distances at the outer faces and at the faces next to them are measured from
+    # it (module docstring, "Outer cells")
+    faces[k.F_DR, 0] = OUTER_CENTROID * (r[1] - r[0])
+    faces[k.F_DR, n] = OUTER_CENTROID * (r[-1] - r[-2])
+    faces[k.F_DR, 1] = (1.0 - OUTER_CENTROID) * (r[1] - r[0])
+    faces[k.F_DR, n - 1] = (1.0 - OUTER_CENTROID) * (r[-1] - r[-2])
     f = grid[k.G_F]
     faces[k.F_RATIO] = 1.0
     faces[k.F_RATIO, 1:n] = f[1:] / f[:-1]
@@ -261,6 +294,7 @@ def run(spec, interior, curves, progress=None, *, history_rows=2048) -> History:
         scheme_data={"grid": grid, "core": inputs.core, "iso": inputs.iso, "par": inputs.par,
                      "law": np.int64(inputs.law), "core_energy": hist[:, k.MH_EC].copy(),
                      "newton_iterations": hist[:, k.MH_NEWTON].copy(),
+                     "upper_cell": hist[:, k.MH_UPPER_CELL].astype(np.int64),
                      "newton_iterations_all": np.int64(state[k.MS_N_NEWTON])})
     history.evaluator = Evaluator(history)
     return history
@@ -280,9 +314,13 @@ class Evaluator:
         self.t = history.time
         self.h = enthalpy(history.temperature, history.melt_fraction, self.par)
         self.tc = np.asarray(history["core_temperature"], dtype=np.float64)
+        # the top convecting cell per step (a file without it: the top cell)
+        n = self.grid.shape[1]
+        self.upper = np.asarray(d.get("upper_cell", np.full(len(self.t), n - 1)), dtype=np.int64)
 
     def at(self, t: float) -> InStep:
         from .._core.implicit import states_at
+        from .._core.mlt_physics import surface_adiabat_state
         from .._core.physics import CORE, _invert
 
         times = self.t
@@ -305,7 +343,9 @@ class Evaluator:
         tc = tc0
         if self.core[k.C_W].sum() > 0.0:
             tc, _ = _invert(CORE, float(ec), 0.0, 0.0, self.grid, self.core, self.par, self.law, float(tc0), 0.0)
-        return InStep(temperature=temp, melt_fraction=phi, regime_melt_fraction=float(phi[-1]),
+        iu = int(self.upper[s])  # the top convecting cell at the end of the step
+        regime_phi = surface_adiabat_state(float(h[iu]), float(temp[iu]), iu, self.grid, self.law, self.par)[1]
+        return InStep(temperature=temp, melt_fraction=phi, regime_melt_fraction=float(regime_phi),
                       centre_freezing_margin_k=float(self.core[k.C_TMELT, 0] - tc * self.core[k.C_F, 0]))
 
 
