@@ -17,6 +17,7 @@ from __future__ import annotations
 import argparse
 import json
 import os
+import signal
 import statistics
 import subprocess
 import sys
@@ -77,6 +78,7 @@ def main(argv=None):
     ap.add_argument("--repeats", type=int, default=3,
                     help="evolutions per timed process, the fastest counts (default 3; load spikes hit single runs)")
     args = ap.parse_args(argv)
+    signal.signal(signal.SIGTERM, lambda *_: sys.exit(1))  # so that the temporary worktree is removed
     with tempfile.TemporaryDirectory(prefix="meltzone-bench-demo-") as tmp:
         tmp = Path(tmp)
         base = tmp / "base"
