@@ -9,7 +9,7 @@ file writing excluded), the wall time of its first evolution (which loads the ke
 accepted steps; the whole `meltzone run` is timed from outside as well (imports, kernel loading and the HDF5
 file included: what a user waits for).
 
-    python benchmarks/bench_demo.py [--base f39928c] [--rounds 3] [--repeats 3]
+    python benchmarks/bench_demo.py [--base f39928c] [--new COMMIT] [--rounds 3] [--repeats 3]
 """
 
 from __future__ import annotations
@@ -74,6 +74,7 @@ def _cli(tree: Path, cache: Path, out: Path) -> float:
 def main(argv=None):
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--base", default="f39928c", help="commit to compare against (default f39928c)")
+    ap.add_argument("--new", default=None, help="commit for the new side (default: this checkout as it is)")
     ap.add_argument("--rounds", type=int, default=3, help="alternating timed pairs (default 3)")
     ap.add_argument("--repeats", type=int, default=3,
                     help="evolutions per timed process, the fastest counts (default 3; load spikes hit single runs)")
@@ -82,10 +83,14 @@ def main(argv=None):
     with tempfile.TemporaryDirectory(prefix="meltzone-bench-demo-") as tmp:
         tmp = Path(tmp)
         base = tmp / "base"
-        subprocess.run(["git", "-C", str(ROOT), "worktree", "add", "--detach", str(base), args.base],
-                       check=True, capture_output=True)
+        trees = {"old": base, "new": tmp / "new" if args.new else ROOT}
+        made = []
         try:
-            trees = {"old": base, "new": ROOT}
+            for k, commit in (("old", args.base), ("new", args.new)):
+                if commit:
+                    subprocess.run(["git", "-C", str(ROOT), "worktree", "add", "--detach", str(trees[k]), commit],
+                                   check=True, capture_output=True)
+                    made.append(trees[k])
             caches = {k: tmp / f"numba-{k}" for k in trees}
             for k in trees:  # warm each side's cache (untimed: compiles every kernel)
                 _evolve(trees[k], caches[k])
@@ -106,8 +111,9 @@ def main(argv=None):
                 print(f"  {label}: ratio new/old median {statistics.median(ratios):.2f} "
                       f"(min {min(ratios):.2f}, max {max(ratios):.2f})")
         finally:
-            subprocess.run(["git", "-C", str(ROOT), "worktree", "remove", "--force", str(base)],
-                           check=False, capture_output=True)
+            for tree in made:
+                subprocess.run(["git", "-C", str(ROOT), "worktree", "remove", "--force", str(tree)],
+                               check=False, capture_output=True)
 
 
 if __name__ == "__main__":

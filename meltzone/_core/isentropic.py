@@ -33,7 +33,7 @@ def isentropic_melt(t, grid, i, law, par):
     isentropic decompression melting, McKenzie & Bickle 1988, J. Petrol. 29:625; from memory). It ignores
     the steeper adiabat of a melting parcel. The linear law's fixed point in closed form, phi = min((t - T_sol) /
     (T_liq - T_sol + L / c_p), 1) (t - L phi / c_p then lies between the curves; the bisection it replaces, in
-    every evaluation of the volcanism's melt column, agreed within PHI_XTOL and cost ~20% of the demo's run);
+    every evaluation of the volcanism's melt column, agreed within PHI_XTOL and cost 5-20% of the demo's warm run);
     other laws by bisection: phi - phi_eq(t - L phi / c) rises with phi."""
     lc = par[P_LATENT] / par[P_CM]
     hi = node_melt(t, grid, i, law)
