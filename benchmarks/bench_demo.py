@@ -40,7 +40,8 @@ times = []
 for _ in range(int(sys.argv[1])):
     res = evolve(spec)
     times.append(res.wall_time_s)
-print(json.dumps({"first_s": first, "evolve_s": min(times), "steps": res.history.n_steps, "file": __import__("meltzone").__file__}))
+print(json.dumps({"first_s": first, "evolve_s": min(times), "steps": res.history.n_steps,
+                  "file": __import__("meltzone").__file__}))
 """
 
 
