@@ -164,17 +164,10 @@ REGISTRY = {
                            "ApJ 553:L153", MEMORY),
     "goldblatt2013": Citation("runaway-greenhouse limit of outgoing longwave radiation, 282 W/m^2",
                               "Goldblatt et al. 2013, Nature Geosci. 6:661", CHECKED),
-    "steam_window": Citation("the steam law's join to sigma T^4 and its near-infrared window, 1 + (T_s / T_w)^20: "
-                             "an interpolation, not a published fit (none with verifiable numbers was found: "
-                             "Marcq 2017, Hamano 2015, Lupu 2014, Kopparapu 2013, Nakajima 1992, Katyal 2019, "
-                             "Pluriel 2019, Boukrouche 2021 searched, abstracts only); T_w = 1639 K puts it through "
-                             "294 W/m^2 at 1400 K (goldblatt2012 with goldblatt2013's absorbed flux), the exponent "
-                             "20 is this model's choice; out of range: other water columns than Earth's ocean, "
-                             "and above ~1500 K (extrapolated); the grey law weighs in only as exp(-tau_H2O)",
+    "steam_window": Citation("the steam law's join to sigma T^4 and its near-infrared window opening near 1800 K "
+                             "(shape after Goldblatt et al. 2013 Fig. 1, from memory; not fitted: no published "
+                             "OLR(T_s) table could be verified; the grey law weighs in only as exp(-tau_H2O))",
                              "meltzone._core.radiation.olr_steam", CHOICE),
-    "goldblatt2012": Citation("post-runaway equilibrium of the present Earth: warming ceases at ~1400 K, where the "
-                              "surface radiates in the near-infrared (the steam law's anchor)",
-                              "Goldblatt & Watson 2012, Phil. Trans. R. Soc. A 370:4197", CHECKED),
     "sossi2023": Citation("H2O solubility in peridotite melt, 647 ppmw bar^-0.5 (X ~ p^0.5)",
                           "Sossi et al. 2023, EPSL 601:117894", CHECKED),
     "wagner1993": Citation("saturation vapour pressure of water (IAPWS equation, to the critical point)",
@@ -306,7 +299,7 @@ def surface_keys(spec) -> tuple[str, ...]:
     """Registry keys of the star, the steam atmosphere, water and escape a run of ``spec`` uses (both schemes)."""
     keys = []
     if spec.surface.atmosphere == "steam":
-        keys += ["goldblatt2013", "goldblatt2012", "steam_window", "sossi2023", "wagner1993", "abe1985", "lebrun2013"]
+        keys += ["goldblatt2013", "steam_window", "sossi2023", "wagner1993", "abe1985", "lebrun2013"]
     if spec.star.mass_msun > 0.0:
         keys += ["baraffe2015", "star_interpolation", "ribas2005", "jackson2012", "haisch2001"]
         if spec.surface.atmosphere != "none" and spec.surface.escape_efficiency > 0.0:

@@ -13,12 +13,10 @@ L_SUN = 3.839e26
 
 
 def olr_steam(ts):
-    """282 W/m^2 joined to sigma T^4 by a 4-norm, times 1 + (T / T_w)^20, at most sigma T^4, with T_w such that
-    the window passes through 294 W/m^2 at 1400 K (Goldblatt & Watson 2012; Goldblatt et al. 2013)."""
-    t_w = 1400.0 / (294.0 / 282.0 - 1.0) ** (1.0 / 20.0)
+    """282 W/m^2 joined to sigma T^4 by a 4-norm, times 1 + (T / 1800 K)^20, at most sigma T^4."""
     bb = SIGMA * np.asarray(ts, dtype=float) ** 4
     joined = (bb ** -4.0 + 282.0 ** -4.0) ** -0.25
-    return np.minimum(joined * (1.0 + (np.asarray(ts) / t_w) ** 20), bb)
+    return np.minimum(joined * (1.0 + (np.asarray(ts) / 1800.0) ** 20), bb)
 
 
 def saturation_pressure(t):

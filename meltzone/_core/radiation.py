@@ -10,24 +10,13 @@ the absorbed stellar flux comes from :func:`meltzone._core.star.absorbed_flux_t4
   sqrt(kappa_i g / (3 P0)), kappa_H2O = 0.01, kappa_CO2 = 0.001 m^2/kg (from memory);
 * law 1 (``"steam"``): outgoing = (1 - w) OLR_steam(T_s) + w eps sigma T_s^4, net = outgoing - F_abs. OLR_steam is
   the runaway-greenhouse limit F_lim = 282 W/m^2 (Goldblatt et al. 2013, Nature Geosci. 6:661, abstract checked)
-  joined smoothly to sigma T_s^4 at low T_s, ((sigma T_s^4)^-4 + F_lim^-4)^(-1/4), times 1 + (T_s / T_w)^k for
-  the near-infrared window that opens at high T_s, at most sigma T_s^4. No published fit or table of OLR against
-  surface temperature (and water or CO2 pressure) could be verified in its source text (searched: Marcq et al.
-  2017, JGR Planets; Hamano et al. 2015, ApJ 806:216; Lupu et al. 2014, ApJ 784:27; Kopparapu et al. 2013, ApJ
-  765:131; Goldblatt et al. 2013; Nakajima, Hayashi & Abe 1992; Katyal et al. 2019; Pluriel et al. 2019;
-  Boukrouche et al. 2021: only abstracts were readable, none with OLR(T_s) values), so the window is an
-  interpolation through the published points that were verified: the plateau F_lim (Goldblatt et al. 2013,
-  abstract) and the post-runaway equilibrium of the present Earth, where "warming ceases only after the surface
-  reaches approximately 1400 K and emits radiation in the near-infrared" (Goldblatt & Watson 2012, Phil. Trans.
-  R. Soc. A 370:4197, abstract checked) under the 294 W/m^2 of sunlight a steam atmosphere absorbs (Goldblatt et
-  al. 2013, abstract checked): OLR_steam(ANCHOR_TEMPERATURE = 1400 K) = ANCHOR_FLUX = 294 W/m^2 fixes
-  T_w = 1400 K / (294 / 282 - 1)^(1/k) = 1639 K. The steepness k = 20 is this model's choice (a window that
-  keeps OLR within 1% of F_lim up to 1300 K and radiates >5 F_lim at 2000 K; from memory, Goldblatt et al.
-  2013 Fig. 1 shows the limit holding to ~1600-1800 K); the form does not depend on the water or CO2 column.
-  Validity: the anchor is one point of one (present-Earth, 1 bar-scale background) calculation; above ~1500 K
-  and for water columns other than Earth's ocean the law is an extrapolation (uncertainty: the temperature where
-  OLR reaches 2 F_lim is T_w = 1639 K here, published ~1800-2300 K depending on the water column, from memory).
-  w = exp(-tau_H2O), the grey transmissivity of the water column (tau_H2O
+  joined smoothly to sigma T_s^4 at low T_s, ((sigma T_s^4)^-4 + F_lim^-4)^(-1/4), times 1 + (T_s / T_w)^k
+  with T_w = 1800 K and k = 20 for the near-infrared window that opens at high T_s (the limit holds from
+  ~400 K to ~1600-1800 K, Goldblatt et al. 2013, Fig. 1; Goldblatt & Watson 2012, Phil. Trans. A 370:4197
+  give ~1400 K; the window's form, T_w and k are this model's choice, a shape after those figures from
+  memory, not a fit to tabulated values: no published table of OLR(T_s) could be verified; uncertainty: the
+  temperature where OLR reaches 2 F_lim is 1800 K here, published ~1800-2300 K depending on the water column,
+  from memory), at most sigma T_s^4. w = exp(-tau_H2O), the grey transmissivity of the water column (tau_H2O
   of the grey law below): the grey law takes over once escape has thinned the steam (an optically thin
   atmosphere radiates like the grey law), not while the steam is thick, where the radiation limit holds
   whatever the grey law would give (this model's choice; the former max(OLR_steam, eps sigma T_s^4) let the
@@ -64,14 +53,9 @@ from .star import absorbed_flux_t4, xuv_luminosity
 
 #: runaway-greenhouse limit of the outgoing longwave radiation [W/m^2] (Goldblatt et al. 2013)
 RADIATION_LIMIT = 282.0
-#: the published point the near-infrared window passes through: OLR [W/m^2] at surface temperature [K] (the
-#: present Earth's post-runaway equilibrium, ~1400 K, Goldblatt & Watson 2012, under the 294 W/m^2 a steam
-#: atmosphere absorbs, Goldblatt et al. 2013; both abstracts checked)
-ANCHOR_TEMPERATURE, ANCHOR_FLUX = 1400.0, 294.0
-#: steepness of the window's opening (this model's choice) and the temperature [K] it makes the window pass
-#: through the anchor with (1639 K)
+#: surface temperature [K] around which the near-infrared window opens, and the steepness (this model's choice)
+WINDOW_TEMPERATURE = 1800.0
 WINDOW_EXPONENT = 20.0
-WINDOW_TEMPERATURE = ANCHOR_TEMPERATURE / (ANCHOR_FLUX / RADIATION_LIMIT - 1.0) ** (1.0 / WINDOW_EXPONENT)
 #: exponent of the smooth minimum of sigma T^4 and the limit (this model's choice)
 JOIN_EXPONENT = 4.0
 #: the IAPWS saturation-pressure coefficients a1..a6 (Wagner & Pruss 1993; from memory)
