@@ -98,7 +98,8 @@ def main(repeats=7, reference=True):
         print(f"{name:>13}: median {1e3 * med[name]:6.1f} ms wall, {1e3 * med_cpu[name]:6.1f} ms CPU; {acc} accepted, "
               f"{rej} rejected, {imp} implicit steps; {n_rhs} RHS evaluations; "
               f"{1e6 * med_cpu[name] / n_rhs:.2f} us CPU per evaluation (loop overhead included)")
-    print(f"reservoir / off: {med['reservoir'] / t_kernel:.2f} wall, {med_cpu['reservoir'] / med_cpu['default']:.2f} CPU")
+    print(f"reservoir / off: {med['reservoir'] / t_kernel:.2f} wall, "
+          f"{med_cpu['reservoir'] / med_cpu['default']:.2f} CPU")
     n_with, n_without = counts["default"][3], counts["no volcanism"][3]
     fastest = {name: min(ts) for name, ts in cpu.items()}  # the least disturbed repeat: steadiest under load
     for label, m, ts in (("wall, medians", med, times), ("CPU, medians", med_cpu, cpu),
