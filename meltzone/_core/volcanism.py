@@ -14,12 +14,12 @@ import math
 from ._jit import njit
 from .lid import lid_heat_temperature
 from .layout import (D_ATM_CO2, D_ATM_H2O, D_DCRUST, D_DELTA_U, D_DHPE, D_DLID, D_DLID_CRUST, D_H, D_MPROD, D_OCEAN,
-                     D_OG_CO2, D_OG_H2O, D_QCRUST, D_QS, D_QS_CRUST, D_QVOLC, D_REGIME, D_TL, D_TS, D_UCONV, D_XCO2,
-                     D_XH2O, G_F, G_P, G_R, G_W, P_ATMOSPHERE, P_CM, P_CORE_RADIUS, P_CRUST_HEAT, P_D_CO2,
-                     P_D_H2O, P_D_HPE, P_DEPLETE, P_ERUPT, P_G_SURF, P_KAPPA, P_LATENT, P_LID_MIN, P_MANTLE_MASS,
-                     P_P_ECLOGITE, P_P_EXTRACT, P_RADIUS, P_RHO_CRUST, P_RHO_TOP, P_RIDGE, P_STAGNANT, P_STEAM,
-                     P_VENT, P_VOLC, P_X_CO2, P_X_H2O, REGIME_MAGMA_OCEAN, Y_CRUST, Y_EM, Y_HPE, Y_LID,
-                     Y_OG_CO2, Y_OG_H2O, Y_OUT, Y_XCO2, Y_XH2O)
+                     D_OG_CO2, D_OG_H2O, D_PHI_SURF, D_PHI_TOP, D_QCRUST, D_QS, D_QS_CRUST, D_QVOLC, D_REGIME, D_TL,
+                     D_TS, D_UCONV, D_XCO2, D_XH2O, G_F, G_P, G_R, G_W, P_ATMOSPHERE, P_CM, P_CORE_RADIUS,
+                     P_CRUST_HEAT, P_D_CO2, P_D_H2O, P_D_HPE, P_DEPLETE, P_ERUPT, P_G_SURF, P_KAPPA, P_LATENT,
+                     P_LID_MIN, P_MANTLE_MASS, P_P_ECLOGITE, P_P_EXTRACT, P_RADIUS, P_RHO_CRUST, P_RHO_TOP, P_RIDGE,
+                     P_STAGNANT, P_STEAM, P_VENT, P_VOLC, P_X_CO2, P_X_H2O, REGIME_MAGMA_OCEAN, Y_CRUST, Y_EM, Y_HPE,
+                     Y_LID, Y_OG_CO2, Y_OG_H2O, Y_OUT, Y_XCO2, Y_XH2O)
 from .physics import GREY_H2O_COEFF, GREY_H2O_EXPONENT, isentropic_melt, node_melt, smoothstep
 from .physics import rhs as energy_rhs
 
@@ -190,7 +190,11 @@ def volcanism(tu, y, diag, grid, par, law):
     s_oc = 0.0
     s_p = 0.0
     found = False
-    for i in range(grid.shape[1] - 1, -1, -1):
+    top = grid.shape[1] - 1
+    # mobile lid: the top node's isentropic melt fraction is the regime's, which diagnose computed at the same
+    # T_u once the mantle has solidified; that is when it differs from the batch value it takes before
+    reuse_top = not stagnant and tu >= 1.0 and diag[D_PHI_TOP] != diag[D_PHI_SURF]
+    for i in range(top, -1, -1):
         if grid[G_P, i] > par[P_P_EXTRACT]:
             break  # deeper melt is denser than its residue and stays
         z = r_p - grid[G_R, i]
@@ -201,7 +205,7 @@ def volcanism(tu, y, diag, grid, par, law):
             t = tl + (t_ad - tl) * (z - d_lid) / delta if z < d_lid + delta else t_ad
             phi = node_melt(t, grid, i, law)
         else:
-            phi = isentropic_melt(t_ad, grid, i, law, par)
+            phi = diag[D_PHI_TOP] if i == top and reuse_top else isentropic_melt(t_ad, grid, i, law, par)
             t = t_ad - lat / cp * phi
         if phi > 0.0:
             found = True
