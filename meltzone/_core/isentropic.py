@@ -7,7 +7,6 @@ from __future__ import annotations
 import math
 
 from ._jit import njit
-from ..melting import LAW_LINEAR
 from .layout import G_AUX1, G_AUX2, G_F, G_TLIQ, G_TSOL, P_CM, P_LATENT, P_LID_MIN, P_STAGNANT
 from ..melting import KATZ_BETA1, KATZ_BETA2, LAW_KATZ2003, LAW_LINEAR
 from .melt import melt_fraction
