@@ -346,10 +346,19 @@ def radiogenic_power(t, ph):
                                 for h, lam in zip(ph.isotope_heat, ph.isotope_decay))
 
 
+def lid_floor(rate, d):
+    """The lid thins no further than LID_MIN: a negative rate times smoothstep((d - LID_MIN) / LID_MIN) (the
+    model's choice, meltzone._core.lid)."""
+    if rate >= 0.0:
+        return rate
+    return rate * smoothstep((d - LID_MIN) / LID_MIN)
+
+
 def lid_base_temperature(tu, ph):
     """T_l = T_u - a_rh R T_u^2 / E, the rheological temperature scale (Solomatov & Moresi 2000, JGR
-    105:21795), at least 1 K above the equilibrium temperature."""
-    return max(tu - ph.rheology_a * R_GAS * tu * tu / ph.activation_energy, ph.equilibrium_temperature + 1.0)
+    105:21795), at least 1 K above the equilibrium temperature and never above T_u."""
+    return min(max(tu - ph.rheology_a * R_GAS * tu * tu / ph.activation_energy, ph.equilibrium_temperature + 1.0),
+               tu)
 
 
 def lid_mass(d, ph):
@@ -579,7 +588,7 @@ class ReferenceModel:
             surface_heat_flow=qs * 4.0 * math.pi * ph.radius ** 2,
             cmb_heat_flow=q_cmb * 4.0 * math.pi * ph.core_radius ** 2,
             radiogenic_power=radiogenic_power(t, ph),
-            lid_rate=d_rate if ph.stagnant_lid else 0.0,
+            lid_rate=lid_floor(d_rate, d) if ph.stagnant_lid else 0.0,
             phi_top=phi_top, phi_surface=phi_surf, magma_ocean=magma,
             regime=0 if magma else (2 if ph.stagnant_lid else 1),
             atmosphere_h2o=m_h2o, atmosphere_co2=m_co2,

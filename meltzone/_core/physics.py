@@ -121,8 +121,10 @@ def lid_mass(d, par):
 
 @njit
 def lid_base_temperature(tu, par):
-    """T_l = T_u - a_rh R T_u^2 / E (stagnant lid), at least 1 K above the equilibrium temperature."""
-    return max(tu - par[P_A_RH] * GAS_CONSTANT * tu * tu / par[P_E_ACT], par[P_T_EQ] + 1.0)
+    """T_l = T_u - a_rh R T_u^2 / E (stagnant lid), at least 1 K above the equilibrium temperature (with a star,
+    the run's lowest: meltzone.star.lowest_luminosity) and never above T_u: the lid's base is never hotter than
+    the mantle under it (a lid base above T_u drains the mantle through the lid whatever T_u is)."""
+    return min(max(tu - par[P_A_RH] * GAS_CONSTANT * tu * tu / par[P_E_ACT], par[P_T_EQ] + 1.0), tu)
 
 
 @njit

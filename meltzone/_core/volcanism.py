@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 
 from ._jit import njit
-from .lid import lid_heat_temperature
+from .lid import floored_rate, lid_heat_temperature
 from .layout import (D_ATM_CO2, D_ATM_H2O, D_DCRUST, D_DELTA_U, D_DHPE, D_DLID, D_DLID_CRUST, D_H, D_MPROD, D_OCEAN,
                      D_OG_CO2, D_OG_H2O, D_QCRUST, D_QS, D_QS_CRUST, D_QVOLC, D_REGIME, D_TL, D_TS, D_UCONV, D_XCO2,
                      D_XH2O, G_F, G_P, G_R, G_W, P_ATMOSPHERE, P_CM, P_CORE_RADIUS, P_CRUST_HEAT, P_D_CO2,
@@ -272,7 +272,8 @@ def crust_heat(tu, share, crust, d_lid, stagnant, diag, par):
 def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     """dy/dt with volcanism: :func:`meltzone._core.physics.rhs`, less the heat the erupted melt carries to the
     surface and the crust's heat that leaves through it (both added to the heat out, so the budget still
-    closes; the crust's heat joins the surface heat flow), the lid thinned by the crust's heat, plus the crust,
+    closes; the crust's heat joins the surface heat flow), the lid thinned by the crust's heat (never below its
+    minimum: :func:`meltzone._core.lid.floored_rate`), plus the crust,
     the extracted and outgassed volatiles and the crust's share of the heat sources."""
     energy_rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy)
     volcanism(work[0], y, diag, grid, par, law)
@@ -280,8 +281,8 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     dy[Y_EM] -= q
     dy[Y_OUT] += q
     diag[D_QS] += diag[D_QS_CRUST]
-    if par[P_STAGNANT] > 0.5:
-        dy[Y_LID] += diag[D_DLID_CRUST]
+    if par[P_STAGNANT] > 0.5:  # the lid thins no further than its minimum (lid.py)
+        dy[Y_LID] = floored_rate(dy[Y_LID] + diag[D_DLID_CRUST], y[Y_LID], par)
     dy[Y_CRUST] = diag[D_DCRUST]
     dy[Y_XH2O] = diag[D_XH2O]
     dy[Y_XCO2] = diag[D_XCO2]
