@@ -70,6 +70,8 @@ KATZ_BETA1, KATZ_BETA2 = 1.5, 1.5
 #: Thickness [m] of the stagnant lid at the start and below which it is not resolved (the model's choice, stated
 #: in the docstring of meltzone.evolution.evolve's inputs).
 LID_MIN = 1.0e3
+#: Time in which the floor's rate scale grows the lid by LID_MIN (1 Myr, the model's choice)
+LID_FLOOR_TIME = 1.0e6 * YEAR
 #: Time scale [s] over which a lid thins back to LID_MIN where the top is molten (1 kyr, the model's choice).
 LID_RELAX = 1.0e3 * YEAR
 #: Largest exponent of a viscosity (keeps exp finite).
@@ -347,11 +349,13 @@ def radiogenic_power(t, ph):
 
 
 def lid_floor(rate, d):
-    """The lid thins no further than LID_MIN: a negative rate times smoothstep((d - LID_MIN) / LID_MIN) (the
-    model's choice, meltzone._core.lid)."""
-    if rate >= 0.0:
+    """The lid thins no further than LID_MIN: below 2 LID_MIN the rate r is scaled by s + (1 - s) smoothstep(r /
+    r_w), s = smoothstep((d - LID_MIN) / LID_MIN), r_w = LID_MIN / LID_FLOOR_TIME (a thinning rate by s, a growing
+    one below r_w less; smooth in d and in r; the model's choice, meltzone._core.lid)."""
+    if d >= 2.0 * LID_MIN:
         return rate
-    return rate * smoothstep((d - LID_MIN) / LID_MIN)
+    s = smoothstep((d - LID_MIN) / LID_MIN)
+    return rate * (s + (1.0 - s) * smoothstep(rate / (LID_MIN / LID_FLOOR_TIME)))
 
 
 def lid_base_temperature(tu, ph):

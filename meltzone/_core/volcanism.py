@@ -150,9 +150,12 @@ def volcanism(tu, y, diag, grid, par, law):
         keep = smoothstep((cap - crust) / (CRUST_CAP_WIDTH * cap)) if cap > 0.0 else 0.0
         # crust above its cap is removed at the convective rate (its base turned to eclogite), and crust in the
         # cap's cut-off band follows a lid that thins: the lid's base overtakes it (this model's choice)
+        # at the lid's rate as floored (lid.floored_rate, 0 at D_min): the law's raw rate there is the thinning
+        # the floor holds back (measured, with it a steam world's crust chattered by +-3 m under a 1 km lid and
+        # the run stopped at run.max_steps)
         loss = min(cap - crust, 0.0) * u / d_conv
-        if y[Y_LID] > par[P_LID_MIN] and d_lid < par[P_P_ECLOGITE] / (rho_cr * par[P_G_SURF]):
-            loss += (1.0 - keep) * min(diag[D_DLID] + diag[D_DLID_CRUST], 0.0)
+        if d_lid < par[P_P_ECLOGITE] / (rho_cr * par[P_G_SURF]):
+            loss += (1.0 - keep) * min(floored_rate(diag[D_DLID] + diag[D_DLID_CRUST], y[Y_LID], par), 0.0)
     else:
         loss = -crust * u / depth
     diag[D_DCRUST] = loss
