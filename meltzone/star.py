@@ -119,6 +119,25 @@ def fill_parameters(spec, interior, par: np.ndarray) -> None:
     par[k.P_LUM_AGE0] = GRID_LOG_AGE0
     par[k.P_LUM_DAGE] = GRID_LOG_AGE_STEP
     par[k.P_LUM:k.P_LUM + k.N_LUM] = luminosity_grid(st.mass_msun)
-    # the lid's stored-heat profile keeps a fixed surface temperature: the equilibrium temperature at the start
-    lum0 = bolometric_luminosity(st.mass_msun, max(st.age_at_start_myr * MYR / YEAR, 1.0))
-    par[k.P_T_EQ] = float(equilibrium_temperature(lum0, ob.semi_major_axis_au, ob.bond_albedo))
+    # the lid's floor and stored-heat profile keep a fixed surface temperature (one that changed with time would
+    # make the stored heat a function of time): the lowest equilibrium temperature of the run
+    lum_min = lowest_luminosity(par[k.P_LUM:k.P_LUM + k.N_LUM], st.age_at_start_myr * MYR / YEAR,
+                                st.age_at_start_myr * MYR / YEAR + spec.run.end_time_gyr * GYR / YEAR)
+    par[k.P_T_EQ] = float(equilibrium_temperature(lum_min, ob.semi_major_axis_au, ob.bond_albedo))
+
+
+def lowest_luminosity(log_lum_grid: np.ndarray, age0_yr: float, age1_yr: float) -> float:
+    """The lowest bolometric luminosity [W] the kernels' table ``log_lum_grid`` (log10 L [W] on the N_LUM ages
+    of :func:`luminosity_grid`, linear in log age and held at its ends, as meltzone._core.star reads it) gives
+    between the star's ages age0_yr and age1_yr: a piecewise-linear function is lowest at an end or at a node.
+
+    The equilibrium temperature of this luminosity (not the start's) bounds the stagnant lid's base from below:
+    a pre-main-sequence M dwarf dims by ~10x in its first 0.1 Gyr, and a floor at the start's equilibrium
+    temperature (1957 K for a 0.57 M_sun star at 0.0102 AU, against 1267 K at 0.1 Gyr) put the lid's base
+    ~400 K above the mantle under it, whose heat then drained through the lid until T_u reached the inversion's
+    10 K floor."""
+    ages = GRID_LOG_AGE0 + GRID_LOG_AGE_STEP * np.arange(len(log_lum_grid))
+    x0, x1 = math.log10(max(age0_yr, 1.0)), math.log10(max(age1_yr, 1.0))
+    inside = log_lum_grid[(ages > x0) & (ages < x1)]
+    ends = np.interp([x0, x1], ages, log_lum_grid)
+    return float(10.0 ** min(ends.min(), inside.min() if inside.size else np.inf))

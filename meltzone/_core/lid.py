@@ -21,12 +21,31 @@ For a lid on a non-convecting mantle (q_u = 0) they give D^2 = 2 kappa t St_eff 
 (T_l - T_s) / (T_u - T_l) (base flux) or (T_l - T_s) / (T_u - T_lm) (integral); the exact conduction solution
 (a Stefan problem with the jump T_u - T_l in place of latent heat, Carslaw & Jaeger 1959) lies between the two
 (see tests/test_lid_growth.py).
+
+The lid never thins below its minimum thickness P_LID_MIN (the one the scheme resolves, and starts from): within
+D_min of the floor a thinning rate is scaled by s_D = smoothstep((D - D_min) / D_min), so that D approaches D_min
+without crossing it and the rate stays continuous in D (:func:`floored_rate`; this model's choice, width D_min).
+A growing rate r is scaled by s_D + (1 - s_D) smoothstep(r / r_w), r_w = D_min / LID_FLOOR_TIME: the floored
+rate is then C1 in the rate too (slope s_D on both sides of r = 0), stays 0 at r = 0 (no spurious growth) and is
+r itself for r >= r_w and for D >= 2 D_min (this model's choice; a growing rate left unscaled made the slope
+jump from s_D to 1 where the lid law's rate changes sign with the lid at its floor). Whatever follows the lid
+(the crust's base in meltzone._core.volcanism) takes this floored rate, not the law's: at the floor the law's
+rate is the thinning the floor holds back. Before the floor, a lid whose
+convecting mantle delivered more heat than it conducted (q_u > q_lid, e.g. a mantle held warm by a bright
+young star) thinned at a rate taken at D_min (every law reads max(D, D_min)) without end: measured, a 0.61 M_E
+planet at 0.0102 AU of a 0.57 M_sun star reached D = -6600 km, and its lid then needed 0.46 Gyr to climb back
+to a positive thickness while the physics asked it to grow.
 """
 
 from __future__ import annotations
 
 from ._jit import njit
-from .layout import P_CM, P_LID_LAW, P_RHO_TOP, P_T_EQ
+from ..constants import YEAR
+from .layout import P_CM, P_LID_LAW, P_LID_MIN, P_RHO_TOP, P_T_EQ
+
+#: Time [s] in which the floor's rate scale r_w = D_min / LID_FLOOR_TIME grows the lid by D_min: growing rates
+#: below r_w are slowed near the floor (1 Myr, this model's choice; :func:`floored_rate`)
+LID_FLOOR_TIME = 1.0e6 * YEAR
 
 
 @njit
@@ -42,3 +61,25 @@ def lid_growth(q_lid, q_u, tu, tl, par):
     mantle temperature tu and lid-base temperature tl [K]: q_lid - q_u over rho c (tu - the temperature of
     :func:`lid_heat_temperature`)."""
     return (q_lid - q_u) / (par[P_RHO_TOP] * par[P_CM] * max(tu - lid_heat_temperature(tl, par), 1.0))
+
+
+@njit
+def smoothstep(x):
+    """0 for x <= 0, 3 x^2 - 2 x^3 between, 1 for x >= 1 (C1; common practice)."""
+    if x <= 0.0:
+        return 0.0
+    if x >= 1.0:
+        return 1.0
+    return x * x * (3.0 - 2.0 * x)
+
+
+@njit
+def floored_rate(rate, d, par):
+    """dD/dt [m/s] with the floor of the module: ``rate`` times s_D + (1 - s_D) smoothstep(rate / r_w), s_D =
+    smoothstep((D - D_min) / D_min), r_w = D_min / LID_FLOOR_TIME; ``rate`` itself for D >= 2 D_min. A thinning
+    rate is scaled by s_D (0 at and below D_min), a growing one above r_w is unchanged."""
+    x = (d - par[P_LID_MIN]) / par[P_LID_MIN]
+    if x >= 1.0:
+        return rate
+    s_d = smoothstep(x)
+    return rate * (s_d + (1.0 - s_d) * smoothstep(rate * LID_FLOOR_TIME / par[P_LID_MIN]))

@@ -26,7 +26,7 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
                      REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
 from .basal import basal_ocean, basal_top_energy
 from .inner_core import inner_core_heat
-from .lid import lid_growth, lid_heat_temperature
+from .lid import lid_growth, lid_heat_temperature, smoothstep
 from .properties import at_depth, depth_index, property_factors
 from .layout import D_MB, D_RB, G_P, G_RHO, P_BMO, P_BMO_MREF, P_RA_VISC, RA_VISC_MID, RA_VISC_SURFACE
 from .layout import Y_OG_CO2, Y_OG_H2O
@@ -50,15 +50,6 @@ NO, YES = np.bool_(False), np.bool_(True)
 T_MIN, T_MAX = 10.0, 2.0e5
 #: Time over which a lid thins back to its minimum where the top is molten [s] (this model's choice)
 LID_RELAX_TIME = 1.0e3 * YEAR
-
-
-@njit
-def smoothstep(x):
-    if x <= 0.0:
-        return 0.0
-    if x >= 1.0:
-        return 1.0
-    return x * x * (3.0 - 2.0 * x)
 
 
 @njit
@@ -121,8 +112,10 @@ def lid_mass(d, par):
 
 @njit
 def lid_base_temperature(tu, par):
-    """T_l = T_u - a_rh R T_u^2 / E (stagnant lid), at least 1 K above the equilibrium temperature."""
-    return max(tu - par[P_A_RH] * GAS_CONSTANT * tu * tu / par[P_E_ACT], par[P_T_EQ] + 1.0)
+    """T_l = T_u - a_rh R T_u^2 / E (stagnant lid), at least 1 K above the equilibrium temperature (with a star,
+    the run's lowest: meltzone.star.lowest_luminosity) and never above T_u: the lid's base is never hotter than
+    the mantle under it (a lid base above T_u drains the mantle through the lid whatever T_u is)."""
+    return min(max(tu - par[P_A_RH] * GAS_CONSTANT * tu * tu / par[P_E_ACT], par[P_T_EQ] + 1.0), tu)
 
 
 @njit

@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 
 from ._jit import njit
-from .lid import lid_heat_temperature
+from .lid import floored_rate, lid_heat_temperature
 from .layout import (D_ATM_CO2, D_ATM_H2O, D_DCRUST, D_DELTA_U, D_DHPE, D_DLID, D_DLID_CRUST, D_H, D_MPROD, D_OCEAN,
                      D_OG_CO2, D_OG_H2O, D_PHI_SURF, D_PHI_TOP, D_QCRUST, D_QS, D_QS_CRUST, D_QVOLC, D_REGIME, D_TL,
                      D_TS, D_UCONV, D_XCO2, D_XH2O, G_F, G_P, G_R, G_W, P_ATMOSPHERE, P_CM, P_CORE_RADIUS,
@@ -160,9 +160,12 @@ def volcanism(tu, y, diag, grid, par, law):
         keep = smoothstep((cap - crust) / (CRUST_CAP_WIDTH * cap)) if cap > 0.0 else 0.0
         # crust above its cap is removed at the convective rate (its base turned to eclogite), and crust in the
         # cap's cut-off band follows a lid that thins: the lid's base overtakes it (this model's choice)
+        # at the lid's rate as floored (lid.floored_rate, 0 at D_min): the law's raw rate there is the thinning
+        # the floor holds back (measured, with it a steam world's crust chattered by +-3 m under a 1 km lid and
+        # the run stopped at run.max_steps)
         loss = min(cap - crust, 0.0) * u / d_conv
-        if y[Y_LID] > par[P_LID_MIN] and d_lid < par[P_P_ECLOGITE] / (rho_cr * par[P_G_SURF]):
-            loss += (1.0 - keep) * min(diag[D_DLID] + diag[D_DLID_CRUST], 0.0)
+        if d_lid < par[P_P_ECLOGITE] / (rho_cr * par[P_G_SURF]):
+            loss += (1.0 - keep) * min(floored_rate(diag[D_DLID] + diag[D_DLID_CRUST], y[Y_LID], par), 0.0)
     else:
         loss = -crust * u / d_conv  # consumed at the plates' age at the trench, d_conv / u
     diag[D_DCRUST] = loss
@@ -286,7 +289,8 @@ def crust_heat(tu, share, crust, d_lid, stagnant, diag, par):
 def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     """dy/dt with volcanism: :func:`meltzone._core.physics.rhs`, less the heat the erupted melt carries to the
     surface and the crust's heat that leaves through it (both added to the heat out, so the budget still
-    closes; the crust's heat joins the surface heat flow), the lid thinned by the crust's heat, plus the crust,
+    closes; the crust's heat joins the surface heat flow), the lid thinned by the crust's heat (never below its
+    minimum: :func:`meltzone._core.lid.floored_rate`), plus the crust,
     the extracted and outgassed volatiles and the crust's share of the heat sources."""
     energy_rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy)
     volcanism(work[0], y, diag, grid, par, law)
@@ -294,8 +298,8 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     dy[Y_EM] -= q
     dy[Y_OUT] += q
     diag[D_QS] += diag[D_QS_CRUST]
-    if par[P_STAGNANT] > 0.5:
-        dy[Y_LID] += diag[D_DLID_CRUST]
+    if par[P_STAGNANT] > 0.5:  # the lid thins no further than its minimum (lid.py)
+        dy[Y_LID] = floored_rate(dy[Y_LID] + diag[D_DLID_CRUST], y[Y_LID], par)
     dy[Y_CRUST] = diag[D_DCRUST]
     dy[Y_XH2O] = diag[D_XH2O]
     dy[Y_XCO2] = diag[D_XCO2]

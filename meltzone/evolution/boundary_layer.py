@@ -153,7 +153,7 @@ from ..errors import ConvergenceError
 from ..iron import EARTH_ICB_PRESSURE_PA, iron_melting_temperature
 from .contract import (INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, VOLCANISM_SERIES, History, InStep,
                        MantleGrid)
-from .schemes import Scheme
+from .schemes import KERNEL_ERRORS, Scheme, kernel_failure
 
 #: Lid thickness [m] below which a stagnant lid is not resolved (its starting value).
 LID_MIN = 1.0e3
@@ -386,7 +386,10 @@ def integrate(spec, inputs, progress=None, history_rows=4096, interval_rows=8192
     chunk = PROGRESS_STEPS if progress is not None else max_steps
     while True:
         done = int(state[k.S_N_H]) - 1
-        status = step_all(state, *inputs, hist, temps, phis, iv, min(chunk, max_steps - max(done, 0)))
+        try:
+            status = step_all(state, *inputs, hist, temps, phis, iv, min(chunk, max_steps - max(done, 0)))
+        except KERNEL_ERRORS as exc:
+            raise kernel_failure(spec, "boundary-layer", exc, hist[:, k.H_T]) from exc
         done = int(state[k.S_N_H]) - 1
         if progress is not None:
             progress(state[k.S_T])

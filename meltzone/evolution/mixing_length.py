@@ -109,7 +109,7 @@ from ..constants import GYR, YEAR
 from ..errors import ConfigError, ConvergenceError
 from .boundary_layer import build_inputs, complete_core, initial_temperatures
 from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid
-from .schemes import Scheme
+from .schemes import KERNEL_ERRORS, Scheme, kernel_failure
 
 #: largest melt-fraction change of any cell in one step (this model's choice)
 MAX_MELT_STEP = 0.05
@@ -222,8 +222,11 @@ def integrate(spec, inputs, faces, progress=None, history_rows=2048):
     chunk = PROGRESS_STEPS if progress is not None else max_steps
     while True:
         done = max(int(state[k.MS_N_H]) - 1, 0)
-        status = step_all(state, x, x_prev, inputs.grid, faces, inputs.core, inputs.iso, inputs.par, inputs.law,
-                          mset, hist, temps, phis, min(chunk, max_steps - done))
+        try:
+            status = step_all(state, x, x_prev, inputs.grid, faces, inputs.core, inputs.iso, inputs.par,
+                              inputs.law, mset, hist, temps, phis, min(chunk, max_steps - done))
+        except KERNEL_ERRORS as exc:
+            raise kernel_failure(spec, "mixing-length", exc, hist[:, k.MH_T]) from exc
         done = int(state[k.MS_N_H]) - 1
         if progress is not None:
             progress(state[k.MS_T])

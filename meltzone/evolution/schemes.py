@@ -12,7 +12,8 @@ from dataclasses import dataclass
 from importlib import import_module
 from typing import Callable
 
-from ..errors import ConfigError
+from ..constants import YEAR
+from ..errors import ConfigError, ConvergenceError
 
 
 @dataclass(frozen=True)
@@ -45,3 +46,19 @@ def get_scheme(name: str) -> Scheme:
 
 def scheme_names() -> tuple[str, ...]:
     return tuple(TABLE)
+
+
+#: exceptions a kernel can raise on its own (numba raises ZeroDivisionError for a float division by zero; the
+#: plain-Python path, NUMBA_DISABLE_JIT=1, also ValueError for a math domain error and OverflowError)
+KERNEL_ERRORS = (ArithmeticError, ValueError)
+
+
+def kernel_failure(spec, scheme: str, exc: Exception, times) -> ConvergenceError:
+    """The error a run reports when its kernel raised ``exc``: the planet, the scheme, the model time of its last
+    recorded step (``times``: the history buffer's time column, zero where nothing was recorded yet) and what to
+    change, in one line, instead of a traceback."""
+    t_yr = float(max(times.max(), 0.0)) / YEAR
+    return ConvergenceError(
+        f"{spec.planet.name}: the {scheme} evolution failed after model time {t_yr:.6g} yr (its last recorded "
+        f"step) with {type(exc).__name__}: {exc}; lower run.max_temperature_step_k or run.rtol, or report the "
+        "configuration")
