@@ -20,7 +20,7 @@ Tolerances (common practice for a reference of a different integrator and quadra
   (measured) and a 2e-5 difference in T_u alone moves Q by several per cent. The same flux laws agree to 1e-10
   at equal states (measured), so outside that window the trajectories decide.
 * Under a stagnant lid whose magma ocean reforms in a runaway, the trajectories up to 1% of the onset's time
-  before it (REFORM_LEAD): in that lead-in the heat flow rises ~3% per Myr, so the onsets' measured 16-17 kyr
+  before it (COLLAPSE): in that lead-in the heat flow rises ~3% per Myr, so the onsets' measured 16-17 kyr
   (2.3e-5) apart alone move Q by 5e-4 - 1e-3; where the sampled times fall there decides the difference
   (measured for the 1 M_E lid: 7.6e-4 at 5.8 Myr before the onset, 1.6e-3 at 4.7 Myr; 2.4e-5 elsewhere).
 * The inner-core radius within 1e-3 of the core radius (its relative difference is ill-conditioned just after
