@@ -17,14 +17,14 @@ import numpy as np
 
 from . import dopri, rosenbrock
 from ._jit import njit
-from .layout import N_Y_ENERGY, S_DYV, S_YV, Y_CRUST
+from .layout import N_Y_ENERGY, S_DYV, S_YV, Y_CRUST, Y_HPE
 from .layout import (C_W, D_PHI_SURF, G_F, G_TSOL, N_D, N_Y, NOT_YET, P_ATOL, P_CC, P_CM, P_DT_MAX,
                      P_H_MAX, P_MANTLE_MASS, P_PHI_C, P_RTOL, P_T_END, S_DY, S_H, S_N_H, S_N_IV, S_N_REJ,
                      S_SLOPE_C, S_SLOPE_M, S_T, S_T_SWITCH, S_TC, S_TU, S_Y, STATUS_DONE, STATUS_HISTORY_FULL,
                      STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL, Y_EC, Y_EM, Y_LID)
 from .layout import S_IMPLICIT, S_N_IMPLICIT, S_NONSTIFF_COUNT, S_STIFF_COUNT, Y_OUT
 from .physics import node_melt, temperature_rates
-from .volcanism import rhs_packed
+from .volcanism import recycling_rate, rhs_packed
 from .record import record
 
 #: melt-fraction tolerance with which the loop lands on the first crossing of phi_c (near phi_c the melt
@@ -143,13 +143,20 @@ def _implicit_step(args, t, y, h, k1, fresh, ws, ynew, yerr, k7, tmp):
     the melt zone: their Jacobian rows and time derivatives are zeroed, so the method treats them explicitly (a
     W-method for them: their increments combine their own rates and stay zero where those are zero; a
     difference across a switch once drove a crust and outgassed masses negative under a reformed magma ocean).
-    The energy rows keep theirs, so the linear energy invariant still closes."""
+    Only the crust's and its heat share's diagonals get the mobile lid's recycling rate -1/tau
+    (:func:`recycling_rate`, known; a diagonal keeps their increments zero where their rates are): the plates'
+    linear decay, which otherwise held the steps at the stability bound h ~ 3 tau. The energy rows keep theirs,
+    so the linear energy invariant still closes (it involves no column of the recorded components)."""
     jac, ft, lu, piv, kst, fwork = ws
     if not fresh:
         molten = args[7][D_PHI_SURF] >= 1.0  # diag: of the last evaluation, f(t, y) = k1
+        decay = recycling_rate(args[7], args[4])
         rosenbrock.jacobian(rhs_packed, args, t, y, k1, N_DEP, jac, ft, tmp, fwork, kst[0], h,
                             FD_RELS_MOLTEN if molten else FD_RELS)
         for i in range(Y_OUT + 1, jac.shape[0]):
+            if decay > 0.0 and (i == Y_CRUST or i == Y_HPE):
+                jac[i, i] = -decay
+                continue
             ft[i] = 0.0
             for j in range(jac.shape[1]):
                 jac[i, j] = 0.0
@@ -160,13 +167,16 @@ def _implicit_step(args, t, y, h, k1, fresh, ws, ynew, yerr, k7, tmp):
 
 
 @njit
-def _count_stiffness(mode, implicit, h, jac, k, ysti, ynew, sc, rtol):
+def _count_stiffness(mode, implicit, h, jac, k, ysti, ynew, sc, rtol, decay):
     """Update the stiffness switch ``mode`` (method, count above, count below the bound) with the h |lambda|
     estimate of an accepted step of size h, scaled as the error norm (``sc`` holds the absolute scales, the
     state's dependent components): the explicit pair's (its last two stages ``k`` at t + h, evaluated at
     ``ysti`` and ``ynew``) switches to the implicit method after STIFF_STEPS estimates above
     rosenbrock.STIFF_BOUND (NONSTIFF_STEPS below it reset the count; Hairer et al. 1993, II.6); the implicit
-    method's (the Gershgorin bound of its Jacobian ``jac``) back after NONSTIFF_STEPS in a row below it."""
+    method's (the Gershgorin bound of its Jacobian ``jac``) back after NONSTIFF_STEPS in a row below it. Either
+    estimate is at least h ``decay``, the recorded components' own eigenvalue (the mobile lid's recycling rate,
+    :func:`recycling_rate`), which the dependent components' estimate does not see; the explicit method
+    switches at once when that one is above the bound (it is known, not estimated)."""
     scale = np.empty(N_DEP)
     for j in range(N_DEP):
         scale[j] = sc[j] + rtol * abs(ynew[j])
@@ -175,6 +185,12 @@ def _count_stiffness(mode, implicit, h, jac, k, ysti, ynew, sc, rtol):
     else:
         h_lambda = rosenbrock.explicit_stiffness(h, k[dopri.N_STAGES - 2], k[dopri.N_STAGES - 1], ysti, ynew,
                                                  scale)
+    if mode[0] < 0.5 and h * decay > rosenbrock.STIFF_BOUND:  # known, not estimated: no need to confirm it
+        mode[0] = 1.0
+        mode[1] = 0.0
+        mode[2] = 0.0
+        return
+    h_lambda = max(h_lambda, h * decay)
     if mode[0] < 0.5:
         if h_lambda > rosenbrock.STIFF_BOUND:
             mode[2] = 0.0
@@ -347,7 +363,12 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
         overshoot = (crossing and err <= 1.0 and not big_jump and not unseen and h > CHECKED_STEP
                      and phi_c - phi_end > PHI_TOL and phi_prev > phi_c)
         if err <= 1.0 and not big_jump and not unseen and not overshoot:
-            _count_stiffness(mode, implicit, h, jac, k, tmp, ynew, sc, rtol)
+            # the explicit step's decay at its end (diag: of its last evaluation), the implicit one's as used
+            # (none while the crust and its share are zero: they stay so under any step)
+            decay = -jac[Y_CRUST, Y_CRUST] if implicit else recycling_rate(diag, par)
+            if ynew[Y_CRUST] <= 0.0 and ynew[Y_HPE] <= 0.0:
+                decay = 0.0
+            _count_stiffness(mode, implicit, h, jac, k, tmp, ynew, sc, rtol, decay)
             jac_fresh = False
             if crossing:
                 # from here on the solidified mantle: its slopes at the step's end (the heat flow jumps here

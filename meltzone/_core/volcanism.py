@@ -252,6 +252,18 @@ def volcanism(tu, y, diag, grid, par, law):
 
 
 @njit
+def recycling_rate(diag, par):
+    """Rate 1 / tau [1/s] at which a mobile lid's plates carry the crust and its share of the heat sources to
+    the trenches (see :func:`volcanism`: dD/dt = -D u / d_conv, d_conv = R / P_RIDGE), with ``diag`` of an
+    evaluation; zero without volcanism or under a stagnant lid. The integrator's implicit method takes it as
+    those rows' Jacobian diagonal (the crust's rate exactly, its share's to the thin-crust order; this model's
+    choice), and its stiffness test as an eigenvalue of the system."""
+    if par[P_VOLC] < 0.5 or par[P_STAGNANT] > 0.5:
+        return 0.0
+    return diag[D_UCONV] * par[P_RIDGE] / par[P_RADIUS]
+
+
+@njit
 def vent_solubility(y, diag, par):
     """(X_H2O, X_CO2): mass fractions that stay dissolved in the erupted melt at the partial pressures of the
     gases at the surface (their column weights; see :func:`volcanism`); zero without P_VENT."""
