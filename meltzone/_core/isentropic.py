@@ -95,11 +95,10 @@ def residual_noise(args):
     times the rounding of its argument t - L x / c_p (x <= 1; two roundings of at most u (t + L / c_p) each, u
     the unit round-off), plus 8 u for the law's arithmetic and the difference (the Katz law's slopes are largest
     at the ends of its branches for exponents >= 1: beta aux2 / (aux1 - T_sol), beta (1 - aux2) / (T_liq -
-    aux1)); infinite for an unknown law."""
+    aux1)); infinite for another law (the linear law never gets here: :func:`isentropic_melt` solves it in
+    closed form)."""
     t, lc, tsol, tliq, aux1, aux2, law = args
-    if law == LAW_LINEAR:
-        slope = 1.0 / (tliq - tsol)
-    elif law == LAW_KATZ2003 and KATZ_BETA1 >= 1.0 and KATZ_BETA2 >= 1.0:
+    if law == LAW_KATZ2003 and KATZ_BETA1 >= 1.0 and KATZ_BETA2 >= 1.0:
         slope = max(KATZ_BETA1 * aux2 / (aux1 - tsol), KATZ_BETA2 * (1.0 - aux2) / (tliq - aux1))
     else:
         return math.inf
