@@ -211,7 +211,8 @@ def test_ocean_melting_curve_sets_a_continuous_thickness():
     curves = melting.node_curves(melting.get_model(spec.melting.model), it.P[it.mantle])
     inputs = build_inputs(spec, it, curves)
     grid, par = inputs.grid, inputs.par
-    floor = grid[k.G_TSOL, 0] - par[k.P_BMO_DEP] - par[k.P_BMO_ENRICH]
+    scale = grid[k.G_TSOL, 0] / par[k.P_BMO_TREF]  # the depression scales with the solidus (default)
+    floor = grid[k.G_TSOL, 0] - (par[k.P_BMO_DEP] + par[k.P_BMO_ENRICH]) * scale
     assert basal_ocean(floor - 1.0, grid, par)[1] == 0.0
     tcs = np.linspace(floor + 100.0, floor + 110.0, 401)
     r_b = np.array([basal_ocean(t, grid, par)[0] for t in tcs])
@@ -230,3 +231,46 @@ def test_run_file_keeps_the_thickness_history(five, tmp_path):
     back = load(path)
     np.testing.assert_array_equal(back.history["basal_ocean_thickness"], five[256].history["basal_ocean_thickness"])
     assert back.summary()["basal_layer"] == five[256].summary()["basal_layer"]
+
+
+@pytest.mark.parametrize("scaling", ["solidus", "constant"])
+def test_depression_scales_with_the_solidus(scaling):
+    """On a synthetic mantle with one solidus T_s at every node the ocean's curve is linear in the mass below a
+    radius, so its top has a closed form (analytic solution): T_c = T_s - (dT0 + dT_fe (1 - M / M_ref)) s with
+    s = T_s / T_ref for melting.basal_melt_depression_scaling = "solidus" (ideal-solution freezing-point depression
+    proportional to the melting temperature: van 't Hoff, common practice) and s = 1 for "constant". At
+    T_s = 3 T_ref a core 3 x (dT0 + dT_fe / 2) below T_s holds half of M_ref with the scaling, and a core
+    dT0 + dT_fe / 2 below it without; tolerance 1e-9 (round-off)."""
+    from meltzone._core import layout as k
+    from meltzone._core.basal import basal_ocean
+
+    n, w, t_ref, t_s, dep, dfe = 11, 1.0e22, 4000.0, 12000.0, 300.0, 500.0
+    grid = np.zeros((k.N_G, n))
+    grid[k.G_R] = np.linspace(3.5e6, 6.4e6, n)
+    grid[k.G_W] = w
+    grid[k.G_TSOL] = t_s
+    par = np.zeros(k.N_PAR)
+    par[k.P_BMO], par[k.P_BMO_DEP], par[k.P_BMO_ENRICH], par[k.P_BMO_MREF] = 1.0, dep, dfe, 5.0 * w
+    par[k.P_CORE_RADIUS] = grid[k.G_R, 0]
+    s = t_s / t_ref if scaling == "solidus" else 1.0
+    par[k.P_BMO_TREF] = t_ref if scaling == "solidus" else 0.0
+    tc = t_s - s * (dep + 0.5 * dfe)
+    assert basal_ocean(tc, grid, par)[1] == pytest.approx(0.5 * par[k.P_BMO_MREF], rel=1e-9)
+    assert basal_ocean(t_s - s * (dep + dfe) - 1.0, grid, par)[1] == 0.0
+
+
+def test_depression_reference_is_earths_cmb():
+    """With the scaling on, the depression keys hold at Earth's core-mantle boundary: the reference solidus is the
+    default curves' solidus at PREM's 135.8 GPa (Dziewonski & Anderson 1981, from memory), within 1% of the solidus
+    on a 1 M_E planet's deepest node (so Earth's ocean keeps the kelvins of the keys), and the solidus at a 10 M_E
+    planet's CMB is > 2.5x it (the depression there is that much larger; 12,705 K measured)."""
+    from meltzone import melting
+    from meltzone.evolution.boundary_layer import basal_reference_solidus
+    from meltzone.interior import build_interior
+
+    t_ref = basal_reference_solidus()
+    model = melting.get_model("peridotite-mantle")
+    one = build_interior(PlanetSpec(mass_earth=1.0))
+    ten = build_interior(PlanetSpec(mass_earth=10.0))
+    assert float(model.solidus(one.cmb_pressure)) == pytest.approx(t_ref, rel=0.01)
+    assert float(model.solidus(ten.cmb_pressure)) > 2.5 * t_ref
