@@ -30,7 +30,7 @@ def earth():
 
 @pytest.fixture(scope="module")
 def five():
-    """5 M_E to 3 Gyr at 256 and 512 mantle nodes (its basal ocean freezes at ~0.96 Gyr)."""
+    """5 M_E to 3 Gyr at 256 and 512 mantle nodes (its basal ocean freezes at ~1.77 Gyr)."""
     return {n: evolve(PlanetSpec(mass_earth=5.0, end_time_gyr=3.0, mantle_nodes=n, basal_magma_ocean="reservoir")) for n in (256, 512)}
 
 
@@ -45,7 +45,7 @@ def _lifetime(result):
 def test_reservoir_converges_with_the_mantle_nodes(five):
     """Doubling interior.mantle_nodes (256 -> 512) changes the basal ocean's largest thickness and its lifetime by
     <= 5% (the thickness is interpolated between nodes, not a node count). Tolerance 5%: asked of this model;
-    measured 0.02% and 0.04% (134.0 km, 0.96 Gyr)."""
+    measured 0.02% and 0.01% (134.0 km, 1.77 Gyr)."""
     a, b = five[256], five[512]
     assert a.history["basal_ocean_thickness"].max() > 50e3
     assert b.history["basal_ocean_thickness"].max() == pytest.approx(a.history["basal_ocean_thickness"].max(),
@@ -59,7 +59,7 @@ def test_reservoir_closes_the_energy_budget(five, earth):
     """With the basal ocean the stored heat (mantle + core + ocean) still balances the time-integrated surface
     loss net of radiogenic heating: |closure| <= 1e-10 (the project asks <= 1e-4; the energies are integrated
     and the mass handed from ocean to mantle is debited and credited in the same step, so it closes to
-    round-off: measured <= 2e-15)."""
+    round-off: measured <= 1e-13)."""
     for result in (*five.values(), earth):
         assert result.history.energy_closure <= 1e-10
 
@@ -105,7 +105,7 @@ def test_basal_layer_summary_reads_the_series(five):
 
 def test_core_times_in_the_summary(five, earth):
     """Summary keys inner_core_nucleation_yr (the inner-core-nucleated event) and core_solid_yr (the inner core
-    fills the core; None if never): the 5 M_E core nucleates within the run and freezes at ~0.88 Gyr (measured),
+    fills the core; None if never): the 5 M_E core nucleates within the run and freezes at ~0.81 Gyr (measured),
     Earth's has not frozen; when present, the nucleation precedes the freezing."""
     s5 = five[256].summary()
     assert s5["inner_core_nucleation_yr"] is not None and s5["core_solid_yr"] is not None
@@ -274,3 +274,25 @@ def test_depression_reference_is_earths_cmb():
     ten = build_interior(PlanetSpec(mass_earth=10.0))
     assert float(model.solidus(one.cmb_pressure)) == pytest.approx(t_ref, rel=0.01)
     assert float(model.solidus(ten.cmb_pressure)) > 2.5 * t_ref
+
+
+#: The reservoir's basal-ocean lifetimes at 5 and 10 M_E (defaults, 10 Gyr runs), measured on this code.
+_MEASURED_LIFETIMES = "1.77 Gyr at 5 M_E, 189 Myr at 10 M_E (0.96 Gyr and 92 Myr with constant depressions)"
+
+
+@pytest.mark.xfail(strict=True, reason="measured " + _MEASURED_LIFETIMES + ": the reservoir's heat loss at the "
+                   "start is ~1800x larger at 10 M_E than at 1 M_E for ~30x the heat to lose (the jump T_c - T_b "
+                   "10,080 K against 1,890 K, the boundary layer's viscosity 2e17 against 1.4e21 Pa s, k 46 against "
+                   "12 W/m/K); see meltzone.evolution.boundary_layer; not tuned")
+def test_basal_ocean_lives_longer_in_more_massive_planets():
+    """Published coupled core / basal-ocean / mantle models find larger, longer-lived basal magma oceans in more
+    massive planets (Lherm, Nakajima & Blackman 2026, JGR Planets 131, abstract checked: "more massive planets
+    host larger BMOs with prolonged, stronger silicate dynamos"); liquid cores, too, last longer with planet mass
+    (Zhang & Rogers 2022, ApJ, abstract checked). Checked here as the direction only: the reservoir at 10 M_E
+    lives at least as long as at 5 M_E (no tolerance)."""
+    life = {}
+    for mass in (5.0, 10.0):
+        r = evolve(PlanetSpec(mass_earth=mass, end_time_gyr=10.0, basal_magma_ocean="reservoir"))
+        life[mass] = _lifetime(r)
+    assert life[5.0] is not None
+    assert life[10.0] is None or life[10.0] >= life[5.0]
