@@ -132,6 +132,12 @@ REGISTRY = {
     "basal_ocean_melting": Citation("the basal ocean's melting curve: mantle solidus - depression - enrichment x "
                                     "(1 - M/M_ref), capped at M_ref", "melting.basal_melt_depression_k, "
                                     "basal_melt_enrichment_k, basal_ocean_reference_fraction", CHOICE),
+    "basal_depression_scaling": Citation("the basal melt's depression and enrichment proportional to the local "
+                                         "solidus (ideal-solution freezing-point depression at a fixed composition "
+                                         "and entropy of fusion; keys hold at PREM's 135.8 GPa CMB, Dziewonski & "
+                                         "Anderson 1981, PEPI 25:297)", "van 't Hoff cryoscopic relation (common "
+                                         "practice); the form T_m / (1 - ln x0) of Stixrude 2014, Phil. Trans. R. "
+                                         "Soc. A 372:20130076", MEMORY),
     "turcotte_schubert": Citation("radiogenic heat production and half-lives (Table 4.2)",
                                   "Turcotte & Schubert, Geodynamics (2nd ed. 2002, Cambridge)", CHECKED),
     "mcdonough1995": Citation("bulk-silicate-Earth U, Th, K abundances", "McDonough & Sun 1995, Chem. Geol. "
@@ -267,7 +273,8 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     keys.append("kraus2022")
     keys += surface_keys(spec)
     if spec.melting.basal_magma_ocean == "reservoir":
-        keys += ["labrosse2007", "blanc2020", "orourke2020", "basal_ocean_melting"]
+        keys += ["labrosse2007", "blanc2020", "orourke2020", "basal_ocean_melting"] + (
+            ["basal_depression_scaling"] if spec.melting.basal_melt_depression_scaling == "solidus" else [])
     if spec.volcanism.enabled == "on":
         vc = spec.volcanism
         keys += ["morschhauser2011", "kite2009", "moore2013", "crisp1984", "volatile_partition", "stixrude2009",

@@ -26,7 +26,7 @@ from typing import Any, Mapping
 from .config_key import Key
 from .config_volcanism import VOLCANISM_KEYS
 from .errors import ConfigError
-from .mantle_keys import convection_keys, initial_keys
+from .mantle_keys import basal_ocean_keys, convection_keys, initial_keys
 
 #: Mass range [Earth masses] inside which the models are calibrated; outside it a run warns.
 CALIBRATED_MASS_RANGE = (0.5, 15.0)
@@ -106,27 +106,7 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
                                                 "iron 6350 +- 600 K there (Alfe, Price & Gillan 2003, Mineral. Mag. "
                                                 "67:113; abstract checked); one constant at every pressure (this "
                                                 "model's choice)"),
-        # basal magma ocean (boundary-layer scheme; see meltzone.evolution.boundary_layer)
-        "basal_magma_ocean": Key("off", "", "basal magma ocean between core and solid mantle: 'reservoir' (a "
-                                 "well-mixed layer at the core's temperature that cools with the core; experimental: "
-                                 "its melting-curve form and parameters are this model's choice) or 'off' (the lower "
-                                 "boundary layer sits on the core)", choices=("reservoir", "off"),
-            source="Labrosse, Hernlund & Coltice 2007, Nature 450:866; parameterised after Blanc, Stegman & Ziegler "
-                   "2020, EPSL 534 and O'Rourke 2020, GRL 47 (abstracts seen; parameters from memory)"),
-        "basal_melt_depression_k": Key(300.0, "K", "lowering of the mantle solidus for the iron-enriched melt of the "
-                                       "basal magma ocean at its reference composition", lo=0.0, hi=3000.0,
-            source="this model's choice, of the order of the FeO effect on deep-mantle melting (Labrosse et al. 2007; "
-                   "Blanc et al. 2020; from memory)"),
-        "basal_melt_enrichment_k": Key(500.0, "K", "further lowering as the basal magma ocean crystallises: "
-                                       "depression + enrichment x (1 - M_b / M_ref), linear in the crystallised "
-                                       "fraction of the reference mass (FeO incompatible, concentrating in the melt)",
-                                       lo=0.0, hi=5000.0,
-            source="this model's choice (the mechanism of Labrosse et al. 2007, Nature 450:866: the melt enriches in "
-                   "FeO as it crystallises, so the layer thins as the core cools; linear form chosen here)"),
-        "basal_ocean_reference_fraction": Key(0.02, "1", "reference mass M_ref of the basal magma ocean as a "
-                                              "fraction of the mantle mass (its largest mass)", lo=1e-4, hi=0.5,
-            source="this model's choice: ~90 km for Earth, the order of ultra-low-velocity zones (tens of km); "
-                   "Labrosse et al. 2007 start from a basal layer of ~1000 km, ~1/3 of the mantle (from memory)"),
+        **basal_ocean_keys(Key),  # basal magma ocean (boundary-layer scheme)
     },
     "convection": {
         "scheme": Key("boundary-layer", "", "evolution scheme: one potential temperature with thermal boundary "

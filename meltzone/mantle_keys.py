@@ -1,5 +1,6 @@
 """Configuration keys of the boundary-layer scheme's mantle physics (lid growth, starting core temperature,
-pressure-dependent properties), kept apart from :mod:`meltzone.config` so that module stays small.
+pressure-dependent properties, the basal magma ocean), kept apart from :mod:`meltzone.config` so that module
+stays small.
 
 Each function takes the :class:`meltzone.config.Key` class (passed in, so this module imports nothing of
 config) and returns the keys of one section, in the order ``meltzone config --example`` shows them.
@@ -69,4 +70,43 @@ def initial_keys(key) -> dict:
                    "start after magma-ocean solidification with a superheated core, Noack & Lasbleis 2020, A&A "
                    "638:A129 (abstracts checked); phi_c as the stiffened base: this model's choice; see "
                    "meltzone.evolution.core_start"),
+    }
+
+
+def basal_ocean_keys(key) -> dict:
+    """Keys of [melting] for the basal magma ocean (boundary-layer scheme; see
+    :mod:`meltzone.evolution.boundary_layer`)."""
+    return {
+        "basal_magma_ocean": key("off", "", "basal magma ocean between core and solid mantle: 'reservoir' (a "
+                                 "well-mixed layer at the core's temperature that cools with the core; experimental: "
+                                 "its melting-curve form and parameters are this model's choice) or 'off' (the lower "
+                                 "boundary layer sits on the core)", choices=("reservoir", "off"),
+            source="Labrosse, Hernlund & Coltice 2007, Nature 450:866; parameterised after Blanc, Stegman & Ziegler "
+                   "2020, EPSL 534 and O'Rourke 2020, GRL 47 (abstracts seen; parameters from memory)"),
+        "basal_melt_depression_k": key(300.0, "K", "lowering of the mantle solidus for the iron-enriched melt of the "
+                                       "basal magma ocean at its reference composition (at Earth's CMB solidus "
+                                       "with basal_melt_depression_scaling = 'solidus')", lo=0.0, hi=3000.0,
+            source="this model's choice, of the order of the FeO effect on deep-mantle melting (Labrosse et al. 2007; "
+                   "Blanc et al. 2020; from memory)"),
+        "basal_melt_enrichment_k": key(500.0, "K", "further lowering as the basal magma ocean crystallises: "
+                                       "depression + enrichment x (1 - M_b / M_ref), linear in the crystallised "
+                                       "fraction of the reference mass (FeO incompatible, concentrating in the melt)",
+                                       lo=0.0, hi=5000.0,
+            source="this model's choice (the mechanism of Labrosse et al. 2007, Nature 450:866: the melt enriches in "
+                   "FeO as it crystallises, so the layer thins as the core cools; linear form chosen here)"),
+        "basal_ocean_reference_fraction": key(0.02, "1", "reference mass M_ref of the basal magma ocean as a "
+                                              "fraction of the mantle mass (its largest mass)", lo=1e-4, hi=0.5,
+            source="this model's choice: ~90 km for Earth, the order of ultra-low-velocity zones (tens of km); "
+                   "Labrosse et al. 2007 start from a basal layer of ~1000 km, ~1/3 of the mantle (from memory)"),
+        "basal_melt_depression_scaling": key("solidus", "", "how the basal melt's depression and enrichment vary "
+                                             "with depth: 'solidus' (proportional to the local mantle solidus, the "
+                                             "two keys holding where the default melting curves' solidus is that of "
+                                             "Earth's core-mantle boundary, 135.8 GPa) or 'constant' (the same "
+                                             "kelvins at every pressure, the model before this key existed)",
+                                             choices=("solidus", "constant"),
+            source="ideal-solution freezing-point depression at a fixed composition and entropy of fusion, "
+                   "proportional to the melting temperature (van 't Hoff / cryoscopic relation, common practice; "
+                   "the form T_m / (1 - ln x0) of the cryoscopic solidus of Stixrude 2014, Phil. Trans. R. Soc. A "
+                   "372:20130076, from memory); PREM's core-mantle boundary pressure 135.8 GPa (Dziewonski & "
+                   "Anderson 1981, PEPI 25:297, from memory)"),
     }

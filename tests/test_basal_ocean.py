@@ -30,7 +30,7 @@ def earth():
 
 @pytest.fixture(scope="module")
 def five():
-    """5 M_E to 3 Gyr at 256 and 512 mantle nodes (its basal ocean freezes at ~0.96 Gyr)."""
+    """5 M_E to 3 Gyr at 256 and 512 mantle nodes (its basal ocean freezes at ~1.77 Gyr)."""
     return {n: evolve(PlanetSpec(mass_earth=5.0, end_time_gyr=3.0, mantle_nodes=n, basal_magma_ocean="reservoir")) for n in (256, 512)}
 
 
@@ -45,7 +45,7 @@ def _lifetime(result):
 def test_reservoir_converges_with_the_mantle_nodes(five):
     """Doubling interior.mantle_nodes (256 -> 512) changes the basal ocean's largest thickness and its lifetime by
     <= 5% (the thickness is interpolated between nodes, not a node count). Tolerance 5%: asked of this model;
-    measured 0.02% and 0.04% (134.0 km, 0.96 Gyr)."""
+    measured 0.02% and 0.01% (134.0 km, 1.77 Gyr)."""
     a, b = five[256], five[512]
     assert a.history["basal_ocean_thickness"].max() > 50e3
     assert b.history["basal_ocean_thickness"].max() == pytest.approx(a.history["basal_ocean_thickness"].max(),
@@ -59,7 +59,7 @@ def test_reservoir_closes_the_energy_budget(five, earth):
     """With the basal ocean the stored heat (mantle + core + ocean) still balances the time-integrated surface
     loss net of radiogenic heating: |closure| <= 1e-10 (the project asks <= 1e-4; the energies are integrated
     and the mass handed from ocean to mantle is debited and credited in the same step, so it closes to
-    round-off: measured <= 2e-15)."""
+    round-off: measured <= 1e-13)."""
     for result in (*five.values(), earth):
         assert result.history.energy_closure <= 1e-10
 
@@ -105,7 +105,7 @@ def test_basal_layer_summary_reads_the_series(five):
 
 def test_core_times_in_the_summary(five, earth):
     """Summary keys inner_core_nucleation_yr (the inner-core-nucleated event) and core_solid_yr (the inner core
-    fills the core; None if never): the 5 M_E core nucleates within the run and freezes at ~0.88 Gyr (measured),
+    fills the core; None if never): the 5 M_E core nucleates within the run and freezes at ~0.81 Gyr (measured),
     Earth's has not frozen; when present, the nucleation precedes the freezing."""
     s5 = five[256].summary()
     assert s5["inner_core_nucleation_yr"] is not None and s5["core_solid_yr"] is not None
@@ -211,7 +211,8 @@ def test_ocean_melting_curve_sets_a_continuous_thickness():
     curves = melting.node_curves(melting.get_model(spec.melting.model), it.P[it.mantle])
     inputs = build_inputs(spec, it, curves)
     grid, par = inputs.grid, inputs.par
-    floor = grid[k.G_TSOL, 0] - par[k.P_BMO_DEP] - par[k.P_BMO_ENRICH]
+    scale = grid[k.G_TSOL, 0] / par[k.P_BMO_TREF]  # the depression scales with the solidus (default)
+    floor = grid[k.G_TSOL, 0] - (par[k.P_BMO_DEP] + par[k.P_BMO_ENRICH]) * scale
     assert basal_ocean(floor - 1.0, grid, par)[1] == 0.0
     tcs = np.linspace(floor + 100.0, floor + 110.0, 401)
     r_b = np.array([basal_ocean(t, grid, par)[0] for t in tcs])
@@ -230,3 +231,68 @@ def test_run_file_keeps_the_thickness_history(five, tmp_path):
     back = load(path)
     np.testing.assert_array_equal(back.history["basal_ocean_thickness"], five[256].history["basal_ocean_thickness"])
     assert back.summary()["basal_layer"] == five[256].summary()["basal_layer"]
+
+
+@pytest.mark.parametrize("scaling", ["solidus", "constant"])
+def test_depression_scales_with_the_solidus(scaling):
+    """On a synthetic mantle with one solidus T_s at every node the ocean's curve is linear in the mass below a
+    radius, so its top has a closed form (analytic solution): T_c = T_s - (dT0 + dT_fe (1 - M / M_ref)) s with
+    s = T_s / T_ref for melting.basal_melt_depression_scaling = "solidus" (ideal-solution freezing-point depression
+    proportional to the melting temperature: van 't Hoff, common practice) and s = 1 for "constant". At
+    T_s = 3 T_ref a core 3 x (dT0 + dT_fe / 2) below T_s holds half of M_ref with the scaling, and a core
+    dT0 + dT_fe / 2 below it without; tolerance 1e-9 (round-off)."""
+    from meltzone._core import layout as k
+    from meltzone._core.basal import basal_ocean
+
+    n, w, t_ref, t_s, dep, dfe = 11, 1.0e22, 4000.0, 12000.0, 300.0, 500.0
+    grid = np.zeros((k.N_G, n))
+    grid[k.G_R] = np.linspace(3.5e6, 6.4e6, n)
+    grid[k.G_W] = w
+    grid[k.G_TSOL] = t_s
+    par = np.zeros(k.N_PAR)
+    par[k.P_BMO], par[k.P_BMO_DEP], par[k.P_BMO_ENRICH], par[k.P_BMO_MREF] = 1.0, dep, dfe, 5.0 * w
+    par[k.P_CORE_RADIUS] = grid[k.G_R, 0]
+    s = t_s / t_ref if scaling == "solidus" else 1.0
+    par[k.P_BMO_TREF] = t_ref if scaling == "solidus" else 0.0
+    tc = t_s - s * (dep + 0.5 * dfe)
+    assert basal_ocean(tc, grid, par)[1] == pytest.approx(0.5 * par[k.P_BMO_MREF], rel=1e-9)
+    assert basal_ocean(t_s - s * (dep + dfe) - 1.0, grid, par)[1] == 0.0
+
+
+def test_depression_reference_is_earths_cmb():
+    """With the scaling on, the depression keys hold at Earth's core-mantle boundary: the reference solidus is the
+    default curves' solidus at PREM's 135.8 GPa (Dziewonski & Anderson 1981, from memory), within 1% of the solidus
+    on a 1 M_E planet's deepest node (so Earth's ocean keeps the kelvins of the keys), and the solidus at a 10 M_E
+    planet's CMB is > 2.5x it (the depression there is that much larger; 12,705 K measured)."""
+    from meltzone import melting
+    from meltzone.evolution.boundary_layer import basal_reference_solidus
+    from meltzone.interior import build_interior
+
+    t_ref = basal_reference_solidus()
+    model = melting.get_model("peridotite-mantle")
+    one = build_interior(PlanetSpec(mass_earth=1.0))
+    ten = build_interior(PlanetSpec(mass_earth=10.0))
+    assert float(model.solidus(one.cmb_pressure)) == pytest.approx(t_ref, rel=0.01)
+    assert float(model.solidus(ten.cmb_pressure)) > 2.5 * t_ref
+
+
+#: The reservoir's basal-ocean lifetimes at 5 and 10 M_E (defaults, 10 Gyr runs), measured on this code.
+_MEASURED_LIFETIMES = "1.77 Gyr at 5 M_E, 189 Myr at 10 M_E (0.96 Gyr and 92 Myr with constant depressions)"
+
+
+@pytest.mark.xfail(strict=True, reason="measured " + _MEASURED_LIFETIMES + ": the reservoir's heat loss at the "
+                   "start is ~1800x larger at 10 M_E than at 1 M_E for ~30x the heat to lose (the jump T_c - T_b "
+                   "10,080 K against 1,890 K, the boundary layer's viscosity 2e17 against 1.4e21 Pa s, k 46 against "
+                   "12 W/m/K); see meltzone.evolution.boundary_layer; not tuned")
+def test_basal_ocean_lives_longer_in_more_massive_planets():
+    """Published coupled core / basal-ocean / mantle models find larger, longer-lived basal magma oceans in more
+    massive planets (Lherm, Nakajima & Blackman 2026, JGR Planets 131, abstract checked: "more massive planets
+    host larger BMOs with prolonged, stronger silicate dynamos"); liquid cores, too, last longer with planet mass
+    (Zhang & Rogers 2022, ApJ, abstract checked). Checked here as the direction only: the reservoir at 10 M_E
+    lives at least as long as at 5 M_E (no tolerance)."""
+    life = {}
+    for mass in (5.0, 10.0):
+        r = evolve(PlanetSpec(mass_earth=mass, end_time_gyr=10.0, basal_magma_ocean="reservoir"))
+        life[mass] = _lifetime(r)
+    assert life[5.0] is not None
+    assert life[10.0] is None or life[10.0] >= life[5.0]

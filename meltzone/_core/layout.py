@@ -113,6 +113,11 @@ RA_VISC_SURFACE, RA_VISC_TOP, RA_VISC_MID = range(3)
 # crust's heat sources; bulk solid/melt partition coefficient of the heat-producing elements
 PARAMETERS += ("vent_solubility", "melt_depletion", "crust_heat_sources", "heat_source_partition")
 P_VENT, P_DEPLETE, P_CRUST_HEAT, P_D_HPE = range(N_PAR, N_PAR := len(PARAMETERS))
+# basal magma ocean, continued: the solidus [K] at which its depression and enrichment hold (they scale with the
+# local solidus, basal.py); 0 keeps them constant (melting.basal_melt_depression_scaling = "constant", and files
+# written before this parameter existed)
+PARAMETERS += ("basal_depression_reference_solidus",)
+P_BMO_TREF, = range(N_PAR, N_PAR := len(PARAMETERS))
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",

@@ -79,7 +79,11 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   Its top r_b is where T_c meets its melting curve, the mantle solidus on the nodes lowered by
   dT0 + dT_fe (1 - M/M_ref) (M the mantle mass below the radius, linear between nodes, so the thickness is not
   a node count; dT0 = ``basal_melt_depression_k``, dT_fe = ``basal_melt_enrichment_k``, M_ref =
-  ``basal_ocean_reference_fraction`` x mantle mass; capped at M_ref). The enrichment term is this model's
+  ``basal_ocean_reference_fraction`` x mantle mass; capped at M_ref). With ``basal_melt_depression_scaling =
+  "solidus"`` (the default) both terms are multiplied by T_sol / T_ref, T_ref the solidus at Earth's CMB (4158 K,
+  :func:`basal_reference_solidus`): a freezing-point depression at fixed composition is proportional to the
+  melting temperature (ideal solution, common practice), where one constant in kelvin carried Earth's value
+  unchanged to the ~3x hotter solidus of a 10 M_E CMB. The enrichment term is this model's
   choice: an isothermal layer under a solidus that falls upward is above it everywhere, so the layer would have
   no top; the FeO the crystals reject (Labrosse et al. 2007) lowers the melt's melting point as the layer
   shrinks, which gives it one and makes it thin as the core cools. The core and the ocean are one reservoir
@@ -92,14 +96,19 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   are at T_c with the mantle's melt law of T_c (that law does not know the enrichment). ``"off"`` (the default)
   gives the scheme without it (the lower boundary layer on the core). Off by default: its melting-curve form
   and its three parameters are this model's choice; at 0.5-2 M_E it stays at its cap for > 10 Gyr while the
-  mixing-length scheme's basal layer ends at 1.1-1.6 Gyr; and it moves Earth's inner core further from PREM
-  (2367 against 2226 km without it, measured). Its lifetime falls with planet mass (0.96 Gyr at 5 M_E, 92 Myr at
-  10), as the mixing-length scheme's does, against the published rise (Lherm, Nakajima & Blackman 2026, JGR
-  Planets 131; abstract checked): with a constant activation volume both schemes keep it > 10 Gyr at 5-10 M_E, so
-  the fall comes from the deep mantle's viscosity law (``convection.activation_volume_decay_pa``), not the
-  reservoir nor the core's start (the adiabat rule's 10,273 K at 5 M_E: 0.98 Gyr); at P_d = 260 GPa, where the
-  deepest viscosity of a 10 M_E adiabat reaches Tackley et al. 2013's 1e30 Pa s, it still falls (3.3 Gyr, 0.28
-  Gyr and 61 Myr at 5, 10 and 15 M_E);
+  mixing-length scheme's basal layer ends at 1.0-1.6 Gyr; and it moves Earth's inner core further from PREM
+  (2367 against 2226 km without it, measured). Its lifetime falls with planet mass above 2 M_E (1.77 Gyr at
+  5 M_E, 189 Myr at 10, 53 Myr at 15; 0.96 Gyr, 92 and 24 Myr with constant depressions), as the
+  mixing-length scheme's does, against the published rise (Lherm, Nakajima & Blackman 2026, JGR Planets 131;
+  abstract checked). Measured cause: the reservoir's heat loss, ~1800x larger at 10 M_E than at 1 M_E at the
+  start (5.3e16 against 3.0e13 W) for ~30x the heat to lose (core c_p x the cooling to the ocean's end). Its
+  factors: the jump T_c - T_b (10,080 against 1,890 K: T_c starts near the mantle's melting range at the CMB,
+  which rises 3x from 1 to 10 M_E, while the solid adiabat from T_u ~ 1660 K reaches only 3990 K there), the
+  boundary layer's viscosity at its mean temperature (2e17 against 1.4e21 Pa s; H / (R T) = 15 against 24) and
+  the density-dependent conductivity (k = 46 against 12 W/m/K). With a constant activation volume both schemes
+  keep it > 10 Gyr at 5-15 M_E; at P_d = 260 GPa it lives 6.5 Gyr, 0.64 Gyr and 0.15 Gyr at 5, 10 and 15 M_E;
+  with constant mantle properties 4.8, 0.67 and 0.23 Gyr; the core's start rule does not matter (the adiabat
+  rule: 1.79 Gyr at 5 M_E);
 * energy: the stored heat (sensible heat on the adiabat, latent heat of the
   melt, the lid's conductive profile, core sensible heat less the inner core's
   latent and gravitational energy) is one function of (T_u, lid) for the mantle
@@ -207,6 +216,19 @@ def inner_core_heat_row(enclosed_mass, melting_k, latent_ref, gravitational, mel
     return np.concatenate([[0.0], np.cumsum(np.diff(m) * per_kg)])
 
 
+#: Pressure [Pa] at which the basal melt's depression keys hold with melting.basal_melt_depression_scaling =
+#: "solidus": Earth's core-mantle boundary, 135.8 GPa (PREM, Dziewonski & Anderson 1981, PEPI 25:297; from memory).
+BASAL_DEPRESSION_REFERENCE_PA = 135.8e9
+
+
+def basal_reference_solidus() -> float:
+    """The solidus [K] at which the basal melt's depression and enrichment keys hold (``P_BMO_TREF``): the default
+    melting curves' solidus at :data:`BASAL_DEPRESSION_REFERENCE_PA` (4158 K; the same for every built-in model
+    that reaches that pressure, so one value whatever the run's curves)."""
+    from ..melting import get_model
+    return float(get_model("peridotite-mantle").solidus(BASAL_DEPRESSION_REFERENCE_PA))
+
+
 def build_inputs(spec, interior, curves):
     """The core's inputs (:class:`~meltzone._core.layout.KernelInputs`) for a spec, its interior and the
     melting curves on the mantle nodes (:func:`meltzone.melting.node_curves`)."""
@@ -296,6 +318,7 @@ def build_inputs(spec, interior, curves):
     par[k.P_BMO_DEP] = mt.basal_melt_depression_k
     par[k.P_BMO_ENRICH] = mt.basal_melt_enrichment_k
     par[k.P_BMO_MREF] = mt.basal_ocean_reference_fraction * it.mantle_mass
+    par[k.P_BMO_TREF] = basal_reference_solidus() if mt.basal_melt_depression_scaling == "solidus" else 0.0
     fill_parameters(spec, it, par)  # star, steam atmosphere, water, escape (meltzone.star)
     vc = spec.volcanism
     par[k.P_VOLC] = 1.0 if vc.enabled == "on" else 0.0
