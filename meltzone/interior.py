@@ -29,7 +29,7 @@ equations of state are measured to ~0.15 TPa (silicates) and the iron curve to
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 from scipy.optimize import brentq
@@ -52,7 +52,8 @@ class Interior:
     ``rho`` [kg/m^3], ``g`` [m/s^2], ``phase`` (index into
     :data:`meltzone.phases.MANTLE_PHASES`, -1 in the core), ``T_ref`` [K] on the
     reference adiabat, ``adiabat`` f(r) = T_adiabat/T_top in the mantle and
-    T/T_cmb in the core. Nodes ``0 .. cmb_index-1`` are the core; the mantle
+    T/T_cmb in the core (from :func:`build_interior`: liquid iron's isentrope, see
+    :func:`with_liquid_core_adiabat`; from :func:`solve_structure`: the structure's own core temperature). Nodes ``0 .. cmb_index-1`` are the core; the mantle
     starts at ``cmb_index`` (the CMB radius appears once on each side).
     """
 
@@ -325,9 +326,31 @@ def build_interior(spec: PlanetSpec | dict | str | None = None, *, check_melting
         mantle_nodes=spec.interior.mantle_nodes,
         core_nodes=spec.interior.core_nodes,
     )
+    interior = with_liquid_core_adiabat(interior, spec.melting.core_melting_depression_k)
     if check_melting:
         check_melting_range(spec, interior)
     return interior
+
+
+def with_liquid_core_adiabat(interior: Interior, depression_k: float) -> Interior:
+    """The interior with the core's thermal profile (``adiabat`` on the core nodes, T / T_cmb) replaced by
+    liquid iron's isentrope through the core's pressures (:mod:`meltzone.liquid_iron`: why the liquid, and why only
+    the profile). The isentrope is anchored at the alloy's melting temperature at the CMB (the coolest liquid
+    core; :func:`meltzone.iron.iron_melting_temperature` with the spec's depression): its shape moves by < 0.1%
+    between anchors 3500 and 4500 K at Earth's CMB (measured). ``T_ref`` stays the structure's integration
+    temperature. Unchanged without a core or without a mantle above it."""
+    from .iron import iron_melting_temperature
+    from .liquid_iron import core_adiabat
+
+    nc = interior.cmb_index
+    if nc < 2 or nc >= len(interior.r):
+        return interior
+    p_core = interior.P[:nc]
+    p_cmb = float(p_core[-1])
+    f = core_adiabat(p_core, p_cmb, float(iron_melting_temperature(p_cmb, depression_k)))
+    adiabat = interior.adiabat.copy()
+    adiabat[:nc] = f
+    return replace(interior, adiabat=adiabat)
 
 
 def check_melting_range(spec: PlanetSpec, interior: Interior) -> None:
