@@ -12,7 +12,7 @@ State integrated inward from the surface, y = (m, P, T, I):
 * dT/dr = gamma T / K_S dP/dr                    (adiabat: d ln T / d ln rho = gamma, with the adiabatic
                                                   K_S = K_T + gamma^2 rho c_v T of the Mie-Grueneisen form;
                                                   the isothermal K_T stood in for it before, which made the
-                                                  mantle adiabat rise ~3% too steeply in ln T)
+                                                  mantle adiabat rise 3-8% too steeply in ln T per phase)
 * dI/dr = (8 pi / 3) rho r^4                     (moment of inertia)
 """
 
