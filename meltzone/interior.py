@@ -306,11 +306,14 @@ def _nodes_from_path(path, mass, core_mass, p_surface, t_ref, mantle_nodes, core
 
 
 def build_interior(spec: PlanetSpec | dict | str | None = None, *, check_melting: bool = True,
-                   **kwargs) -> Interior:
+                   core_profile: bool = True, **kwargs) -> Interior:
     """Interior of the planet described by ``spec`` (PlanetSpec, mapping, TOML path or flat kwargs).
 
     With ``check_melting`` (the default) the spec's melting model must cover every mantle pressure
-    (:func:`check_melting_range`), so that an evolution of this planet can evaluate its curves.
+    (:func:`check_melting_range`), so that an evolution of this planet can evaluate its curves. With
+    ``core_profile`` (the default) the core's thermal profile is liquid iron's isentrope
+    (:func:`with_liquid_core_adiabat`, ~60 ms); without it the structure's own (for callers that need the
+    structure only, such as :func:`infer_core_fraction`).
     """
     spec = as_spec(spec, **kwargs)
     mass = spec.planet.mass_earth * EARTH_MASS
@@ -326,7 +329,8 @@ def build_interior(spec: PlanetSpec | dict | str | None = None, *, check_melting
         mantle_nodes=spec.interior.mantle_nodes,
         core_nodes=spec.interior.core_nodes,
     )
-    interior = with_liquid_core_adiabat(interior, spec.melting.core_melting_depression_k)
+    if core_profile:
+        interior = with_liquid_core_adiabat(interior, spec.melting.core_melting_depression_k)
     if check_melting:
         check_melting_range(spec, interior)
     return interior
@@ -437,7 +441,8 @@ def infer_core_fraction(mass_earth: float, radius_earth: float, **spec_overrides
         first = None
         for n_steps in dict.fromkeys((steps, max(steps, 1500), 2 * max(steps, 1500) + 7)):
             try:
-                it = build_interior(base.replace(core_mass_fraction=float(cmf), integration_steps=n_steps))
+                it = build_interior(base.replace(core_mass_fraction=float(cmf), integration_steps=n_steps),
+                                    core_profile=False)  # the radius only
             except ConfigError:
                 raise
             except (ValueError, ArithmeticError, ConvergenceError) as exc:
