@@ -38,7 +38,7 @@ from . import phases
 from .config import PlanetSpec, as_spec
 from .constants import EARTH_MASS, EARTH_RADIUS, GPA, G
 from .eos import IRON, Material, mantle_materials
-from .errors import ConfigError, ConvergenceError
+from .errors import ConfigError, ConvergenceError, ModelError
 
 #: Relative tolerance on the planet mass at convergence.
 MASS_TOLERANCE = 1e-10
@@ -342,7 +342,9 @@ def with_liquid_core_adiabat(interior: Interior, depression_k: float) -> Interio
     the profile). The isentrope is anchored at the alloy's melting temperature at the CMB (the coolest liquid
     core; :func:`meltzone.iron.iron_melting_temperature` with the spec's depression): its shape moves by < 0.1%
     between anchors 3500 and 4500 K at Earth's CMB (measured). ``T_ref`` stays the structure's integration
-    temperature. Unchanged without a core or without a mantle above it."""
+    temperature. Unchanged without a core or without a mantle above it. Where the depression leaves no positive
+    melting temperature at the CMB (a shallow CMB with ``melting.core_melting_depression_k`` near its 3000 K
+    limit) the anchor is pure iron's melting point; the evolution then refuses the curve with its own error."""
     from .iron import iron_melting_temperature
     from .liquid_iron import core_adiabat
 
@@ -351,7 +353,11 @@ def with_liquid_core_adiabat(interior: Interior, depression_k: float) -> Interio
         return interior
     p_core = interior.P[:nc]
     p_cmb = float(p_core[-1])
-    f = core_adiabat(p_core, p_cmb, float(iron_melting_temperature(p_cmb, depression_k)))
+    try:
+        anchor = float(iron_melting_temperature(p_cmb, depression_k))
+    except ModelError:  # a depression beyond the curve at a shallow CMB: pure iron's melting point instead
+        anchor = float(iron_melting_temperature(p_cmb, 0.0))
+    f = core_adiabat(p_core, p_cmb, anchor)
     adiabat = interior.adiabat.copy()
     adiabat[:nc] = f
     return replace(interior, adiabat=adiabat)

@@ -89,3 +89,16 @@ def test_bad_state_raises():
     """A pressure below the isentrope's top is refused (it is integrated downwards only)."""
     with pytest.raises(meltzone.errors.ModelError):
         li.isentrope(200.0 * GPA, 4000.0, [100.0 * GPA])
+
+
+def test_core_profile_survives_a_depression_beyond_the_curve():
+    """A shallow CMB (0.5 M_E, core fraction 0.95) with the largest allowed depression (3000 K) leaves the alloy's
+    curve non-positive at the CMB; the profile is then anchored at pure iron's melting point and stays finite
+    and rising with depth (the evolution refuses that curve with its own error)."""
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", UserWarning)
+        it = meltzone.build_interior(mass_earth=0.5, core_mass_fraction=0.95, core_melting_depression_k=3000.0)
+    f = it.adiabat[it.core]
+    assert np.all(np.isfinite(f)) and f[-1] == 1.0 and np.all(np.diff(f) < 0.0)
