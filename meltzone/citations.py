@@ -134,6 +134,10 @@ REGISTRY = {
     "kuwayama2020": Citation("Earth's outer core 7.5-7.6% less dense than liquid iron, almost identical K_S (the "
                              "check of the liquid-iron isentrope against PREM)",
                              "Kuwayama et al. 2020, PRL 124:165701 (abstract)", CHECKED),
+    "katsura2022": Citation("the check of the mantle's reference adiabat: 1646 +- 35 K at 50 km and 2587 +- 60 K at "
+                            "2800 km depth (tests/test_interior.py)",
+                            "Katsura 2022, JGR Solid Earth, \"A revised adiabatic temperature profile for the mantle\" "
+                            "(abstract)", CHECKED),
     # basal magma ocean (boundary-layer scheme)
     "labrosse2007": Citation("basal magma ocean: a well-mixed, iron-enriched melt layer on the core that crystallises "
                              "from its top as the core cools", "Labrosse, Hernlund & Coltice 2007, Nature 450:866",
