@@ -122,6 +122,22 @@ REGISTRY = {
     "alfe2003": Citation("light-element depression of the core's melting curve (~-700 K at the ICB; pure iron "
                          "6350 +- 600 K there)", "Alfe, Price & Gillan 2003, Mineral. Mag. 67:113 (abstract)",
                          CHECKED),
+    "anderson_ahrens1994": Citation("liquid iron's equation of state for the core's thermal profile (isentrope): "
+                                    "rho0 7019 kg/m^3 at 1 bar / 1811 K, K_S0 109.7 GPa, K_S0' 4.66, K_S0'' -0.043 "
+                                    "/GPa, gamma = 1.735 - 0.130 kg/MJ (rho/rho0)^-1.87 (E - E0), c_v 4.0-4.5 R "
+                                    "(abstract checked; the fourth-order Birch-Murnaghan form from memory)",
+                                    "Anderson & Ahrens 1994, JGR 99:4273", CHECKED),
+    "liquid_core_profile": Citation("the core's thermal profile along liquid iron's isentrope through the fixed "
+                                    "epsilon-iron structure's pressures, anchored at the alloy's melting point at "
+                                    "the CMB; P off the reference isentrope from gamma = V (dP/dE)_V",
+                                    "meltzone.liquid_iron", CHOICE),
+    "kuwayama2020": Citation("Earth's outer core 7.5-7.6% less dense than liquid iron, almost identical K_S (the "
+                             "check of the liquid-iron isentrope against PREM)",
+                             "Kuwayama et al. 2020, PRL 124:165701 (abstract)", CHECKED),
+    "katsura2022": Citation("the check of the mantle's reference adiabat: 1646 +- 35 K at 50 km and 2587 +- 60 K at "
+                            "2800 km depth (tests/test_interior.py)",
+                            "Katsura 2022, JGR Solid Earth, \"A revised adiabatic temperature profile for the mantle\" "
+                            "(abstract)", CHECKED),
     # basal magma ocean (boundary-layer scheme)
     "labrosse2007": Citation("basal magma ocean: a well-mixed, iron-enriched melt layer on the core that crystallises "
                              "from its top as the core cools", "Labrosse, Hernlund & Coltice 2007, Nature 450:866",
@@ -291,8 +307,10 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
 
 
 def _core_keys(spec) -> list[str]:
-    """Keys of the inner core's gravitational energy (from the structure when core.gravitational_energy = 0)."""
-    return ["braginsky1995", "nakagawa2020"] if spec.core.gravitational_energy == 0.0 else []
+    """Keys of the core's thermal profile (liquid iron's isentrope) and of the inner core's gravitational energy
+    (from the structure when core.gravitational_energy = 0)."""
+    profile = ["anderson_ahrens1994", "liquid_core_profile"]
+    return profile + (["braginsky1995", "nakagawa2020"] if spec.core.gravitational_energy == 0.0 else [])
 
 
 def _start_keys(spec) -> list[str]:

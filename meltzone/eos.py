@@ -81,7 +81,8 @@ class Material:
 #: (Seager et al. 2007, ApJ 669:1279, Table 1, after Anderson et al. 2001).
 #: Valid to the ~0.3 TPa of the experiments it fits; used beyond that as the
 #: usual extrapolation of mass-radius studies. Core Grueneisen parameter 1.5,
-#: constant (Labrosse 2015, Phys. Earth Planet. Inter. 247:36).
+#: constant (Labrosse 2015, Phys. Earth Planet. Inter. 247:36). This is the structure's core; the core's
+#: thermal profile that the evolution reads is liquid iron's isentrope (:mod:`meltzone.liquid_iron`).
 IRON = Material("epsilon-iron", FORM_VINET, 8300.0, 156.2 * GPA, 6.08, 1.5, 0.0,
                 "Seager et al. 2007, ApJ 669:1279 (Vinet fit of Anderson et al. 2001); gamma: Labrosse 2015, PEPI 247:36",
                 cv=3.0 * GAS_CONSTANT / MOLAR_MASS_FE)

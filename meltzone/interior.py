@@ -29,7 +29,7 @@ equations of state are measured to ~0.15 TPa (silicates) and the iron curve to
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 from scipy.optimize import brentq
@@ -38,7 +38,7 @@ from . import phases
 from .config import PlanetSpec, as_spec
 from .constants import EARTH_MASS, EARTH_RADIUS, GPA, G
 from .eos import IRON, Material, mantle_materials
-from .errors import ConfigError, ConvergenceError
+from .errors import ConfigError, ConvergenceError, ModelError
 
 #: Relative tolerance on the planet mass at convergence.
 MASS_TOLERANCE = 1e-10
@@ -52,7 +52,8 @@ class Interior:
     ``rho`` [kg/m^3], ``g`` [m/s^2], ``phase`` (index into
     :data:`meltzone.phases.MANTLE_PHASES`, -1 in the core), ``T_ref`` [K] on the
     reference adiabat, ``adiabat`` f(r) = T_adiabat/T_top in the mantle and
-    T/T_cmb in the core. Nodes ``0 .. cmb_index-1`` are the core; the mantle
+    T/T_cmb in the core (from :func:`build_interior`: liquid iron's isentrope, see
+    :func:`with_liquid_core_adiabat`; from :func:`solve_structure`: the structure's own core temperature). Nodes ``0 .. cmb_index-1`` are the core; the mantle
     starts at ``cmb_index`` (the CMB radius appears once on each side).
     """
 
@@ -305,11 +306,14 @@ def _nodes_from_path(path, mass, core_mass, p_surface, t_ref, mantle_nodes, core
 
 
 def build_interior(spec: PlanetSpec | dict | str | None = None, *, check_melting: bool = True,
-                   **kwargs) -> Interior:
+                   core_profile: bool = True, **kwargs) -> Interior:
     """Interior of the planet described by ``spec`` (PlanetSpec, mapping, TOML path or flat kwargs).
 
     With ``check_melting`` (the default) the spec's melting model must cover every mantle pressure
-    (:func:`check_melting_range`), so that an evolution of this planet can evaluate its curves.
+    (:func:`check_melting_range`), so that an evolution of this planet can evaluate its curves. With
+    ``core_profile`` (the default) the core's thermal profile is liquid iron's isentrope
+    (:func:`with_liquid_core_adiabat`, ~60 ms); without it the structure's own (for callers that need the
+    structure only, such as :func:`infer_core_fraction`).
     """
     spec = as_spec(spec, **kwargs)
     mass = spec.planet.mass_earth * EARTH_MASS
@@ -325,9 +329,38 @@ def build_interior(spec: PlanetSpec | dict | str | None = None, *, check_melting
         mantle_nodes=spec.interior.mantle_nodes,
         core_nodes=spec.interior.core_nodes,
     )
+    if core_profile:
+        interior = with_liquid_core_adiabat(interior, spec.melting.core_melting_depression_k)
     if check_melting:
         check_melting_range(spec, interior)
     return interior
+
+
+def with_liquid_core_adiabat(interior: Interior, depression_k: float) -> Interior:
+    """The interior with the core's thermal profile (``adiabat`` on the core nodes, T / T_cmb) replaced by
+    liquid iron's isentrope through the core's pressures (:mod:`meltzone.liquid_iron`: why the liquid, and why only
+    the profile). The isentrope is anchored at the alloy's melting temperature at the CMB (the coolest liquid
+    core; :func:`meltzone.iron.iron_melting_temperature` with the spec's depression): its shape moves by < 0.1%
+    between anchors 3500 and 4500 K at Earth's CMB (measured). ``T_ref`` stays the structure's integration
+    temperature. Unchanged without a core or without a mantle above it. Where the depression leaves no positive
+    melting temperature at the CMB (a shallow CMB with ``melting.core_melting_depression_k`` near its 3000 K
+    limit) the anchor is pure iron's melting point; the evolution then refuses the curve with its own error."""
+    from .iron import iron_melting_temperature
+    from .liquid_iron import core_adiabat
+
+    nc = interior.cmb_index
+    if nc < 2 or nc >= len(interior.r):
+        return interior
+    p_core = interior.P[:nc]
+    p_cmb = float(p_core[-1])
+    try:
+        anchor = float(iron_melting_temperature(p_cmb, depression_k))
+    except ModelError:  # a depression beyond the curve at a shallow CMB: pure iron's melting point instead
+        anchor = float(iron_melting_temperature(p_cmb, 0.0))
+    f = core_adiabat(p_core, p_cmb, anchor)
+    adiabat = interior.adiabat.copy()
+    adiabat[:nc] = f
+    return replace(interior, adiabat=adiabat)
 
 
 def check_melting_range(spec: PlanetSpec, interior: Interior) -> None:
@@ -414,7 +447,8 @@ def infer_core_fraction(mass_earth: float, radius_earth: float, **spec_overrides
         first = None
         for n_steps in dict.fromkeys((steps, max(steps, 1500), 2 * max(steps, 1500) + 7)):
             try:
-                it = build_interior(base.replace(core_mass_fraction=float(cmf), integration_steps=n_steps))
+                it = build_interior(base.replace(core_mass_fraction=float(cmf), integration_steps=n_steps),
+                                    core_profile=False)  # the radius only
             except ConfigError:
                 raise
             except (ValueError, ArithmeticError, ConvergenceError) as exc:
