@@ -41,7 +41,7 @@ from __future__ import annotations
 
 from ._jit import njit
 from ..constants import YEAR
-from .layout import P_CM, P_LID_LAW, P_LID_MIN, P_RHO_TOP, P_T_EQ
+from .layout import P_CM, P_KAPPA, P_LID_LAW, P_LID_MIN, P_RHO_TOP, P_T_EQ
 
 #: Time [s] in which the floor's rate scale r_w = D_min / LID_FLOOR_TIME grows the lid by D_min: growing rates
 #: below r_w are slowed near the floor (1 Myr, this model's choice; :func:`floored_rate`)
@@ -82,4 +82,4 @@ def floored_rate(rate, d, par):
     if x >= 1.0:
         return rate
     s_d = smoothstep(x)
-    return rate * (s_d + (1.0 - s_d) * smoothstep(rate * LID_FLOOR_TIME / par[P_LID_MIN]))
+    return rate * (s_d + (1.0 - s_d) * smoothstep(rate * par[P_LID_MIN] / par[P_KAPPA]))
