@@ -71,8 +71,6 @@ KATZ_BETA1, KATZ_BETA2 = 1.5, 1.5
 #: Thickness [m] of the stagnant lid at the start and below which it is not resolved (the model's choice, stated
 #: in the docstring of meltzone.evolution.evolve's inputs).
 LID_MIN = 1.0e3
-#: Time in which the floor's rate scale grows the lid by LID_MIN (1 Myr, the model's choice)
-LID_FLOOR_TIME = 1.0e6 * YEAR
 #: Time scale [s] over which a lid thins back to LID_MIN where the top is molten (1 kyr, the model's choice).
 LID_RELAX = 1.0e3 * YEAR
 #: Largest exponent of a viscosity (keeps exp finite).
@@ -365,14 +363,15 @@ def radiogenic_power(t, ph):
                                 for h, lam in zip(ph.isotope_heat, ph.isotope_decay))
 
 
-def lid_floor(rate, d):
+def lid_floor(rate, d, kappa):
     """The lid thins no further than LID_MIN: below 2 LID_MIN the rate r is scaled by s + (1 - s) smoothstep(r /
-    r_w), s = smoothstep((d - LID_MIN) / LID_MIN), r_w = LID_MIN / LID_FLOOR_TIME (a thinning rate by s, a growing
-    one below r_w less; smooth in d and in r; the model's choice, meltzone._core.lid)."""
+    r_w), s = smoothstep((d - LID_MIN) / LID_MIN), r_w = kappa / LID_MIN, a lid of LID_MIN growing by its thickness
+    in its conductive time (a thinning rate by s, a growing one below r_w less; smooth in d and in r; the model's
+    choice, meltzone._core.lid)."""
     if d >= 2.0 * LID_MIN:
         return rate
     s = smoothstep((d - LID_MIN) / LID_MIN)
-    return rate * (s + (1.0 - s) * smoothstep(rate / (LID_MIN / LID_FLOOR_TIME)))
+    return rate * (s + (1.0 - s) * smoothstep(rate * LID_MIN / kappa))
 
 
 def lid_base_temperature(tu, ph):
@@ -611,7 +610,7 @@ class ReferenceModel:
             surface_heat_flow=qs * 4.0 * math.pi * ph.radius ** 2,
             cmb_heat_flow=q_cmb * 4.0 * math.pi * ph.core_radius ** 2,
             radiogenic_power=radiogenic_power(t, ph),
-            lid_rate=lid_floor(d_rate, d) if ph.stagnant_lid else 0.0,
+            lid_rate=lid_floor(d_rate, d, ph.diffusivity) if ph.stagnant_lid else 0.0,
             phi_top=phi_top, phi_surface=phi_surf, magma_ocean=magma,
             regime=0 if magma else (2 if ph.stagnant_lid else 1),
             atmosphere_h2o=m_h2o, atmosphere_co2=m_co2,

@@ -25,10 +25,18 @@ For a lid on a non-convecting mantle (q_u = 0) they give D^2 = 2 kappa t St_eff 
 The lid never thins below its minimum thickness P_LID_MIN (the one the scheme resolves, and starts from): within
 D_min of the floor a thinning rate is scaled by s_D = smoothstep((D - D_min) / D_min), so that D approaches D_min
 without crossing it and the rate stays continuous in D (:func:`floored_rate`; this model's choice, width D_min).
-A growing rate r is scaled by s_D + (1 - s_D) smoothstep(r / r_w), r_w = D_min / LID_FLOOR_TIME: the floored
+A growing rate r is scaled by s_D + (1 - s_D) smoothstep(r / r_w), r_w = kappa / D_min: the floored
 rate is then C1 in the rate too (slope s_D on both sides of r = 0), stays 0 at r = 0 (no spurious growth) and is
 r itself for r >= r_w and for D >= 2 D_min (this model's choice; a growing rate left unscaled made the slope
-jump from s_D to 1 where the lid law's rate changes sign with the lid at its floor). Whatever follows the lid
+jump from s_D to 1 where the lid law's rate changes sign with the lid at its floor). r_w is the rate at which
+a lid of D_min grows by its own thickness in its conductive time D_min^2 / kappa (32 kyr at 1 km), the scale of
+the law's rates there (~k dT / (D_min rho c dT_u) ~ 2e-8 m/s): with r_w = D_min / 1 Myr, 30 times smaller, the
+floored rate turned over within ~0.01 K of T_u where the lid sits near its floor while the top blends into the
+magma-ocean law (the lid law against the relaxation to D_min): the Rosenbrock Jacobian's difference in the
+mantle's energy (~0.01 K) misjudged the lid's row by a factor 4, Rodas3's error estimate grew as h^2 and held the
+steps at ~1 kyr (measured: 8 and 12 M_E stagnant-lid planets, 75,000 and 58,000 steps to 4.5 Gyr, 2,600 and
+2,400 with kappa / D_min; the results within 1e-6).
+Whatever follows the lid
 (the crust's base in meltzone._core.volcanism) takes this floored rate, not the law's: at the floor the law's
 rate is the thinning the floor holds back. Before the floor, a lid whose
 convecting mantle delivered more heat than it conducted (q_u > q_lid, e.g. a mantle held warm by a bright
@@ -40,13 +48,7 @@ to a positive thickness while the physics asked it to grow.
 from __future__ import annotations
 
 from ._jit import njit
-from ..constants import YEAR
-from .layout import P_CM, P_LID_LAW, P_LID_MIN, P_RHO_TOP, P_T_EQ
-
-#: Time [s] in which the floor's rate scale r_w = D_min / LID_FLOOR_TIME grows the lid by D_min: growing rates
-#: below r_w are slowed near the floor (1 Myr, this model's choice; :func:`floored_rate`)
-LID_FLOOR_TIME = 1.0e6 * YEAR
-
+from .layout import P_CM, P_KAPPA, P_LID_LAW, P_LID_MIN, P_RHO_TOP, P_T_EQ
 
 @njit
 def lid_heat_temperature(tl, par):
@@ -76,10 +78,10 @@ def smoothstep(x):
 @njit
 def floored_rate(rate, d, par):
     """dD/dt [m/s] with the floor of the module: ``rate`` times s_D + (1 - s_D) smoothstep(rate / r_w), s_D =
-    smoothstep((D - D_min) / D_min), r_w = D_min / LID_FLOOR_TIME; ``rate`` itself for D >= 2 D_min. A thinning
+    smoothstep((D - D_min) / D_min), r_w = kappa / D_min; ``rate`` itself for D >= 2 D_min. A thinning
     rate is scaled by s_D (0 at and below D_min), a growing one above r_w is unchanged."""
     x = (d - par[P_LID_MIN]) / par[P_LID_MIN]
     if x >= 1.0:
         return rate
     s_d = smoothstep(x)
-    return rate * (s_d + (1.0 - s_d) * smoothstep(rate * LID_FLOOR_TIME / par[P_LID_MIN]))
+    return rate * (s_d + (1.0 - s_d) * smoothstep(rate * par[P_LID_MIN] / par[P_KAPPA]))

@@ -53,15 +53,20 @@ def convective_velocity(d, delta, par):
 
 
 @njit
-def volcanism(tu, y, diag, grid, par, law):
+def volcanism(tu, y, diag, grid, par, law, solidified=True):
     """Melt extraction and its consequences at upper-mantle potential temperature ``tu`` and state ``y``,
-    after :func:`meltzone._core.physics.diagnose` has filled ``diag``; fills D_MPROD (melt mass extracted
+    after :func:`meltzone._core.physics.diagnose` has filled ``diag`` (``solidified``: the time is at or after
+    the rheological switch); fills D_MPROD (melt mass extracted
     [kg/s]), D_QVOLC (heat the erupted melt carries to the surface [W]), D_DCRUST (crust growth [m/s]),
     D_XH2O and D_XCO2 (H2O and CO2 the melt takes out of the mantle [kg/s]) and D_UCONV (convective
     velocity [m/s]). No extraction in the magma-ocean regime (the ocean is its own melt; in the blend across the
     rheological transition the regime is the magma ocean's and so is the upper boundary layer): there only the
     crust's heat (all of it at the surface) and its return with the thinning lid; all zero with volcanism off.
-    Production starts at the rheological switch, where the integrator lands a step.
+    Production starts at the rheological switch, where the integrator lands a step: before it (``solidified``
+    False) every state counts as the magma ocean's, also a stage of a step that dips below phi_c while the step
+    ends above it (the loop lands the first crossing). Extraction switched on at full strength in such a stage
+    (the top's melt fraction is phi_c there) and off in the others, and the Dormand-Prince weights, one of them
+    negative, left a 12 M_E stagnant-lid planet with a crust of -6 m and -6e15 kg of outgassed water (measured).
 
     * Melt zone (nodes from the surface down, to the deepest pressure melt rises from, P_P_EXTRACT: deeper
       melt is denser than its residue, Stixrude et al. 2009, EPSL 278:226; Kite et al. 2009, ApJ 700:1732;
@@ -134,7 +139,7 @@ def volcanism(tu, y, diag, grid, par, law):
         diag[j] = 0.0
     if par[P_VOLC] < 0.5:
         return
-    magma = diag[D_REGIME] == REGIME_MAGMA_OCEAN
+    magma = diag[D_REGIME] == REGIME_MAGMA_OCEAN or not solidified
     stagnant = par[P_STAGNANT] > 0.5
     r_p = par[P_RADIUS]
     depth = r_p - par[P_CORE_RADIUS]
@@ -305,7 +310,7 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     minimum: :func:`meltzone._core.lid.floored_rate`), plus the crust,
     the extracted and outgassed volatiles and the crust's share of the heat sources."""
     energy_rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy)
-    volcanism(work[0], y, diag, grid, par, law)
+    volcanism(work[0], y, diag, grid, par, law, t >= t_switch)
     q = diag[D_QVOLC] + diag[D_QS_CRUST] * 4.0 * math.pi * par[P_RADIUS] ** 2
     dy[Y_EM] -= q
     dy[Y_OUT] += q
