@@ -444,7 +444,7 @@ def build_profiles(result, times_yr=None, n: int = 5):
     if flagged:
         handles.append(Patch(color="0.5", alpha=0.25, label="melting curves extrapolated"))
     _pressure_axis(axes[0], result)
-    fig.legend(handles=handles, loc="outside lower center", ncol=3, fontsize=7, frameon=False)
+    fig.legend(handles=handles, loc="outside lower left", ncol=3, fontsize=7, frameon=False)
     fig.suptitle(f"{result.spec.planet.name}: temperature profiles", fontsize=11)
     add_note(fig)
     return fig
