@@ -119,7 +119,9 @@ def test_weak_scaling_earth_today(earth_weak):
     assert 0.2 <= h["radiogenic_power"][-1] / heat_out <= 0.5
 
 
-@pytest.mark.xfail(strict=True, reason="measured 42.78 TW, 0.5% below the range (43.43 TW on the same machine with "
+# Not strict: the miss (0.5%) is inside the up-to-0.6% spread of numba's round-off between machines, so another
+# machine may land just inside the range; an XPASS there is reported, not an error.
+@pytest.mark.xfail(strict=False, reason="measured 42.78 TW, 0.5% below the range (43.43 TW on the same machine with "
                    "the former epsilon-iron core profile, 43.7 TW where the docstring's numbers were first taken): "
                    "the liquid-iron core isentrope leaves a smaller inner core (1878 km instead of 2303 km), whose "
                    "growth releases less latent and gravitational heat, so the CMB heat flow falls from 7.25 to "
