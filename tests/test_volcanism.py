@@ -199,8 +199,8 @@ def mars():
     return evolve(PlanetSpec(**MARS, model="whole-mantle-sg")), evolve(PlanetSpec(**MARS, model="peridotite-mantle"))
 
 
-@pytest.mark.xfail(strict=True, reason="known limitation: measured 115 km with the default peridotite curves "
-                   "(volcanism ends at 1.06 Gyr) and 82 km with the chondritic whole-mantle curves (ends at 0.60 "
+@pytest.mark.xfail(strict=True, reason="known limitation: measured 114 km with the default peridotite curves "
+                   "(volcanism ends at 1.06 Gyr) and 82 km with the chondritic whole-mantle curves (ends at 0.61 "
                    "Gyr). The first crust, 35 km at 10 Myr under a mantle at 1640 K, is Morschhauser et al. 2011's "
                    "admissible start (~1650 K, ~30 km primordial crust; abstract checked); the rest is one burst "
                    "when the lid, grown to ~420 km while the mantle warmed to 1870 K without melting below it, "
@@ -243,7 +243,7 @@ def test_crust_holds_heat_sources(mars):
                                    rtol=1e-12)
 
 
-@pytest.mark.xfail(strict=True, reason="measured: the 115 km crust holds 48.0% of the heat sources at 4.5 Gyr "
+@pytest.mark.xfail(strict=True, reason="measured: the 114 km crust holds 47.6% of the heat sources at 4.5 Gyr "
                    "(the first 35 km held 17%). It does not follow from the thickness alone: by batch melting "
                    "(D = 0.002) a crust of F = M_crust / M_mantle made from melt fractions phi holds about "
                    "1 - exp(-F / phi), so these crusts imply phi ~ 0.15-0.16 (F = 0.094 and 0.029); a 50 km crust "
