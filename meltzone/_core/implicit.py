@@ -326,7 +326,7 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
     t_end = par[P_T_END]
     # the refined top cells (the M_TOP_CELLS added ones and the top half cell) count in the step bounds and the
     # error estimate by their mass against the cell below them (light cells of the resolved lid)
-    first_light = n - 1 - int(mset[M_TOP_CELLS])
+    first_light = n - 1 - int(mset[M_TOP_CELLS]) if mset[M_TOP_CELLS] > 0.5 else n
     m_ref = grid[G_W, first_light - 1] if first_light >= 1 else grid[G_W, 0]
     _states(x[1:], grid, law, par, temp, phi)
     rad, vol = _surface_state(t, phi, grid, lost, par)
