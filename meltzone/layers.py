@@ -84,8 +84,8 @@ def track(result):
     """
     it = result.interior
     ms = it.mantle
-    r_nodes = it.r[ms]
-    p_nodes = it.P[ms]
+    r_nodes = result.history.grid.radius  # the scheme's cells (the mixing-length scheme refines the top)
+    p_nodes = result.history.grid.pressure
     n_nodes = len(r_nodes)
     radius = it.radius
     h = result.history

@@ -24,7 +24,7 @@ import numpy as np
 
 from ..constants import STEFAN_BOLTZMANN
 from ._jit import njit
-from .layout import (C_W, F_A, F_DR, F_R, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP, M_MOBILE,
+from .layout import (C_W, F_A, F_DR, F_R, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP, M_MOBILE, M_TOP_CELLS,
                      M_NEWTON_TOL, MH_ATM_CO2, MH_ATM_H2O, MH_DT, MH_E_STORED, MH_EC, MH_H, MH_LID, MH_MELT,
                      MH_NEWTON, MH_OUT, MH_PHI_TOP, MH_QC, MH_QS, MH_RIC, MH_T, MH_TC, MH_TS, MH_TU, MS_EPS, MS_H,
                      MS_H_PREV, MS_N_H, MS_N_NEWTON, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_ATMOSPHERE, P_CC, P_CM,
@@ -324,6 +324,10 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
     mobile = mset[M_MOBILE] > 0.5
     mid = n // 2
     t_end = par[P_T_END]
+    # the refined top cells (the M_TOP_CELLS added ones and the top half cell) count in the step bounds and the
+    # error estimate by their mass against the cell below them (light cells of the resolved lid)
+    first_light = n - 1 - int(mset[M_TOP_CELLS]) if mset[M_TOP_CELLS] > 0.5 else n
+    m_ref = grid[G_W, first_light - 1] if first_light >= 1 else grid[G_W, 0]
     _states(x[1:], grid, law, par, temp, phi)
     rad, vol = _surface_state(t, phi, grid, lost, par)
     if n_h == 0:
@@ -367,13 +371,16 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
         big_phi = 0.0
         if ok:
             for i in range(n):
-                big_t = max(big_t, abs(temp[i] - temp_old[i]))
-                big_phi = max(big_phi, abs(phi[i] - phi_old[i]))
+                wm = min(grid[G_W, i] / m_ref, 1.0) if i >= first_light else 1.0
+                big_t = max(big_t, wm * abs(temp[i] - temp_old[i]))
+                big_phi = max(big_phi, wm * abs(phi[i] - phi_old[i]))
             if dt_prev > 0.0:
                 w = dt / (dt + dt_prev)
                 for i in range(n + 1):
                     pred = x_old[i] + dt * (x_old[i] - x_prev[i]) / dt_prev
                     scale = c_core if i == 0 else cm
+                    if i - 1 >= first_light:
+                        scale = cm * m_ref / min(grid[G_W, i - 1], m_ref)
                     err = max(err, w * abs(x[i] - pred) / scale)
                 err /= mset[M_ERR]
         if ok and err <= 1.0 and big_t <= mset[M_DT_CELL] and big_phi <= mset[M_DPHI]:

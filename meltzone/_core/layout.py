@@ -200,6 +200,9 @@ MLT_FACE_ROWS = ("radius", "area", "density", "gravity", "pressure", "mixing_len
 MLT_SETTINGS = ("error_k", "max_melt_step", "max_cell_step_k", "newton_tol_k", "max_newton", "mobile_lid",
                 "min_step")
 M_ERR, M_DPHI, M_DT_CELL, M_NEWTON_TOL, M_MAX_NEWTON, M_MOBILE, M_MIN_STEP = range(N_M := len(MLT_SETTINGS))
+#: cells added at the top by the scheme's surface refinement (their step bounds count by their mass)
+MLT_SETTINGS += ("refined_top_cells",)
+M_TOP_CELLS, = range(N_M, N_M := len(MLT_SETTINGS))
 #: history columns of the mixing-length scheme (one row per accepted step)
 MLT_HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "surface_temperature", "surface_heat_flow",
                        "cmb_heat_flow", "radiogenic_power", "lid_thickness", "inner_core_radius", "melt_mass",

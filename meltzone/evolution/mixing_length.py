@@ -61,6 +61,22 @@ centroid, a quarter of the node spacing from the boundary, so the outer faces' c
 boundary layers' cap) is that quarter and the faces next to them take three quarters (``OUTER_CENTROID``; with the
 node distances a conductive lid carried half a cell too much and its heat flow converged only to first order).
 
+Upper boundary layer (off by default, ``TOP_LEVELS`` = 0; the numbers below with it set to 4): the scheme can add
+TOP_LEVELS = 4 nodes between the interior's last two mantle nodes, at
+depths d/2, d/4, d/8 and d/16 of that top spacing d (which the interior already makes 1/8 of its body's spacing),
+so that the top cell is 1/128 of the body's spacing (70 m at 256 nodes for 5 M_E). Without them the conductive
+lid that grows under the surface once the top leaves the liquid (~1 km thick at 5-20 Myr for 5 M_E) sat inside the
+top half cell up to 512 nodes, the whole upper mantle's profile below it followed the cell size (at 2.25 km depth
+and 20 Myr 1672, 1649, 1628 K at 256, 512, 1024 nodes) and the 5 M_E surface magma-ocean end moved 22.8, 17.3,
+7.9 Myr; with them 8.18, 7.90, 7.61 Myr (measured; two more levels move it by < 0.1%). In the light cells of the
+resolved lid the per-step bounds on dT and dphi and the local-error estimate count by the cell's mass against
+the cell below the refinement (``M_TOP_CELLS``; this model's choice: the lid's thin cells freeze and re-melt
+near phi_c in bursts, and with the full bounds the 5 M_E, 10 Gyr run took 3.5 times the steps). Why it is off:
+those bursts make the regime flip (11 times for 5 M_E at 256 nodes, against once without), the mass-criterion end
+of 5 M_E moves 2.2% from 256 to 512 nodes (1.2% without), 10 M_E does not converge with it (43.0 and 75.3 Myr),
+the kernel departs from the plain reference by 7.9e-3 in the lid's cells (2 M_E, 100 kyr) and the 5 M_E, 10 Gyr
+run takes 1.6 times as long.
+
 History: regime 0 (magma ocean) while the top of the convecting mantle is above phi_c, else the configured solid
 regime. ``top_melt_fraction`` (the regime's melt fraction) is the melt fraction at the surface of the two-phase
 isentrope through the top convecting cell (the highest cell whose upper face carries more heat by convection than
@@ -75,27 +91,31 @@ layer outgrows it; measured, the top cell leaving phi_c at 256, 512 and 1024 nod
 when its boundary layer is thinner than the half cell; ``lid_thickness`` (stagnant lid) = depth of that cell's
 upper face; ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
 
-Grid convergence (measured with ``benchmarks/convergence_mlt.py``, mobile lid, at 64, 128, 256, 512, 1024 nodes
-unless said). The bulk of the magma ocean passes the rheological transition within ~1-3 kyr and this converges:
-the time at which less than 1% of the mantle mass is above phi_c, 5 M_E: 1.710, 1.771, 1.798, 1.819, 1.835 kyr
-(1.5%, 1.2%, 0.9% per doubling). The surface magma ocean's end (the regime's isentrope leaving phi_c), 1 M_E:
-9.40, 9.00, 5.43, 4.86, 4.80 Myr (1.2% from 512 to 1024 nodes, 10% from 256 to 512). For 5 M_E it is not
-converged (8.2, 12.8, 22.3, 17.0, 7.8 Myr), nor for 10 M_E: there the regime's melt fraction drifts along phi_c
-(~0.005 per Myr for 5 M_E, and at 1024 nodes it wanders by +-0.01 around it), the boundary-layer scheme's "top
-held at phi_c" plateau, so a 2% crossing time would need it to ~1e-3. The 1 M_E time of less than 1% above phi_c
-falls on a plateau of ~1-1.4% of the mantle mass (1.35, 2.24, 2.98, 2.38, 1.55 Myr), and so does the reported
-``magma_ocean_end_yr`` (which needs both). The basal layer's edges at fixed times converge (1 M_E, top at 40 kyr
+Grid convergence (measured with ``benchmarks/convergence_mlt.py``, mobile lid; the numbers before the surface
+refinement at 64, 128, 256, 512, 1024 nodes unless said, with it at 256, 512, 1024). The bulk of the magma ocean
+passes the rheological transition within ~1-3 kyr and this converges: the time at which less than 1% of the mantle
+mass is above phi_c, 5 M_E: 1.710, 1.771, 1.798, 1.819, 1.835 kyr (with the refinement 1.806, 1.844, 1.856 kyr).
+The surface magma ocean's end (the regime's isentrope leaving phi_c), 1 M_E: 9.40, 9.00, 5.43, 4.86, 4.80 Myr
+(with the refinement 4.83 and 4.80 Myr at 512 and 1024 nodes, 0.7%). 5 M_E: 8.2, 12.8, 22.3, 17.0, 7.8 Myr before
+the refinement (the conductive lid inside the top half cell, see "Upper boundary layer"); with it 8.18, 7.90,
+7.61 Myr (3.5% and 3.6% per doubling, runs to 25 Myr): still short of 2%, because the regime's melt fraction
+drifts along phi_c (~0.008 per Myr) and the upper mantle's profile still moves by ~0.005 in phi per doubling.
+10 M_E is not converged with it either (43.0 and 75.3 Myr at 256 and 512 nodes, runs to 200 Myr; not diagnosed).
+The 1 M_E time of less than 1% above phi_c falls on a plateau of ~1-1.4% of the mantle mass (1.35, 2.24, 2.98,
+2.38, 1.55 Myr), and so does the reported ``magma_ocean_end_yr`` (which needs both; with the refinement 2.26
+and 1.55 Myr at 512 and 1024 nodes). The basal layer's edges at fixed times converge (1 M_E, top at 40 kyr
 to 1 Myr: within 3 km from 256 to 1024 nodes, cells of 11 to 3 km; the core's heat flow at 1 Myr 3.3e14, 3.7e14,
 3.6e14 W), but its separation is a tangency of T - T_sol with zero: 1 M_E 33.9, 33.5, 32.9, 30.0, 31.2 kyr, its
 largest thickness (reached then) 965, 960, 963, 1063, 1006 km; 5 M_E 530 kyr within 0.2% and 438, 439, 423, 427,
-425 km. The last melt (the basal layer's freezing) moves by 4.7% and 2.4% (1 M_E, 128-512 nodes), 4.0% and 2.8%
-(5 M_E), 7.6% and 5.9% (10 M_E); with the node distances at the outer faces and the cell's melt fraction at the
-CMB 13.9% and 11.3% (5 M_E), 13.6% and 10.7% (10 M_E). The last cell above phi_c (``rheological_transition_yr``)
-is one cell on a plateau at phi_c and does not converge (1 M_E 8.0, 7.8, 5.7, 22.2, 29.5 Myr; 5 M_E 4.7, 7.4,
-20.2, 15.9, 12.2 Myr). Halving the step tolerance (run.max_temperature_step_k) moves every event by < 1% except
-the basal layer's largest thickness (1-6%). Tried without effect on the top cell's freezing: mixing lengths at the
-geometric mean of the two nodes' distances to the boundary, and the node distance at the faces next to the outer
-half cells.
+425 km (with the refinement 534, 534, 536 kyr and 425, 452, 436 km). The last melt (the basal layer's freezing)
+moves by 4.7% and 2.4% (1 M_E, 128-512 nodes), 4.0% and 2.8% (5 M_E), 7.6% and 5.9% (10 M_E); with the node
+distances at the outer faces and the cell's melt fraction at the CMB 13.9% and 11.3% (5 M_E), 13.6% and 10.7%
+(10 M_E). The last cell above phi_c (``rheological_transition_yr``) is one cell on a plateau at phi_c (1 M_E 8.0,
+7.8, 5.7, 22.2, 29.5 Myr; 5 M_E 4.7, 7.4, 20.2, 15.9, 12.2 Myr; with the refinement 5 M_E 13.7, 12.9, 12.2 Myr,
+6% per doubling). Halving the step tolerance (run.max_temperature_step_k) moved every event by < 1% except the
+basal layer's largest thickness (1-6%) before the refinement. Tried without effect on the top cell's freezing:
+mixing lengths at the geometric mean of the two nodes' distances to the boundary, and the node distance at the
+faces next to the outer half cells.
 """
 
 from __future__ import annotations
@@ -140,6 +160,43 @@ PROGRESS_STEPS = 100
 #: surface heat flow at 6 Myr 1.61, 1.93, 2.04e15 W at 256, 512, 1024 nodes, with the quarter 1.98, 2.14, 2.17e15 W
 OUTER_CENTROID = 0.25
 SWITCH = "rheological_switch"
+#: extra halvings of the top node spacing in this scheme's cells (module docstring, "Upper boundary layer"; off:
+#: with 4, measured, the 5 M_E surface magma-ocean end converges to 3.5% per doubling instead of 24%, 3 and 4
+#: levels agree within 0.1%, but the regime flips 11 times at 256 nodes, the 5 M_E mass-criterion end moves 2.2%
+#: from 256 to 512 nodes and the 5 M_E, 10 Gyr run costs 1.6 times as much; experimental until those are solved)
+TOP_LEVELS = 0
+
+
+def refined_interior(interior, levels=TOP_LEVELS):
+    """The interior with ``levels`` more mantle nodes between the last two, at depths d/2 .. d/2^levels of their
+    spacing d (the interior's top spacing, 1/8 of its body's), every node array interpolated linearly in radius
+    (phase: the top node's)."""
+    import dataclasses
+
+    if levels <= 0:
+        return interior
+    r = interior.r
+    d0 = r[-1] - r[-2]
+    new_r = r[-1] - d0 * 0.5 ** np.arange(1, levels + 1)
+    out = {}
+    for name in ("r", "m", "P", "rho", "g", "T_ref", "adiabat"):
+        a = getattr(interior, name)
+        out[name] = np.concatenate([a[:-1], np.interp(new_r, r[-2:], a[-2:]), a[-1:]])
+    out["r"] = np.concatenate([r[:-1], new_r, r[-1:]])
+    out["phase"] = np.concatenate([interior.phase[:-1], np.repeat(interior.phase[-1], levels), interior.phase[-1:]])
+    return dataclasses.replace(interior, **out)
+
+
+def refined_curves(curves, interior, fine) -> dict:
+    """The melting curves (:func:`meltzone.melting.node_curves` on the interior's mantle nodes) on the refined
+    nodes: linear in radius between the last two nodes (the added nodes lie within 1/8 of a node spacing of the
+    surface, where the curves are smooth in pressure)."""
+    r = interior.r[interior.mantle]
+    rf = fine.r[fine.mantle]
+    out = dict(curves)
+    for name in ("solidus", "liquidus", "aux1", "aux2"):
+        out[name] = np.ascontiguousarray(np.interp(rf, r, np.asarray(curves[name], dtype=np.float64)))
+    return out
 
 
 def build_faces(interior, grid) -> np.ndarray:
@@ -148,13 +205,14 @@ def build_faces(interior, grid) -> np.ndarray:
     ms = it.mantle
     r = grid[k.G_R]
     n = len(r)
+    rn = it.r[ms]
     rf = np.concatenate([[r[0]], 0.5 * (r[1:] + r[:-1]), [r[-1]]])
     faces = np.zeros((k.N_F, n + 1))
     faces[k.F_R] = rf
     faces[k.F_A] = 4.0 * math.pi * rf ** 2
-    faces[k.F_RHO] = np.interp(rf, r, it.rho[ms])
-    faces[k.F_G] = np.interp(rf, r, it.g[ms])
-    faces[k.F_P] = np.interp(rf, r, it.P[ms])
+    faces[k.F_RHO] = np.interp(rf, rn, it.rho[ms])
+    faces[k.F_G] = np.interp(rf, rn, it.g[ms])
+    faces[k.F_P] = np.interp(rf, rn, it.P[ms])
     faces[k.F_L] = np.minimum(rf - r[0], r[-1] - rf)
     faces[k.F_DR, 1:n] = np.diff(r)
     # the outer cells are half cells whose mean lies at their centroid, a quarter of the node spacing from the
@@ -180,6 +238,7 @@ def settings(spec) -> np.ndarray:
     m[k.M_MAX_NEWTON] = MAX_NEWTON
     m[k.M_MOBILE] = 1.0 if spec.convection.regime == "mobile-lid" else 0.0
     m[k.M_MIN_STEP] = MIN_STEP
+    m[k.M_TOP_CELLS] = TOP_LEVELS
     return m
 
 
@@ -270,10 +329,11 @@ def run(spec, interior, curves, progress=None, *, history_rows=2048) -> History:
     if n > MAX_CELLS:
         raise ConfigError(f"interior.mantle_nodes = {spec.interior.mantle_nodes} gives {n} mantle cells, more than "
                           f"the mixing-length scheme takes ({MAX_CELLS}); lower interior.mantle_nodes")
-    inputs = build_inputs(spec, interior, curves)
+    fine = refined_interior(interior)
+    inputs = build_inputs(spec, fine, refined_curves(curves, interior, fine))
     inputs.par[k.P_BMO] = 0.0  # no reservoir here: the basal layer is whatever the resolved profile gives
     inputs.par[k.P_BLEND] = max(inputs.par[k.P_BLEND], MIN_BLEND)
-    faces = build_faces(interior, inputs.grid)
+    faces = build_faces(fine, inputs.grid)
     hist, temps, phis, state = integrate(spec, inputs, faces, progress, history_rows)
     column = {name: j for j, name in enumerate(k.MLT_HISTORY_COLUMNS)}
     series = {name: hist[:, column[name]].copy() for name in SERIES if name in column}
