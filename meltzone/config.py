@@ -249,8 +249,7 @@ SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
     "run": {
         "end_time_gyr": Key(10.0, "Gyr", "model time at which the run stops", lo=0.0, lo_open=True, hi=100.0,
             source="limit: 100 Gyr, ~7x the age of the Universe (13.8 Gyr)"),
-        "rtol": Key(1.0e-7, "1", "relative tolerance of the time integrator (the lid's error scale also holds "
-                    "rtol x 0.1 x the mantle's depth)", lo=1.0e-12, hi=1.0e-2,
+        "rtol": Key(1.0e-7, "1", "relative tolerance of the time integrator", lo=1.0e-12, hi=1.0e-2,
             source="numerical setting; limits: 1e-12 ~ 1e4 float64 epsilons, 1e-2 the loosest useful"),
         "atol_k": Key(1.0e-7, "K", "absolute tolerance of the time integrator, as the heat of this temperature "
                       "change of the whole mantle or core (the lid's: atol_k x 1 km/K)", lo=1.0e-12, hi=10.0,

@@ -18,7 +18,7 @@ import numpy as np
 from . import dopri, rosenbrock
 from ._jit import njit
 from .layout import N_Y_ENERGY, S_DYV, S_YV, Y_CRUST, Y_HPE
-from .layout import (C_W, D_PHI_SURF, G_F, G_R, G_TSOL, N_D, N_Y, NOT_YET, P_ATOL, P_CC, P_CM, P_DT_MAX,
+from .layout import (C_W, D_PHI_SURF, G_F, G_TSOL, N_D, N_Y, NOT_YET, P_ATOL, P_CC, P_CM, P_DT_MAX,
                      P_H_MAX, P_MANTLE_MASS, P_PHI_C, P_RTOL, P_T_END, S_DY, S_H, S_N_H, S_N_IV, S_N_REJ,
                      S_SLOPE_C, S_SLOPE_M, S_T, S_T_SWITCH, S_TC, S_TU, S_Y, STATUS_DONE, STATUS_HISTORY_FULL,
                      STATUS_INTERVALS_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL, Y_EC, Y_EM, Y_LID)
@@ -45,18 +45,6 @@ MIN_STEP = 1e-6
 CHECKED_STEP = 1.0
 #: absolute error scale of the lid per kelvin of run.atol_k [m]
 LID_SCALE = 1.0e3
-#: the lid's error scale also holds rtol times the mantle's depth times this [1]. The energies are controlled to
-#: rtol of the whole mantle's (core's) heat, and a lid thicker by dD turns a fraction ~dD / depth of the mantle's
-#: rock from convecting to conducting: rtol x depth would be the same relative rule. Controlled to rtol of its
-#: own thickness only (~3e-4 m at 2.7 km), the lid was held ~300 times tighter than the mantle's energy leaves
-#: it: near its floor the lid is slaved to T_u (it relaxes in ~2e4 yr to a thickness that moves ~700 m per K of
-#: T_u), the mantle's energy scale (~1.5e-4 K) moves it by ~0.1 m, and Rodas3's error estimate of that fast
-#: relaxing component, ~1e-3 of its increment once h exceeds the relaxation time, held the steps at ~2e4 yr for
-#: Gyr (measured: an 8.8 M_E stagnant lid under a grey atmosphere, 44,977 steps, the lid's scaled error 1e3-1e4
-#: times the energies' at every step size from 3e3 to 1e6 yr; 1,987 with this term). The factor is this model's
-#: choice, measured: 1 (1,787 steps) let a Mars-like crust run 0.14% above its thinning lid (the crust, a record
-#: capped by the lid, lags it at longer steps); 0.1 keeps it below (0.016% under), 0.01 took 6,627 steps
-LID_DEPTH_SCALE = 0.1
 #: error scales of the crust (a record of the extracted melt, not part of the energy budget): absolute [m] and
 #: relative (this model's choice: enough to keep a stagnant-lid crust below its cap within a step)
 CRUST_ATOL, CRUST_RTOL = 1.0, 1.0e-4
@@ -256,8 +244,8 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     a call can resume) and return a STATUS_* code.
 
     Error control on the two energies (relative rtol plus the heat of atol_k), on the lid (relative plus
-    atol_k x LID_SCALE plus rtol x LID_DEPTH_SCALE x the mantle's depth) and on the crust (CRUST_ATOL,
-    CRUST_RTOL); every step also keeps |dT_u|, |dT_c| <= P_DT_MAX, and a step with a temperature extremum inside it is shortened when the interpolated extremum would
+    atol_k x LID_SCALE) and on the crust (CRUST_ATOL, CRUST_RTOL); every step also keeps |dT_u|, |dT_c| <=
+    P_DT_MAX, and a step with a temperature extremum inside it is shortened when the interpolated extremum would
     change which nodes are above the solidus while neither end shows it, so that no melt layer appears and vanishes unseen between two recorded
     profiles. The step that first takes the top of the mantle below phi_c ends on the crossing (within
     PHI_TOL), and its end is the rheological switch time (state S_T_SWITCH, NOT_YET before), from which the
@@ -304,11 +292,10 @@ def integrate(state, grid, core, iso, par, law, hist, temps, phis, iv, max_steps
     t_end = par[P_T_END]
     rtol = par[P_RTOL]
     dt_max = par[P_DT_MAX]
-    # absolute scales: heat of atol_k of mantle and of core; of the lid atol_k x LID_SCALE plus rtol x
-    # LID_DEPTH_SCALE x the mantle's depth
+    # absolute scales: heat of atol_k of mantle and of core, atol_k x LID_SCALE of lid
     abs_e_m = par[P_ATOL] * par[P_MANTLE_MASS] * par[P_CM]
     abs_e_c = par[P_ATOL] * max(core[C_W].sum() * par[P_CC], 1.0)
-    abs_lid = par[P_ATOL] * LID_SCALE + rtol * LID_DEPTH_SCALE * (grid[G_R, grid.shape[1] - 1] - grid[G_R, 0])
+    abs_lid = par[P_ATOL] * LID_SCALE
     sc = np.array([abs_e_m, abs_e_c, abs_lid])  # the error norm's absolute scales of Y_EM, Y_EC, Y_LID
     args = (t_switch, grid, core, iso, par, law, work, diag)
     if n_h == 0:
