@@ -53,8 +53,9 @@ class Interior:
     :data:`meltzone.phases.MANTLE_PHASES`, -1 in the core), ``T_ref`` [K] on the
     reference adiabat, ``adiabat`` f(r) = T_adiabat/T_top in the mantle and
     T/T_cmb in the core (from :func:`build_interior`: liquid iron's isentrope, see
-    :func:`with_liquid_core_adiabat`; from :func:`solve_structure`: the structure's own core temperature). Nodes ``0 .. cmb_index-1`` are the core; the mantle
-    starts at ``cmb_index`` (the CMB radius appears once on each side).
+    :func:`with_liquid_core_adiabat`; from :func:`solve_structure`: the structure's own core temperature).
+    Nodes ``0 .. cmb_index-1`` are the core; the mantle starts at ``cmb_index`` (the CMB radius appears once on
+    each side).
     """
 
     mass: float

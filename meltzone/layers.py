@@ -83,7 +83,6 @@ def track(result):
     regime events), sorted by time.
     """
     it = result.interior
-    ms = it.mantle
     r_nodes = result.history.grid.radius  # the scheme's cells (the mixing-length scheme refines the top)
     p_nodes = result.history.grid.pressure
     n_nodes = len(r_nodes)

@@ -50,6 +50,7 @@ from __future__ import annotations
 from ._jit import njit
 from .layout import P_CM, P_KAPPA, P_LID_LAW, P_LID_MIN, P_RHO_TOP, P_T_EQ
 
+
 @njit
 def lid_heat_temperature(tl, par):
     """Temperature [K] at which the stored heat counts the lid's rock: T_l (base flux) or the mean of the linear
