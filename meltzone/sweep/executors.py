@@ -120,12 +120,19 @@ class PoolBackend:
 
     def _terminate(self):
         procs = list((getattr(self.executor, "_processes", None) or {}).values())
+        # shutdown(wait=False) forgets the pool's manager thread; keep it to join below
+        manager = getattr(self.executor, "_executor_manager_thread", None)
         self.executor.shutdown(wait=False, cancel_futures=True)
         for p in procs:  # our own workers, by their process objects
             if p.is_alive():
                 p.terminate()
         for p in procs:
             p.join(timeout=5)
+        # The manager thread closes its wake-up pipe on its way out; if it is still doing so when the
+        # interpreter exits, concurrent.futures' exit hook writes to the closing pipe and prints an
+        # OSError traceback (a race in CPython 3.11). With the workers gone it ends promptly: wait for it.
+        if manager is not None:
+            manager.join(timeout=30)
 
     def restart(self):
         self._terminate()
