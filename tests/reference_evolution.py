@@ -444,12 +444,15 @@ def atmosphere_mass(total, melt_mass, coeff, expo, ph):
     return brentq(f, 0.0, total, xtol=1e-13 * total, rtol=1e-14)
 
 
-def emissivity(tu, ph, mantle):
+def emissivity(tu, phi_top, ph, mantle):
     """(eps, M_H2O, M_CO2) of the grey atmosphere: eps = 2 / (tau + 2) (Abe & Matsui 1985; Elkins-Tanton 2008),
-    tau = sum_i (3 M_i / (8 pi R^2)) sqrt(kappa_i g / (3 P0)); 1 without an atmosphere."""
+    tau = sum_i (3 M_i / (8 pi R^2)) sqrt(kappa_i g / (3 P0)); 1 without an atmosphere. The gases dissolve in
+    the adiabat's melt only while the top is a magma ocean: weight smoothstep((phi_top - phi_c) / width),
+    0 under a solid surface (the melt below is sealed off from the atmosphere)."""
     if not ph.grey_atmosphere:
         return 1.0, 0.0, 0.0
-    melt = float(np.sum(mantle.mass * melt_fraction(tu * mantle.adiabat, mantle)))
+    contact = smoothstep((phi_top - ph.critical_melt_fraction) / ph.blend_width)
+    melt = contact * float(np.sum(mantle.mass * melt_fraction(tu * mantle.adiabat, mantle)))
     m_h2o = atmosphere_mass(ph.water_kg, melt, *H2O_SOLUBILITY, ph)
     m_co2 = atmosphere_mass(ph.co2_kg, melt, *CO2_SOLUBILITY, ph)
     area = 4.0 * math.pi * ph.radius ** 2
@@ -585,7 +588,7 @@ class ReferenceModel:
             delta_c = (kappa_c * eta_c * ph.critical_rayleigh
                        / (alpha_c * ph.density_mantle * ph.gravity_cmb * abs(dtc))) ** (1.0 / 3.0)
             q_cmb = k_c * dtc / min(delta_c, 0.5 * self.depth)
-        eps, m_h2o, m_co2 = emissivity(tu, ph, mantle)
+        eps, m_h2o, m_co2 = emissivity(tu, phi_top, ph, mantle)
         # magma-ocean top (a = 1, beta = 1/3, whole depth) blended with the solid top across phi_c
         w = smoothstep((phi_top - phi_c) / ph.blend_width)
         qs = 0.0

@@ -39,6 +39,10 @@ ARRAYS = np.load(DATA / "pinned.npz")
 RTOL = 1e-12
 #: summary outcomes in another environment (twice the largest difference measured between two machines, 0.6%)
 CROSS_RTOL = 2e-2
+#: ... except the outgassed water, which comes in brief pulses as the edges of a melt zone cross the mantle nodes
+#: near the vent's solubility threshold: measured 4.2% apart between an AMD Zen 3 and an Intel Xeon host (the
+#: stagnant-lid grey planet), and +-3% between run.rtol 1e-7 and 1e-9 on one host; five times that spread
+CROSS_RTOL_KEYS = {"outgassed_h2o_kg": 0.15}
 HOME = FIXTURE.get("_written_by", {}).get("environment") == environment()
 CASES = sorted(name for name in FIXTURE if not name.startswith("_"))
 
@@ -88,9 +92,9 @@ def test_summary_unchanged(case):
     old = _flatten(FIXTURE[name]["summary"])
     new = _flatten(result.summary())
     assert old.keys() <= new.keys()
-    rtol = RTOL if HOME else CROSS_RTOL
     for key, value in old.items():
         got = new[key]
+        rtol = RTOL if HOME else CROSS_RTOL_KEYS.get(key, CROSS_RTOL)
         if not HOME and key == "energy_closure":  # round-off itself: only its bound carries over
             assert got <= max(value, 1e-12) * 1e3, (name, key)
         elif isinstance(value, float) and isinstance(got, float):

@@ -299,3 +299,27 @@ def test_cli_bad_star_input_exits_2(tmp_path):
     assert res.exit_code == 2
     assert "star.mass_msun" in res.output and "equilibrium_temperature_k" in res.output
     assert "Traceback" not in res.output
+
+
+def test_melt_under_a_solid_surface_takes_no_water_from_the_atmosphere():
+    """The atmosphere's gases dissolve in the melt only while the magma ocean reaches the surface (solubility
+    laws hold at a melt's free surface; Lebrun et al. 2013, JGR Planets 118:1155 and Hamano et al. 2013, Nature
+    497:607 end the exchange with the magma ocean; from memory). A 3 M_E stagnant-lid planet under a grey
+    atmosphere of 1e21 kg of water (no star, so no escape): once the top is below the rheological transition
+    (surface_magma_ocean_end_yr), no water is
+    dissolved and the atmosphere holds the inventory plus what volcanism outgassed (1e-9: the water budget
+    closes); during the magma ocean the melt holds some. Before this rule the warming mantle's melt under a
+    ~200 km lid drew ~5e20 kg of water out of the atmosphere."""
+    r = meltzone.evolve({"planet": {"mass_earth": 3.0, "core_mass_fraction": 0.3},
+                         "convection": {"regime": "stagnant-lid"},
+                         "surface": {"atmosphere": "grey", "water_inventory_kg": 1e21, "co2_inventory_kg": 1e20,
+                                     "equilibrium_temperature_k": 300.0},
+                         "run": {"end_time_gyr": 1.5}})
+    h = r.history
+    s = r.summary()
+    during = h.time < 0.5 * s["magma_ocean_end_yr"] * 3.15576e7
+    after = h.time > s["surface_magma_ocean_end_yr"] * 3.15576e7  # the top below phi_c (here at ~0.7 Gyr)
+    assert after.sum() > 10 and np.all(h["water_dissolved"][during][1:] > 1e18)
+    assert np.all(h["water_dissolved"][after] == 0.0)
+    expected = 1e21 + h["outgassed_h2o"][after]
+    assert np.allclose(h["atmosphere_h2o"][after], expected, rtol=1e-9, atol=0.0)

@@ -312,7 +312,10 @@ def _partitioned_atmosphere(r, total):
     g = h.grid
     phi = melting.melt_fraction(h["upper_temperature"][-1] * it.adiabat[it.mantle], g.solidus, g.liquidus,
                                 np.zeros(g.n), np.zeros(g.n), melting.LAW_LINEAR)
-    m_melt = float(np.sum(g.mass * phi))
+    # the melt holds gases only while the top is above the rheological transition: smoothstep((phi_top - phi_c)
+    # / width) (meltzone._core.physics.contact_weight; defaults phi_c 0.4, width 0.05)
+    x = min(max((h["top_melt_fraction"][-1] - 0.4) / 0.05, 0.0), 1.0)
+    m_melt = x * x * (3.0 - 2.0 * x) * float(np.sum(g.mass * phi))
     area = 4.0 * np.pi * it.radius ** 2
     return brentq(lambda m: m + 6.8e-8 * (m * it.surface_gravity / area) ** 0.7 * m_melt - total, 0.0, total,
                   xtol=1e-6)
@@ -321,7 +324,8 @@ def _partitioned_atmosphere(r, total):
 def test_outgassed_volatiles_enter_the_grey_atmosphere():
     """With a grey atmosphere the outgassed volatiles join the surface inventory before the solubility partition:
     at the end, M_atm + X(P) M_melt = inventory + outgassed with X_H2O = 6.8e-8 P^0.7, P = M_atm g / (4 pi R^2)
-    and M_melt the adiabat's melt (the partition the scheme uses, as in Lebrun et al. 2013; from memory), solved
+    and M_melt the adiabat's melt while the top is a magma ocean, none under a solid top (the partition the
+    scheme uses, as in Lebrun et al. 2013; from memory), solved
     here with brentq (1e-6 relative); a run without volcanism keeps just the inventory in that balance (checked
     the same way: the two runs' thermal histories differ, so their atmospheres are not compared with each other;
     measured: this Mars-like mantle warms under its lid and remelts at its top more than once, the run with

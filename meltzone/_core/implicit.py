@@ -34,7 +34,8 @@ from .mlt_physics import (CW_DLN_ETA, CW_DTDH, CW_H_ACT, CW_LN_ETA, N_CW, adiaba
                           cell_log_viscosity, cell_slope, cell_state, cmb_flux, interior_flux, surface_adiabat_state,
                           surface_flux, surface_flux_slope)
 from .record import find_intervals
-from .physics import CORE, GREY_H2O_COEFF, GREY_H2O_EXPONENT, _invert, core_energy, inner_core, radiogenic_power
+from .physics import (CORE, GREY_H2O_COEFF, GREY_H2O_EXPONENT, _invert, contact_weight, core_energy, inner_core,
+                      radiogenic_power)
 from .layout import (MH_UPPER_CELL, MH_ABS, MH_DISSOLVED, MH_LOST, MH_OCEAN, MH_OLR, MH_P_CO2, MH_P_H2O, MS_LOST, P_G_SURF,
                      P_H2O_SOL_C, P_H2O_SOL_E, P_H2O_TOTAL, P_STEAM)
 from .radiation import condense, escape_rate, radiation_state, thin_weight, volatiles
@@ -73,9 +74,16 @@ def _surface_state(t, phi, grid, lost, par):
     steam = par[P_STEAM] > 0.5
     if par[P_ATMOSPHERE] <= 0.5 and not steam:
         return radiation_state(t, 1.0, steam, par, 1.0), (0.0, 0.0, 0.0, 0.0, 0.0)
+    # the melt the gases dissolve in: the cells molten from the top cell down without a gap, while the top cell
+    # is above the rheological transition (the boundary-layer scheme's contact_weight, from the top cell's melt
+    # fraction); melt under a solid top cell, and a basal magma ocean, are sealed off from the atmosphere
+    top = phi.shape[0] - 1
     m_melt = 0.0
-    for i in range(phi.shape[0]):
+    for i in range(top, -1, -1):
+        if phi[i] <= 0.0:
+            break
         m_melt += grid[G_W, i] * phi[i]
+    m_melt *= contact_weight(phi[top], par)
     if steam:
         eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, par[P_H2O_SOL_C], par[P_H2O_SOL_E], par, 0.0, 0.0)
     else:

@@ -188,6 +188,19 @@ def radiogenic_power(t, iso, par):
 
 
 @njit
+def contact_weight(phi_top, par):
+    """Share [0-1] of the adiabat's melt that the atmosphere's volatiles dissolve in: 1 while the top of the
+    mantle is above the rheological transition (a surface magma ocean), 0 once it is below (the melt of a
+    solid mantle, under a lid or a solid surface, is sealed off from the atmosphere), joined over the same
+    melt-fraction width P_BLEND as the viscosity and the fluxes (smoothstep). The melt's water and CO2 are
+    in solubility equilibrium with the atmosphere only while the magma ocean reaches the surface (Lebrun et
+    al. 2013, JGR Planets 118:1155; Hamano et al. 2013, Nature 497:607; the solubility laws hold at a melt's
+    free surface; from memory). Without it, a stagnant-lid mantle warming under a 200 km lid drew 5e20 kg of
+    water out of the atmosphere into its sub-lid melt."""
+    return smoothstep((phi_top - par[P_PHI_C]) / par[P_BLEND])
+
+
+@njit
 def melt_mass_adiabat(tu, grid, law):
     m = 0.0
     for i in range(grid.shape[1]):
@@ -442,7 +455,7 @@ def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag, 
     eps, m_h2o, m_co2, dissolved, water, m_melt = 1.0, 0.0, 0.0, 0.0, 0.0, 0.0
     steam = par[P_STEAM] > 0.5
     if steam or par[P_ATMOSPHERE] > 0.5:
-        m_melt = melt_mass_adiabat(tu, grid, law_i)
+        m_melt = contact_weight(phi_top, par) * melt_mass_adiabat(tu, grid, law_i)
         if steam:
             eps, m_h2o, m_co2, dissolved, water = volatiles(m_melt, lost, par[P_H2O_SOL_C], par[P_H2O_SOL_E], par,
                                                           added_h2o, added_co2)
