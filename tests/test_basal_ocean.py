@@ -183,7 +183,7 @@ def test_iron_curve_flagged_beyond_its_static_experiments():
     """The iron melting curve (Anzellini et al. 2013) rests on static data to 200 GPa (checked in the paper's
     summary; its 330 GPa value is extrapolated); laser-shock data reach 1000 GPa (Kraus et al. 2022, Science
     375:202, range checked in the abstract) but the fit is not fitted to them: the core flag starts above
-    200 GPa, 'medium' to 1000 GPa and 'low' above."""
+    200 GPa, 'medium' to 1000 GPa and 'low' above, each band saying which data it lies beyond."""
     from meltzone.iron import IRON_SHOCK_MAX_PA, IRON_STATIC_MAX_PA
     from meltzone.phases import core_flags
 
@@ -194,6 +194,8 @@ def test_iron_curve_flagged_beyond_its_static_experiments():
     assert [z["confidence"] for z in zones] == ["medium", "low"]
     assert all(z["kind"] == "extrapolated-iron-melting" for z in zones)
     assert 200.0 * GPA < zones[0]["top_pressure_pa"] <= 600.0 * GPA and zones[1]["top_pressure_pa"] > 999.0 * GPA
+    assert "static experiments (200 GPa)" in zones[0]["what"]
+    assert "beyond every melting measurement" in zones[1]["what"]
     assert not core_flags(depth[:2], p[:2])
 
 
