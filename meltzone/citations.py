@@ -114,7 +114,8 @@ REGISTRY = {
                               "extrapolated to 330 GPa checked)",
                               "Anzellini et al. 2013, Science 340:464", MEMORY),
     "kraus2022": Citation("iron melting measured to 1000 GPa by laser shock (range checked in the abstract; the points "
-                          "the Anzellini fit is held to, 556 GPa / 8085 K and 991 GPa / 10766 K, from memory)",
+                          "the Anzellini fit is held to, 556 GPa / 8085 K and 991 GPa / 10766 K, from memory; their "
+                          "Simon-Glatzel fit known only as quoted by secondary sources, not used as a model)",
                           "Kraus et al. 2022, Science 375:202", MEMORY),
     "latent_scaling": Citation("inner-core latent heat L(P) = L_ICB T_m(P) / T_m(330 GPa): a constant entropy of "
                                "melting (ab initio iron, Alfe et al. 2002, PRB 65:165118)", "core.core_latent_heat",

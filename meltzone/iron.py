@@ -11,12 +11,20 @@ value is for Earth's ICB only), applied to every use of the curve (inner core of
 default molten start). Results are model estimates.
 
 Beyond 200 GPa the fit is extrapolated. Laser-shock melting data reach 1000 GPa (Kraus et al. 2022, Science
-375:202, range checked against the abstract); two of their points, recalled from memory (liquid at 556 GPa /
-8085 K, solid at 991 GPa / 10766 K, tests/test_melting.py), are consistent with the extrapolated fit. Their
-own Simon-Glatzel coefficients could not be verified (searched: the abstract pages, papers citing it, public
-code; none quoted them), so they are not used. The curve is flagged beyond the static data
-(:data:`IRON_STATIC_MAX_PA`) by :func:`meltzone.phases.core_flags`: "medium" up to the shock data's 1000 GPa
-(:data:`IRON_SHOCK_MAX_PA`), "low" above.
+375:202, range checked against the abstract; the journal's summary, checked, adds that the liquid cores of
+Earth-like planets of 4-6 Earth masses last longest); two of their points, recalled from memory (liquid at 556 GPa
+/ 8085 K, solid at 991 GPa / 10766 K, tests/test_melting.py), are consistent with the extrapolated fit. Their own
+Simon-Glatzel fit was found in no source readable here (searched: the abstract pages, news reports, papers citing
+it; the paper's text was not reachable); independent public code quotes it as T = 5530 K ((P - 260 GPa)/293 GPa +
+1)^0.552 for 260-1000 GPa. Not verified in the source, those coefficients are not used as a model; taken as quoted,
+they lie within 0.5% of the extrapolated fit from 260 to 1000 GPa (0.2% from 300 GPa; tests/test_melting.py holds
+it to 1%) and 0.9, 1.4 and 2.3% below it at 1500, 2000 and 3000 GPa. An ab initio fit to 5000 GPa (Gonzalez-Cataldo
+& Militzer 2023, Phys. Rev. Research), also known here only as quoted, T = 6469 K (1 + (P - 300 GPa)/434.82
+GPa)^(1/1.839), lies 6% below the extrapolated fit at 2000 GPa: beyond 1000 GPa the curve rests on no melting
+measurement. Super-Earth cores reach far beyond it (centres at 1766, 3787 and 6094 GPa at 5, 10 and 15 Earth masses
+with the defaults, measured), so their freezing times are model estimates on an extrapolated curve. The curve is
+flagged beyond the static data (:data:`IRON_STATIC_MAX_PA`) by :func:`meltzone.phases.core_flags`: "medium" up to
+the shock data's 1000 GPa (:data:`IRON_SHOCK_MAX_PA`), "low" above.
 """
 
 from __future__ import annotations

@@ -229,8 +229,8 @@ def core_flags(depth_m, pressure_pa) -> list[dict]:
     """High-pressure flags of the core: depths where the iron melting curve (which sets the inner core) is used
     beyond its static experiments (:data:`meltzone.iron.IRON_STATIC_MAX_PA`, 200 GPa; Anzellini et al. 2013,
     Science 340:464). Kind ``extrapolated-iron-melting``; confidence ``medium`` up to the laser-shock data
-    (:data:`meltzone.iron.IRON_SHOCK_MAX_PA`, 1000 GPa; Kraus et al. 2022, Science 375:202), ``low`` above.
-    Same zone dicts as :func:`flags`."""
+    (:data:`meltzone.iron.IRON_SHOCK_MAX_PA`, 1000 GPa; Kraus et al. 2022, Science 375:202), ``low`` above, where
+    no melting measurement exists (each band says so in its ``what``). Same zone dicts as :func:`flags`."""
     from .iron import IRON_SHOCK_MAX_PA, IRON_STATIC_MAX_PA
 
     order = np.argsort(np.asarray(depth_m, dtype=float), kind="stable")
@@ -238,11 +238,18 @@ def core_flags(depth_m, pressure_pa) -> list[dict]:
     p = np.asarray(pressure_pa, dtype=float)[order]
     if depth.size == 0:
         return []
-    confidence = np.where(p <= IRON_SHOCK_MAX_PA, "medium", "low")
-    return _mask_zones("extrapolated-iron-melting",
-                       f"iron melting curve beyond its static experiments (to {IRON_STATIC_MAX_PA / GPA:g} GPa)",
-                       "Anzellini et al. 2013, Science 340:464 (static data to 200 GPa); Kraus et al. 2022, "
-                       "Science 375:202 (laser shock to 1000 GPa)", depth, p, p > IRON_STATIC_MAX_PA, confidence)
+    static, shock = IRON_STATIC_MAX_PA / GPA, IRON_SHOCK_MAX_PA / GPA
+    source = ("Anzellini et al. 2013, Science 340:464 (static data to 200 GPa); Kraus et al. 2022, Science 375:202 "
+              "(laser shock to 1000 GPa)")
+    bands = (((p > IRON_STATIC_MAX_PA) & (p <= IRON_SHOCK_MAX_PA), "medium",
+              f"iron melting curve extrapolated beyond its static experiments ({static:g} GPa); laser-shock "
+              f"melting data reach {shock:g} GPa"),
+             (p > IRON_SHOCK_MAX_PA, "low",
+              f"iron melting curve extrapolated beyond every melting measurement (laser shock to {shock:g} GPa)"))
+    zones = [z for mask, confidence, what in bands
+             for z in _mask_zones("extrapolated-iron-melting", what, source, depth, p, mask,
+                                  np.full(p.shape, confidence))]
+    return sorted(zones, key=lambda z: z["top_depth_m"])
 
 
 def planet_flags(interior, melting_model) -> list[dict]:

@@ -62,14 +62,21 @@ def flag_lines(zones) -> list[str]:
 
 
 def note_lines(zones) -> list[str]:
-    """The closing note: model estimate, and where the profile rests on extrapolated or predicted laws."""
+    """The closing note: model estimate, and where the profile rests on extrapolated or predicted laws (for a
+    kind whose confidence falls deeper down, also where it becomes low)."""
     parts = []
     for kind in dict.fromkeys(z["kind"] for z in zones):
         if kind == "predicted-transition":
             continue
         zs = [z for z in zones if z["kind"] == kind]
         top = min(zs, key=lambda z: z["top_depth_m"])
-        parts.append(f"{kind} below {km(top['top_depth_m'])} km (> {gpa(top['top_pressure_pa'])} GPa)")
+        low = [z for z in zs if z["confidence"] == "low"]
+        deeper = ""
+        if low and top["confidence"] != "low":
+            first_low = min(low, key=lambda z: z["top_depth_m"])
+            deeper = (f"; low confidence below {km(first_low['top_depth_m'])} km, "
+                      f"> {gpa(first_low['top_pressure_pa'])} GPa")
+        parts.append(f"{kind} below {km(top['top_depth_m'])} km (> {gpa(top['top_pressure_pa'])} GPa{deeper})")
     text = MODEL_NOTE
     if parts:
         text += " Extrapolated or predicted: " + "; ".join(parts) + "."

@@ -183,7 +183,7 @@ def test_iron_curve_flagged_beyond_its_static_experiments():
     """The iron melting curve (Anzellini et al. 2013) rests on static data to 200 GPa (checked in the paper's
     summary; its 330 GPa value is extrapolated); laser-shock data reach 1000 GPa (Kraus et al. 2022, Science
     375:202, range checked in the abstract) but the fit is not fitted to them: the core flag starts above
-    200 GPa, 'medium' to 1000 GPa and 'low' above."""
+    200 GPa, 'medium' to 1000 GPa and 'low' above, each band saying which data it lies beyond."""
     from meltzone.iron import IRON_SHOCK_MAX_PA, IRON_STATIC_MAX_PA
     from meltzone.phases import core_flags
 
@@ -194,7 +194,24 @@ def test_iron_curve_flagged_beyond_its_static_experiments():
     assert [z["confidence"] for z in zones] == ["medium", "low"]
     assert all(z["kind"] == "extrapolated-iron-melting" for z in zones)
     assert 200.0 * GPA < zones[0]["top_pressure_pa"] <= 600.0 * GPA and zones[1]["top_pressure_pa"] > 999.0 * GPA
+    assert "static experiments (200 GPa)" in zones[0]["what"]
+    assert "beyond every melting measurement" in zones[1]["what"]
     assert not core_flags(depth[:2], p[:2])
+
+
+def test_run_note_says_where_the_iron_curve_passes_every_measurement():
+    """The closing note of a report names where the core's iron curve leaves its static data (200 GPa,
+    Anzellini et al. 2013) and, deeper, where it leaves the laser-shock data too (1000 GPa, Kraus et al. 2022):
+    here at the 4600 km node (1001 GPa); a core within the shock data gets no such clause."""
+    from meltzone.phases import core_flags
+    from meltzone.report import note_lines
+
+    p = np.array([100.0, 200.0, 600.0, 999.0, 1001.0, 2000.0]) * GPA
+    depth = np.linspace(3000e3, 5000e3, len(p))
+    note = note_lines(core_flags(depth, p))[0]
+    assert "extrapolated-iron-melting below 3,800 km (> 600.0 GPa; low confidence below 4,600 km, > 1,001.0 GPa)" \
+        in note
+    assert "low confidence" not in note_lines(core_flags(depth[:4], p[:4]))[0]
 
 
 def test_ocean_melting_curve_sets_a_continuous_thickness():
