@@ -172,19 +172,20 @@ def _earth(a_au, atmosphere="steam", oceans=1.0, end_gyr=0.05, **extra):
 
 
 def test_steam_atmosphere_delays_the_magma_ocean_lebrun2013():
-    """Lebrun et al. 2013, JGR Planets 118:1155 (abstract checked): a steam atmosphere delays the end of an Earth
-    magma ocean by typically 1 Myr, and water condenses after ~1.5 Myr at 1 AU. The end of the magma ocean is the
-    summary's magma_ocean_end_yr (the top of the adiabat below the critical melt fraction, or less than 1% of the
-    mantle's mass above it). Measured here: 0.32 Myr delay (bare 1.3 kyr, steam 0.32 Myr), an ocean after 0.38
-    Myr (with the former whole-mantle curves and the top criterion: 0.15 Myr and 0.15 Myr); the energy
-    released until the end (1.0e31 J) would take 10 Myr at the radiation limit (F_lim - F_abs = 60 W/m^2), but
-    this model's near-infrared window (its shape this model's choice) radiates 760-69000 W/m^2 above 1800 K, and
-    the magma ocean ends with its surface at 1681 K under 204 bar of water, where the window still radiates
-    1.25 F_lim: the whole delay is spent in the window (1825 K at 0.1 Myr), none on the plateau. The delay thus
-    measures the window's shape between ~1700 and ~2000 K, which no source checked here fixes (with the window
-    200 K later, T_w = 2000 K, it was 0.90 Myr and the ocean 1.05 Myr; not adopted). Tolerance: the delay
-    between 0.1 Myr (the order of Lebrun's) and the energy bound at the limit (an exact upper bound: no law here
-    radiates less than min(F_lim, sigma T_s^4)); an ocean within 0.05-5 Myr; energy closure 1e-9."""
+    """Lebrun et al. 2013, JGR Planets 118:1155 (abstract checked): a steam atmosphere delays the end of an Earth magma
+    ocean by typically 1 Myr, and water condenses after ~1.5 Myr at 1 AU (after the Moon-forming impact, ~2 Myr:
+    "Earth's Earliest Atmosphere", Elements 2:217, 2006, abstract checked, author Zahnle from memory). The end of the
+    magma ocean is the summary's magma_ocean_end_yr (the top of the adiabat below the critical melt fraction, or less
+    than 1% of the mantle's mass above it). Measured here: 0.32 Myr delay (bare 1.3 kyr, steam 0.32 Myr), an ocean
+    after 0.38 Myr (with the former whole-mantle curves and the top criterion: 0.15 Myr and 0.15 Myr); the energy
+    released until the end (1.0e31 J) would take 10 Myr at the radiation limit (F_lim - F_abs = 60 W/m^2), but this
+    model's near-infrared window (its shape this model's choice) radiates 760-69000 W/m^2 above 1800 K, and the magma
+    ocean ends with its surface at 1681 K under 204 bar of water, where the window still radiates 1.25 F_lim: the
+    whole delay is spent in the window (1825 K at 0.1 Myr), none on the plateau. The delay thus measures the window's
+    shape between ~1700 and ~2000 K, which no source checked here fixes (with the window 200 K later, T_w = 2000 K, it
+    was 0.90 Myr and the ocean 1.05 Myr; not adopted). Tolerance: the delay between 0.1 Myr (the order of Lebrun's)
+    and the energy bound at the limit (an exact upper bound: no law here radiates less than min(F_lim, sigma T_s^4));
+    an ocean within 0.05-5 Myr; energy closure 1e-9."""
     bare = _earth(1.0, "none").summary()
     r = _earth(1.0)
     steam = r.summary()
