@@ -12,15 +12,23 @@ the absorbed stellar flux comes from :func:`meltzone._core.star.absorbed_flux_t4
   the runaway-greenhouse limit F_lim = 282 W/m^2 (Goldblatt et al. 2013, Nature Geosci. 6:661, abstract checked)
   joined smoothly to sigma T_s^4 at low T_s, ((sigma T_s^4)^-4 + F_lim^-4)^(-1/4), times 1 + (T_s / T_w)^k
   with T_w = 1800 K and k = 20 for the near-infrared window that opens at high T_s (the limit holds from
-  ~400 K to ~1600-1800 K, Goldblatt et al. 2013, Fig. 1; Goldblatt & Watson 2012, Phil. Trans. A 370:4197
-  give ~1400 K; the window's form, T_w and k are this model's choice, a shape after those figures from
-  memory, not a fit to tabulated values: no published table of OLR(T_s) could be verified; uncertainty: the
-  temperature where OLR reaches 2 F_lim is 1800 K here, published ~1800-2300 K depending on the water column,
-  from memory), at most sigma T_s^4. w = exp(-tau_H2O), the grey transmissivity of the water column (tau_H2O
-  of the grey law below): the grey law takes over once escape has thinned the steam (an optically thin
-  atmosphere radiates like the grey law), not while the steam is thick, where the radiation limit holds
-  whatever the grey law would give (this model's choice; the former max(OLR_steam, eps sigma T_s^4) let the
-  grey law of a thick atmosphere exceed the limit, e.g. 1.8 F_lim at 1470 K under 0.5 oceans);
+  ~400 K to ~1600-1800 K, Goldblatt et al. 2013, Fig. 1, from memory), at most sigma T_s^4. The window's form,
+  T_w and k are this model's choice, not a fit: no published table or fit of OLR(T_s) above ~1500 K could be
+  read (searched: Goldblatt et al. 2013; Kopparapu et al. 2013; Hamano et al. 2013, 2015; Kasting 1988;
+  Nakajima, Hayashi & Abe 1992, whose grey model tends to a constant at high T_s and has no window; Marcq 2012;
+  Lebrun et al. 2013; Katyal et al. 2019; Nikolaou et al. 2019; Boukrouche et al. 2021: abstracts only).
+  Checked against it: Goldblatt & Watson 2012, Phil. Trans. A 370:4197 (abstract: warming past the limit
+  ceases near 1400 K): outgoing = absorbed at 1311-1537 K for 282.5-294 W/m^2 (294 W/m^2: the steam Earth's
+  absorbed flux, Goldblatt et al. 2013, abstract), tested. Not represented: the window's dependence on the
+  water column (Nikolaou et al. 2019, ApJ 875:11, reference from memory, abstract checked: whether the magma
+  ocean keeps cooling depends on both the H2O mass and the melting temperature; published 2 F_lim at ~1800-2300
+  K depending on the column, from memory). Where it matters: an Earth at 1 AU ends its magma ocean at T_s ~1680
+  K under ~200 bar of water, where the window gives 1.25 F_lim (tests/test_surface.py). w = exp(-tau_H2O), the
+  grey transmissivity of the water column (tau_H2O of the grey law below): the grey law takes over once
+  escape has thinned the steam (an optically thin atmosphere radiates like the grey law), not while the steam
+  is thick, where the radiation limit holds whatever the grey law would give (this model's choice; the former
+  max(OLR_steam, eps sigma T_s^4) let the grey law of a thick atmosphere exceed the limit, e.g. 1.8 F_lim at
+  1470 K under 0.5 oceans);
 * water (law 1): H2O dissolves in the melt as X = 647 ppmw (p / 1 bar)^0.5 (Sossi et al. 2023, EPSL 601:117894,
   peridotite liquids at 2173 K and 1 bar, f_H2O < 0.03 bar, with the peridotite-glass absorption coefficient;
   524 ppmw with the basaltic one; abstract checked; used here far above its pressures), CO2 as the grey law's
