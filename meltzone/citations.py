@@ -147,8 +147,14 @@ REGISTRY = {
                           "Blanc, Stegman & Ziegler 2020, EPSL 534", MEMORY),
     "orourke2020": Citation("parameterised basal magma ocean (Venus)", "O'Rourke 2020, GRL 47", MEMORY),
     "basal_ocean_melting": Citation("the basal ocean's melting curve: mantle solidus - depression - enrichment x "
-                                    "(1 - M/M_ref), capped at M_ref", "melting.basal_melt_depression_k, "
+                                    "(1 - M_b/M_ref), met by the core temperature at its hottest point below the "
+                                    "top; capped at M_ref", "melting.basal_melt_depression_k, "
                                     "basal_melt_enrichment_k, basal_ocean_reference_fraction", CHOICE),
+    "basal_crystal_buoyancy": Citation("basal ocean: crystals, lighter than the iron-rich melt, collect at its top "
+                                       "wherever they form", "\"Investigating magma ocean solidification on Earth "
+                                       "through laser-heated diamond anvil cell experiments\" (abstract; GRL 2021 "
+                                       "from memory); Nature 2025, doi:10.1038/s41586-025-08701-z (abstract)",
+                                       CHECKED),
     "basal_depression_scaling": Citation("the basal melt's depression and enrichment proportional to the local "
                                          "solidus (ideal-solution freezing-point depression at a fixed composition "
                                          "and entropy of fusion; keys hold at PREM's 135.8 GPa CMB, Dziewonski & "
@@ -290,7 +296,8 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
     keys.append("kraus2022")
     keys += surface_keys(spec)
     if spec.melting.basal_magma_ocean == "reservoir":
-        keys += ["labrosse2007", "blanc2020", "orourke2020", "basal_ocean_melting"] + (
+        keys += ["labrosse2007", "blanc2020", "orourke2020", "basal_ocean_melting",
+                 "basal_crystal_buoyancy"] + (
             ["basal_depression_scaling"] if spec.melting.basal_melt_depression_scaling == "solidus" else [])
     if spec.volcanism.enabled == "on":
         vc = spec.volcanism

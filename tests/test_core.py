@@ -151,7 +151,7 @@ def test_inner_core_grows_where_the_core_adiabat_crosses_the_melting_curve():
 
 def test_basal_ocean_lifetime_follows_the_deep_mantle_viscosity():
     """Why the basal ocean is short-lived in super-Earths here: the solid mantle's lower boundary layer. At
-    10 M_E the reservoir (boundary-layer scheme) ends within 1 Gyr (measured 0.31 Gyr) with the default
+    10 M_E the reservoir (boundary-layer scheme) ends within 1 Gyr (measured 0.17 Gyr) with the default
     activation volume that decays with pressure (this model's choice), while with a constant activation volume
     (Tosi et al. 2017's 4 cm^3/mol at every pressure) it outlives a 3 Gyr run: the lifetime is set by the deep
     mantle's viscosity law, not by the reservoir. Published super-Earth studies find longer-lived basal oceans in

@@ -20,31 +20,47 @@ def _depression_scale(t_sol, t_ref):
 
 
 @njit
+def _ocean_melting_point(t_sol, m, par):
+    """Melting point [K] of the basal ocean's melt of mass m (composition: the crystallised fraction 1 - m / M_ref)
+    where the mantle solidus is t_sol: t_sol - (dT0 + dT_fe (1 - m / M_ref)) x the depression's scale."""
+    return t_sol - (par[P_BMO_DEP] + par[P_BMO_ENRICH] * (1.0 - m / par[P_BMO_MREF])) * _depression_scale(
+        t_sol, par[P_BMO_TREF])
+
+
+@njit
 def basal_ocean(tc, grid, par):
     """Basal magma ocean at core temperature tc: (r_b, M_b, x_b) = radius of its top [m], mass [kg] and position
     of its top in node units (j + s between nodes j and j + 1).
 
-    Well mixed at the temperature of the top of the core (Labrosse, Hernlund & Coltice 2007, Nature 450:866);
-    its top is where tc meets its melting curve, the mantle solidus on the nodes lowered by
-    dT0 + dT_fe (1 - M / M_ref): the iron-enriched melt (depression dT0 at the reference composition) enriches
-    further as it crystallises (FeO incompatible; linear in the crystallised fraction of M_ref: this model's
-    choice after Labrosse et al. 2007 and Blanc, Stegman & Ziegler 2020, EPSL 534). With a reference solidus
+    Well mixed at the temperature of the top of the core (Labrosse, Hernlund & Coltice 2007, Nature 450:866), so
+    of one composition: iron-enriched melt whose melting curve is the mantle solidus on the nodes lowered by
+    dT0 + dT_fe (1 - M_b / M_ref), the depression dT0 at the reference composition, enriching further as it
+    crystallises (FeO incompatible; linear in the crystallised fraction of M_ref: this model's choice after
+    Labrosse et al. 2007 and Blanc, Stegman & Ziegler 2020, EPSL 534). With a reference solidus
     T_ref = par[P_BMO_TREF] > 0 both terms scale with the local solidus, times T_sol / T_ref: the freezing-point
     depression of an ideal solution at a fixed composition and entropy of fusion is proportional to the melting
     temperature (van 't Hoff / cryoscopic relation, common practice; the same form T_m / (1 - ln x0) as the
     cryoscopic solidus of Stixrude 2014, Phil. Trans. R. Soc. A 372:20130076, from memory), so dT0 and dT_fe hold at
-    T_ref and grow with the solidus at super-Earth pressures; T_ref = 0 keeps them constant. M is the mantle mass below
-    radius r, linear between nodes (the node's shell mass centred on it), so that the thickness is not a node
-    count. Capped at M_ref. None (the core radius, 0, 0) when switched off or tc is below the curve at the CMB."""
+    T_ref and grow with the solidus at super-Earth pressures; T_ref = 0 keeps them constant.
+
+    The ocean is molten where tc is above that curve at every depth it spans, i.e. above the curve at its hottest
+    point (the largest solidus below its top): M_b solves tc = T_max(M_b) - dT(M_b), T_max(M) the largest solidus
+    below the mass M. Crystals form where the melt first reaches its curve and, lighter than the iron-rich melt
+    (residual melts denser than every coexisting solid at deep-mantle pressures; dense melt segregates from
+    lighter solids wherever they form: Nature 2025, doi:10.1038/s41586-025-08701-z; abstracts checked, see
+    :mod:`meltzone.evolution.boundary_layer`), collect at its top, so M_b is also the mantle mass below r_b (linear between nodes: the
+    node's shell mass centred on it, so that the thickness is not a node count). T_max - dT rises strictly with
+    M_b, so the ocean thins continuously as the core cools. (Placing the top where tc meets the curve at the top
+    alone left the melt below it under its own melting point, and where the solidus falls upward faster than the
+    enrichment lifts the curve, at large M_ref, that curve had no crossing: the whole ocean froze at one core
+    temperature and the step size collapsed.) Capped at M_ref. None (the core radius, 0, 0) when switched off or
+    tc is below the curve at the CMB."""
     r_c = par[P_CORE_RADIUS]
     if par[P_BMO] < 0.5:
         return r_c, 0.0, 0.0
-    dep = par[P_BMO_DEP]
-    dfe = par[P_BMO_ENRICH]
     m_ref = par[P_BMO_MREF]
-    t_ref = par[P_BMO_TREF]
-    g_prev = tc - grid[G_TSOL, 0] + (dep + dfe) * _depression_scale(grid[G_TSOL, 0], t_ref)
-    if g_prev <= 0.0:
+    t_max = grid[G_TSOL, 0]
+    if tc <= _ocean_melting_point(t_max, 0.0, par):
         return r_c, 0.0, 0.0
     n = grid.shape[1]
     m_prev = 0.0
@@ -52,17 +68,31 @@ def basal_ocean(tc, grid, par):
     for j in range(1, n):
         cum += grid[G_W, j - 1]
         m = cum + 0.5 * grid[G_W, j]
-        g = tc - grid[G_TSOL, j] + (dep + dfe * (1.0 - m / m_ref)) * _depression_scale(grid[G_TSOL, j], t_ref)
-        s_ref = 2.0
+        t_a = grid[G_TSOL, j - 1]
+        t_b = grid[G_TSOL, j]
+        s_end = 1.0
         if m >= m_ref:
-            s_ref = (m_ref - m_prev) / (m - m_prev)
-            if g_prev + s_ref * (g - g_prev) > 0.0:  # still above its melting curve at the cap
-                return grid[G_R, j - 1] + s_ref * (grid[G_R, j] - grid[G_R, j - 1]), m_ref, j - 1 + s_ref
-        if g <= 0.0:
-            s = g_prev / (g_prev - g)
+            s_end = (m_ref - m_prev) / (m - m_prev)
+        m_end = m_ref if s_end < 1.0 else m
+        if tc < _ocean_melting_point(max(t_max, t_a + s_end * (t_b - t_a)), m_end, par):
+            # the curve at the hottest point rises strictly with s: bisection on this segment
+            lo = 0.0
+            hi = s_end
+            for _ in range(60):
+                mid = 0.5 * (lo + hi)
+                if _ocean_melting_point(max(t_max, t_a + mid * (t_b - t_a)), m_prev + mid * (m - m_prev),
+                                        par) <= tc:
+                    lo = mid
+                else:
+                    hi = mid
+                if hi - lo <= 1e-15:
+                    break
+            s = 0.5 * (lo + hi)
             return (grid[G_R, j - 1] + s * (grid[G_R, j] - grid[G_R, j - 1]), m_prev + s * (m - m_prev),
                     j - 1 + s)
-        g_prev = g
+        if s_end < 1.0:  # above its melting curve at the cap
+            return grid[G_R, j - 1] + s_end * (grid[G_R, j] - grid[G_R, j - 1]), m_ref, j - 1 + s_end
+        t_max = max(t_max, t_b)
         m_prev = m
     return grid[G_R, n - 1], m_prev, float(n - 1)
 

@@ -75,18 +75,28 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   (:func:`gravitational_energy_nodes`, ``core.compositional_density_jump``; ~0.6x the latent heat at Earth's ICB);
 * basal magma ocean (``melting.basal_magma_ocean = "reservoir"``, experimental and off by default; Labrosse, Hernlund & Coltice
   2007, Nature 450:866; parameterised models: Blanc, Stegman & Ziegler 2020, EPSL 534; O'Rourke 2020, GRL 47;
-  abstracts seen, details from memory): a well-mixed melt layer on the core at the core's temperature T_c.
-  Its top r_b is where T_c meets its melting curve, the mantle solidus on the nodes lowered by
-  dT0 + dT_fe (1 - M/M_ref) (M the mantle mass below the radius, linear between nodes, so the thickness is not
-  a node count; dT0 = ``basal_melt_depression_k``, dT_fe = ``basal_melt_enrichment_k``, M_ref =
-  ``basal_ocean_reference_fraction`` x mantle mass; capped at M_ref). With ``basal_melt_depression_scaling =
+  abstracts seen, details from memory): a well-mixed melt layer on the core at the core's temperature T_c, of
+  one composition; its melting curve is the mantle solidus on the nodes lowered by dT0 + dT_fe (1 - M_b/M_ref)
+  (dT0 = ``basal_melt_depression_k``, dT_fe = ``basal_melt_enrichment_k``, M_ref =
+  ``basal_ocean_reference_fraction`` x mantle mass; capped at M_ref). Its mass M_b is where T_c meets that
+  curve at its hottest point below the top (the largest solidus there), so that the melt is above its melting
+  curve at every depth it spans; crystals, lighter than the iron-rich melt (residual melts denser than every
+  coexisting solid at deep-mantle pressures: "Investigating magma ocean solidification on Earth through
+  laser-heated diamond anvil cell experiments", abstract checked, GRL 2021 from memory; dense iron-rich melt
+  segregates from lighter solids wherever they form: Nature 2025, doi:10.1038/s41586-025-08701-z, abstract
+  checked), collect at its top r_b, where the mantle
+  mass below is M_b (linear between nodes, so the thickness is not a node count). M_b then rises strictly and
+  continuously with T_c for any M_ref. (The former top condition, T_c on the curve at the top alone, left the
+  melt below under its own curve; where the solidus falls upward faster than the enrichment lifts the curve
+  its top jumped (1 M_E, measured: from M_ref = 0.14 of the mantle), and from 0.18 the curve had no crossing:
+  a 0.33 ocean, 1212 km, froze at one T_c and the time step collapsed at 2.2 Gyr.) With ``basal_melt_depression_scaling =
   "solidus"`` (the default) both terms are multiplied by T_sol / T_ref, T_ref the solidus at Earth's CMB (4158 K,
   :func:`basal_reference_solidus`): a freezing-point depression at fixed composition is proportional to the
   melting temperature (ideal solution, common practice), where one constant in kelvin carried Earth's value
   unchanged to the ~3x hotter solidus of a 10 M_E CMB. The enrichment term is this model's
-  choice: an isothermal layer under a solidus that falls upward is above it everywhere, so the layer would have
-  no top; the FeO the crystals reject (Labrosse et al. 2007) lowers the melt's melting point as the layer
-  shrinks, which gives it one and makes it thin as the core cools. The core and the ocean are one reservoir
+  choice: at one composition an isothermal layer whose curve falls upward would be molten to any height once
+  T_c passes the curve at its base; the FeO the crystals reject (Labrosse et al. 2007) lowers the melt's
+  melting point as the layer shrinks, which sets its mass at each T_c and makes it thin as the core cools. The core and the ocean are one reservoir
   of stored heat E_c(T_c) (core sensible, inner core, plus the ocean's M_b (c_m T_c + L)); the mantle's stored
   heat leaves the ocean's mass out. Mass that crystallises at the top joins the mantle with the heat the mantle
   function counts for it (c_m T_u f + L phi at r_b); the rest, its latent heat and its excess over the
@@ -97,8 +107,8 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   gives the scheme without it (the lower boundary layer on the core). Off by default: its melting-curve form
   and its three parameters are this model's choice; at 0.5-2 M_E it stays at its cap for > 10 Gyr while the
   mixing-length scheme's basal layer ends at 1.0-1.6 Gyr; and it moves Earth's inner core further from PREM
-  (2367 against 2226 km without it, measured). Its lifetime falls with planet mass above 2 M_E (1.77 Gyr at
-  5 M_E, 189 Myr at 10, 53 Myr at 15; 0.96 Gyr, 92 and 24 Myr with constant depressions), as the
+  (1943 against 1769 km without it at 4.5 Gyr, measured). Its lifetime falls with planet mass above 2 M_E (1.77 Gyr at
+  5 M_E, 170 Myr at 10, 46 Myr at 15; 0.95 Gyr, 75 and 18 Myr with constant depressions), as the
   mixing-length scheme's does, against the published rise (Lherm, Nakajima & Blackman 2026, JGR Planets 131;
   abstract checked). Measured cause: the reservoir's heat loss, ~1800x larger at 10 M_E than at 1 M_E at the
   start (5.3e16 against 3.0e13 W) for ~30x the heat to lose (core c_p x the cooling to the ocean's end). Its
