@@ -365,8 +365,8 @@ def initial_temperatures(spec, inputs) -> tuple[float, float]:
     and the core by the rule of ``initial.core_start`` (:mod:`meltzone.evolution.core_start`), but at least
     50 K above the core alloy's melting curve at every core node, so that the default start is molten in the core
     too (no inner core at t = 0). The floor is applied after the rule (either rule). With the default rule
-    (rheological transition) it binds from a few Earth masses on (measured at core fraction 0.325: not at 1 M_E,
-    at 5 and 15 M_E); with the adiabat rule from ~13 M_E."""
+    (rheological transition) it binds from 3 M_E on (measured at core fraction 0.325: not at 1 and 2 M_E); with the
+    adiabat rule from 6 M_E on (:mod:`meltzone.evolution.core_start`)."""
     from .core_start import core_start_temperature, phi_c_temperature
 
     grid, core = inputs.grid, inputs.core

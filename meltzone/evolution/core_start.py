@@ -22,9 +22,21 @@ Both rules are followed by the core's molten floor (:func:`meltzone.evolution.bo
 T_c is raised, if needed, to 50 K above the core alloy's melting curve at every core node (the mantle's margin over
 its liquidus), so the default start has no inner core. The floor is applied after the rule: a core that the rule
 would start partly frozen starts just molten instead (this model's choice: the rule describes a base that
-stiffens while the core, in contact with it, stays liquid). Measured with the defaults: the rule binds at 1 M_E
-(4611 K, floor 4345 K), the floor at 5 M_E (9691 K against the rule's 9483 K) and 15 M_E (18534 K; the adiabat rule,
-18331 K, is below it too).
+stiffens while the core, in contact with it, stays liquid). Measured with the defaults (core fraction 0.325, the
+default iron curve): the rule binds at 1 and 2 M_E (4614 K against a floor of 4156 K; 6178 K against 5912 K), the
+floor from 3 M_E on (3, 5, 10, 15 M_E: 7439, 10182, 16276, 21931 K against the rule's 7428, 9487, 13562, 16978 K);
+the adiabat rule (5057, 8056, 10274, 14659, 18331 K at 1, 3, 5, 10, 15 M_E) is below the floor from 6 M_E on, where
+both rules start the core at the same temperature.
+
+What the start does not do: it does not set how long the core stays liquid. The magma ocean drains any excess
+within a few kyr (CMB heat flow ~1e21 W at 10 M_E), so the core leaves the magma-ocean stage where the molten mantle
+left it, whatever its start; measured with the defaults (mobile lid, 10 Gyr), core_solid_yr moves by at most 4%
+between the two rules and even with core_temperature_k = 30000 K (3 M_E 4.26 -> 4.43 Gyr, 5 M_E 0.845 -> 0.861 Gyr,
+10 M_E 50.7 -> 50.5 Myr), as "the magma ocean phase effectively erases any signs of the initial core thermodynamic
+state" (Vazan, Ormel, Noack & Dominik 2018, sub-Neptune rocky cores, abstract checked). Massive cores freeze fast here
+because after the magma ocean the whole mantle sits on one adiabat held near the rheological transition at the top
+(T_u ~1670 K): its base is thousands of kelvin below its own solidus (10 M_E: ~3900 K at the CMB against a 12,700 K
+solidus) and the lower boundary layer drains the core (measured, not a start effect).
 
 An explicit ``initial.core_temperature_k`` overrides both and the floor.
 """
