@@ -57,6 +57,7 @@ def stagnant():
                      "volcanism_end_yr": s.get("volcanism_end_yr"), "volcanic_episodes": s.get("volcanic_episodes"),
                      "volcanism_active_yr": s.get("volcanism_active_yr"),
                      "melt_extracted_90pct_yr": s.get("melt_extracted_90pct_yr"),
+                     "outgassed_90pct_yr": s.get("outgassed_90pct_yr"),
                      "crust_thickness_m": s.get("crust_thickness_m"),
                      "outgassed_h2o_kg": s.get("outgassed_h2o_kg"), "outgassed_co2_kg": s.get("outgassed_co2_kg"),
                      "outgassed_h2o_ppm_of_mantle": None if s.get("outgassed_h2o_kg") is None

@@ -18,7 +18,7 @@ KG_PER_YR = YEAR
 #: Summary keys of :func:`volcanism_outcomes` (all None without volcanism series).
 KEYS = ("volcanism_end_yr", "volcanism_at_end", "crust_thickness_m", "outgassed_h2o_kg", "outgassed_co2_kg",
         "final_melt_production_km3_yr", "peak_melt_production_km3_yr", "volcanic_episodes", "volcanism_active_yr",
-        "melt_extracted_90pct_yr")
+        "melt_extracted_90pct_yr", "outgassed_90pct_yr")
 
 
 def _episodes(time: np.ndarray, prod: np.ndarray) -> tuple[int, float, float | None]:
@@ -34,19 +34,28 @@ def _episodes(time: np.ndarray, prod: np.ndarray) -> tuple[int, float, float | N
     return episodes, active_s / YEAR, t90
 
 
+def _outgassed_90pct(time: np.ndarray, outgassed: np.ndarray) -> float | None:
+    """The first recorded time by which 90% of the run's outgassed H2O + CO2 (by mass, a non-decreasing record)
+    was out (None if nothing was)."""
+    if outgassed[-1] <= 0.0:
+        return None
+    return float(time[int(np.argmax(outgassed >= 0.9 * outgassed[-1]))] / YEAR)
+
+
 def volcanism_outcomes(result) -> dict:
     """The volcanism keys of the run summary.
 
-    ``volcanism_end_yr``: the end of the step in which melt extraction stopped for good (None while it is
-    still going at the end, and when there never was any; ``volcanism_at_end`` tells which); resolved to one
-    step, which the integrator bounds by ``run.max_step_myr``. ``crust_thickness_m``, ``outgassed_h2o_kg``,
+    ``volcanism_end_yr``: the end of the step in which melt extraction last stopped within the run (None while
+    it is still going at the end, and when there never was any; ``volcanism_at_end`` tells which); resolved to
+    one step, which the integrator bounds by ``run.max_step_myr``. ``crust_thickness_m``, ``outgassed_h2o_kg``,
     ``outgassed_co2_kg``: at the end of the run. Melt production in km^3/yr (volume of the crust it makes).
 
     Extraction under a stagnant lid can come in episodes separated by long quiet spells (heat stored under a
     thick lid, released when melt weakening thins it), so ``volcanism_end_yr`` is the end of the last episode
     before the run ends, not a proof that no later one follows. ``volcanic_episodes`` counts the episodes,
-    ``volcanism_active_yr`` is the time covered by them and ``melt_extracted_90pct_yr`` the time by which 90% of
-    the extracted volume came out (0, 0.0 and None without extraction)."""
+    ``volcanism_active_yr`` is the time covered by them, ``melt_extracted_90pct_yr`` the time by which 90% of
+    the extracted volume came out and ``outgassed_90pct_yr`` the first recorded time by which 90% of the
+    outgassed H2O + CO2 mass was out (0, 0.0, None and None without extraction)."""
     h = result.history
     if "melt_production" not in h:
         return {key: None for key in KEYS}
@@ -56,7 +65,9 @@ def volcanism_outcomes(result) -> dict:
     if active.any() and not active[-1]:
         s = int(len(active) - np.argmax(active[::-1]))  # first step of the final stretch without extraction
         end = float(h.time[s] / YEAR)
-    episodes, active_yr, t90 = _episodes(np.asarray(h.time, dtype=float), prod)
+    time = np.asarray(h.time, dtype=float)
+    episodes, active_yr, t90 = _episodes(time, prod)
+    gas = np.asarray(h["outgassed_h2o"], dtype=float) + np.asarray(h["outgassed_co2"], dtype=float)
     return {
         "volcanism_end_yr": end,
         "volcanism_at_end": bool(active[-1]),
@@ -68,5 +79,6 @@ def volcanism_outcomes(result) -> dict:
         "volcanic_episodes": episodes,
         "volcanism_active_yr": active_yr,
         "melt_extracted_90pct_yr": t90,
+        "outgassed_90pct_yr": _outgassed_90pct(time, gas),
     }
 
