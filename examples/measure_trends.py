@@ -3,7 +3,8 @@
 Prints one JSON object: the two schemes at 1, 5 and 10 Earth masses; stagnant-lid planets of 1-12 Earth masses
 at 4.5 Gyr (magma-ocean end, volcanism, crust, outgassing); the basal magma ocean with the boundary-layer
 scheme's reservoir and with the mixing-length scheme at 0.5-15 Earth masses; the Earth hindcast. Takes a few
-minutes on one core.
+minutes on one core. Stagnant-lid extraction comes in episodes: volcanism_end_yr is the end of the last one
+before 4.5 Gyr (see volcanic_episodes, volcanism_active_yr).
 
     python examples/measure_trends.py [--quick]
 """
@@ -53,7 +54,11 @@ def stagnant():
         s, dt, r = run(mass, convection={"regime": "stagnant-lid"}, run={"end_time_gyr": 4.5})
         rows.append({"mass_earth": mass, "magma_ocean_end_yr": s["magma_ocean_end_yr"],
                      "surface_magma_ocean_end_yr": s.get("surface_magma_ocean_end_yr"),
-                     "volcanism_end_yr": s.get("volcanism_end_yr"), "crust_thickness_m": s.get("crust_thickness_m"),
+                     "volcanism_end_yr": s.get("volcanism_end_yr"), "volcanic_episodes": s.get("volcanic_episodes"),
+                     "volcanism_active_yr": s.get("volcanism_active_yr"),
+                     "melt_extracted_90pct_yr": s.get("melt_extracted_90pct_yr"),
+                     "outgassed_90pct_yr": s.get("outgassed_90pct_yr"),
+                     "crust_thickness_m": s.get("crust_thickness_m"),
                      "outgassed_h2o_kg": s.get("outgassed_h2o_kg"), "outgassed_co2_kg": s.get("outgassed_co2_kg"),
                      "outgassed_h2o_ppm_of_mantle": None if s.get("outgassed_h2o_kg") is None
                      else 1e6 * s["outgassed_h2o_kg"] / r.interior.mantle_mass,

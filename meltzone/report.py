@@ -240,6 +240,10 @@ def _volcanism_text(s: dict) -> str:
         when = "none"
     else:
         when = f"ended after {format_years(s['volcanism_end_yr'])}"
+    n = s.get("volcanic_episodes")
+    if n:
+        when += (f" ({n} episode{'s' if n > 1 else ''}, active {format_years(s['volcanism_active_yr'])} in "
+                 f"total)")
     return (f"{when}, peak {s['peak_melt_production_km3_yr']:.3g} km^3/yr; crust "
             f"{s['crust_thickness_m'] / 1e3:,.3g} km; outgassed H2O {s['outgassed_h2o_kg']:.3g} kg, CO2 "
             f"{s['outgassed_co2_kg']:.3g} kg")

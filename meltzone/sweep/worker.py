@@ -58,8 +58,8 @@ METRICS = {
     "radius_m": ("m", "planet radius from the interior solver"),
     "n_events": ("1", "number of events in the case's event list"),
     # volcanism (NaN when not modelled)
-    "volcanism_end_yr": ("yr", "time at which melt extraction stopped for good; NaN: still active at the end, "
-                               "none, or not modelled"),
+    "volcanism_end_yr": ("yr", "end of the last episode of melt extraction within the run (a longer run may add "
+                               "another); NaN: still active at the end, none, or not modelled"),
     "crust_thickness_m": ("m", "crust made of extracted melt at the end of the run"),
     "outgassed_h2o_kg": ("kg", "H2O outgassed by erupted melt over the run"),
     "outgassed_co2_kg": ("kg", "CO2 outgassed by erupted melt over the run"),
