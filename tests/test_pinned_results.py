@@ -4,8 +4,8 @@ Source: ``tests/data/pinned.{npz,json}``, written by ``tests/data/make_pinned_fi
 recorded in the fixture) after the deliberate physics changes of this version: the peridotite-based default
 melting curves, density-dependent expansivity and conductivity, the base-flux lid growth law, the starting core
 rule, the iron curve's depression and latent heat, volcanism, the host star, the steam atmosphere, the
-Rosenbrock path for stiff stretches, the core's thermal profile along liquid iron's isentrope and K_S in the
-structure's adiabat. Five planets: a mobile-lid Earth, a stagnant-lid 3 M_E planet with a grey
+Rosenbrock path for stiff stretches, the core's thermal profile along liquid iron's isentrope, K_S in the
+structure's adiabat and the atmosphere's gases dissolving only in melt that reaches the surface. Five planets: a mobile-lid Earth, a stagnant-lid 3 M_E planet with a grey
 H2O-CO2 atmosphere and the Katz 2003 melt law, an iron-rich 0.8 M_E planet (core fraction 0.6), a lava world
 (T_eq = 1800 K, stagnant lid: the implicit path) and a steam world around a 0.3 M_sun star. Tolerance: 1e-12
 relative (1e-12 of the series' largest magnitude for quantities that pass through zero). A refactor must not
