@@ -15,11 +15,11 @@ Beyond 200 GPa the fit is extrapolated. Laser-shock melting data reach 1000 GPa 
 Earth-like planets of 4-6 Earth masses last longest); two of their points, recalled from memory (liquid at 556 GPa
 / 8085 K, solid at 991 GPa / 10766 K, tests/test_melting.py), are consistent with the extrapolated fit. Their own
 Simon-Glatzel fit was found in no source readable here (searched: the abstract pages, news reports, papers citing
-it; the paper's text was not reachable); independent public code quotes it as T = 5530 K ((P - 260 GPa)/293 GPa +
+it; the paper's text was not reachable); secondary sources quote it as T = 5530 K ((P - 260 GPa)/293 GPa +
 1)^0.552 for 260-1000 GPa. Not verified in the source, those coefficients are not used as a model; taken as quoted,
 they lie within 0.5% of the extrapolated fit from 260 to 1000 GPa (0.2% from 300 GPa; tests/test_melting.py holds
 it to 1%) and 0.9, 1.4 and 2.3% below it at 1500, 2000 and 3000 GPa. An ab initio fit to 5000 GPa (Gonzalez-Cataldo
-& Militzer 2023, Phys. Rev. Research), also known here only as quoted, T = 6469 K (1 + (P - 300 GPa)/434.82
+& Militzer 2023, Phys. Rev. Research), also known here only as quoted by secondary sources, T = 6469 K (1 + (P - 300 GPa)/434.82
 GPa)^(1/1.839), lies 6% below the extrapolated fit at 2000 GPa: beyond 1000 GPa the curve rests on no melting
 measurement. Super-Earth cores reach far beyond it (centres at 1766, 3787 and 6094 GPa at 5, 10 and 15 Earth masses
 with the defaults, measured), so their freezing times are model estimates on an extrapolated curve. The curve is

@@ -90,13 +90,17 @@ def basal_ocean_keys(key) -> dict:
                    "Blanc et al. 2020; from memory)"),
         "basal_melt_enrichment_k": key(500.0, "K", "further lowering as the basal magma ocean crystallises: "
                                        "depression + enrichment x (1 - M_b / M_ref), linear in the crystallised "
-                                       "fraction of the reference mass (FeO incompatible, concentrating in the melt)",
-                                       lo=0.0, hi=5000.0,
+                                       "fraction of the reference mass (FeO incompatible, concentrating in the melt); "
+                                       "at least 1 K: without enrichment the ocean's mass would jump from 0 to its "
+                                       "reference at one core temperature", lo=1.0, hi=5000.0,
             source="this model's choice (the mechanism of Labrosse et al. 2007, Nature 450:866: the melt enriches in "
                    "FeO as it crystallises, so the layer thins as the core cools; linear form chosen here)"),
         "basal_ocean_reference_fraction": key(0.02, "1", "reference mass M_ref of the basal magma ocean as a "
                                               "fraction of the mantle mass (its largest mass)", lo=1e-4, hi=0.5,
             source="this model's choice: ~90 km for Earth, the order of ultra-low-velocity zones (tens of km); "
+                   "large fractions are a sensitivity test only: the ocean's top can then lie above the undepressed "
+                   "solidus of the mantle over it (measured +660 K at 0.33 for 1 Earth mass), which this model does "
+                   "not melt into the ocean; "
                    "Labrosse et al. 2007 start from a basal layer of ~1000 km, ~1/3 of the mantle (from memory)"),
         "basal_melt_depression_scaling": key("solidus", "", "how the basal melt's depression and enrichment vary "
                                              "with depth: 'solidus' (proportional to the local mantle solidus, the "

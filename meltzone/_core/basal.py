@@ -48,13 +48,15 @@ def basal_ocean(tc, grid, par):
     below the mass M. Crystals form where the melt first reaches its curve and, lighter than the iron-rich melt
     (residual melts denser than every coexisting solid at deep-mantle pressures; dense melt segregates from
     lighter solids wherever they form: Nature 2025, doi:10.1038/s41586-025-08701-z; abstracts checked, see
-    :mod:`meltzone.evolution.boundary_layer`), collect at its top, so M_b is also the mantle mass below r_b (linear between nodes: the
-    node's shell mass centred on it, so that the thickness is not a node count). T_max - dT rises strictly with
-    M_b, so the ocean thins continuously as the core cools. (Placing the top where tc meets the curve at the top
-    alone left the melt below it under its own melting point, and where the solidus falls upward faster than the
-    enrichment lifts the curve, at large M_ref, that curve had no crossing: the whole ocean froze at one core
-    temperature and the step size collapsed.) Capped at M_ref. None (the core radius, 0, 0) when switched off or
-    tc is below the curve at the CMB."""
+    :mod:`meltzone.evolution.boundary_layer`), collect at its top, so M_b is also the mantle mass below r_b
+    (linear between nodes: the node's shell mass centred on it, so that the thickness is not a node count). T_max
+    - dT rises strictly with M_b, so the ocean thins continuously as the core cools. (Placing the top where tc
+    meets the curve at the top alone left the melt below it under its own melting point, and where the solidus
+    falls upward faster than the enrichment lifts the curve, at large M_ref, that curve had no crossing: the whole
+    ocean froze at one core temperature and the step size collapsed.) Capped at M_ref; large M_ref are a
+    sensitivity test only, as the top can then lie above the undepressed solidus of the mantle over it (measured
+    +660 K at M_ref = 0.33 of a 1 M_E mantle), which this rule does not melt into the ocean. None (the core
+    radius, 0, 0) when switched off or tc is below the curve at the CMB."""
     r_c = par[P_CORE_RADIUS]
     if par[P_BMO] < 0.5:
         return r_c, 0.0, 0.0

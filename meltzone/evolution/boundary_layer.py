@@ -73,7 +73,8 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   melting, :func:`inner_core_heat_row`), ~4x Earth's at the centre of a 10 M_E core; the gravitational energy
   from the light elements the solid rejects, in the structure's own potential well
   (:func:`gravitational_energy_nodes`, ``core.compositional_density_jump``; ~0.6x the latent heat at Earth's ICB);
-* basal magma ocean (``melting.basal_magma_ocean = "reservoir"``, experimental and off by default; Labrosse, Hernlund & Coltice
+* basal magma ocean (``melting.basal_magma_ocean = "reservoir"``, experimental and off by default; Labrosse,
+Hernlund & Coltice
   2007, Nature 450:866; parameterised models: Blanc, Stegman & Ziegler 2020, EPSL 534; O'Rourke 2020, GRL 47;
   abstracts seen, details from memory): a well-mixed melt layer on the core at the core's temperature T_c, of
   one composition; its melting curve is the mantle solidus on the nodes lowered by dT0 + dT_fe (1 - M_b/M_ref)
@@ -89,15 +90,17 @@ the plain NumPy twin used by the tests is ``tests/reference_evolution.py``):
   continuously with T_c for any M_ref. (The former top condition, T_c on the curve at the top alone, left the
   melt below under its own curve; where the solidus falls upward faster than the enrichment lifts the curve
   its top jumped (1 M_E, measured: from M_ref = 0.14 of the mantle), and from 0.18 the curve had no crossing:
-  a 0.33 ocean, 1212 km, froze at one T_c and the time step collapsed at 2.2 Gyr.) With ``basal_melt_depression_scaling =
-  "solidus"`` (the default) both terms are multiplied by T_sol / T_ref, T_ref the solidus at Earth's CMB (4158 K,
+  a 0.33 ocean, 1212 km, froze at one T_c and the time step collapsed at 2.2 Gyr.) With
+  ``basal_melt_depression_scaling = "solidus"`` (the default) both terms are multiplied by T_sol / T_ref, T_ref
+  the solidus at Earth's CMB (4158 K,
   :func:`basal_reference_solidus`): a freezing-point depression at fixed composition is proportional to the
   melting temperature (ideal solution, common practice), where one constant in kelvin carried Earth's value
   unchanged to the ~3x hotter solidus of a 10 M_E CMB. The enrichment term is this model's
   choice: at one composition an isothermal layer whose curve falls upward would be molten to any height once
   T_c passes the curve at its base; the FeO the crystals reject (Labrosse et al. 2007) lowers the melt's
-  melting point as the layer shrinks, which sets its mass at each T_c and makes it thin as the core cools. The core and the ocean are one reservoir
-  of stored heat E_c(T_c) (core sensible, inner core, plus the ocean's M_b (c_m T_c + L)); the mantle's stored
+  melting point as the layer shrinks, which sets its mass at each T_c and makes it thin as the core cools. The
+  core and the ocean are one reservoir of stored heat E_c(T_c) (core sensible, inner core, plus the ocean's M_b
+  (c_m T_c + L)); the mantle's stored
   heat leaves the ocean's mass out. Mass that crystallises at the top joins the mantle with the heat the mantle
   function counts for it (c_m T_u f + L phi at r_b); the rest, its latent heat and its excess over the
   adiabat, stays in the reservoir. The lower boundary layer sits on the ocean's top (radius r_b, the adiabat,

@@ -29,7 +29,7 @@ the adiabat rule (5057, 8056, 10274, 14659, 18331 K at 1, 3, 5, 10, 15 M_E) is b
 both rules start the core at the same temperature.
 
 What the start does not do: it does not set how long the core stays liquid. The magma ocean drains any excess
-within a few kyr (CMB heat flow ~1e21 W at 10 M_E), so the core leaves the magma-ocean stage where the molten mantle
+within a few kyr (CMB heat flow ~7e21 W at 10 M_E), so the core leaves the magma-ocean stage where the molten mantle
 left it, whatever its start; measured with the defaults (mobile lid, 10 Gyr), core_solid_yr moves by at most 4%
 between the two rules and even with core_temperature_k = 30000 K (3 M_E 4.26 -> 4.43 Gyr, 5 M_E 0.845 -> 0.861 Gyr,
 10 M_E 50.7 -> 50.5 Myr), as "the magma ocean phase effectively erases any signs of the initial core thermodynamic

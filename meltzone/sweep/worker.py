@@ -63,6 +63,11 @@ METRICS = {
     "crust_thickness_m": ("m", "crust made of extracted melt at the end of the run"),
     "outgassed_h2o_kg": ("kg", "H2O outgassed by erupted melt over the run"),
     "outgassed_co2_kg": ("kg", "CO2 outgassed by erupted melt over the run"),
+    "volcanic_episodes": ("1", "separate stretches of melt extraction within the run"),
+    "volcanism_active_yr": ("yr", "time covered by the episodes of melt extraction"),
+    "melt_extracted_90pct_yr": ("yr", "time by which 90% of the extracted melt volume came out; NaN: none"),
+    "outgassed_90pct_yr": ("yr", "first recorded time by which 90% of the outgassed H2O + CO2 mass was out; NaN: "
+                                 "none"),
 }
 
 #: Yes/no outcomes per case: name -> long name. int8: 1 yes, 0 no, -1 no result (failed or rejected case).
@@ -171,7 +176,8 @@ def outcomes(summary: dict, result=None, age_yr: float | None = None) -> tuple[d
         "radius_m": float(summary["radius_m"]),
         "n_events": float(len(summary.get("events", ()))),
         **{key: _none_nan(summary.get(key)) for key in ("volcanism_end_yr", "crust_thickness_m", "outgassed_h2o_kg",
-                                                        "outgassed_co2_kg")},
+                                                        "outgassed_co2_kg", "volcanic_episodes", "volcanism_active_yr",
+                                                        "melt_extracted_90pct_yr", "outgassed_90pct_yr")},
     }
     flags = {
         "magma_ocean_persists": _flag(summary.get("magma_ocean_at_end", summary["magma_ocean_end_yr"] is None)),
