@@ -153,7 +153,8 @@ REGISTRY = {
     "basal_crystal_buoyancy": Citation("basal ocean: crystals, lighter than the iron-rich melt, collect at its top "
                                        "wherever they form", "\"Investigating magma ocean solidification on Earth "
                                        "through laser-heated diamond anvil cell experiments\" (abstract; GRL 2021 "
-                                       "from memory); Nature 2025, doi:10.1038/s41586-025-08701-z (abstract)",
+                                       "from memory); Boukare et al. 2025, Nature, "
+                                       "doi:10.1038/s41586-025-08701-z (abstract; lead author from a news report)",
                                        CHECKED),
     "basal_depression_scaling": Citation("the basal melt's depression and enrichment proportional to the local "
                                          "solidus (ideal-solution freezing-point depression at a fixed composition "

@@ -47,8 +47,8 @@ def basal_ocean(tc, grid, par):
     point (the largest solidus below its top): M_b solves tc = T_max(M_b) - dT(M_b), T_max(M) the largest solidus
     below the mass M. Crystals form where the melt first reaches its curve and, lighter than the iron-rich melt
     (residual melts denser than every coexisting solid at deep-mantle pressures; dense melt segregates from
-    lighter solids wherever they form: Nature 2025, doi:10.1038/s41586-025-08701-z; abstracts checked, see
-    :mod:`meltzone.evolution.boundary_layer`), collect at its top, so M_b is also the mantle mass below r_b
+    lighter solids wherever they form: Boukare et al. 2025, Nature, doi:10.1038/s41586-025-08701-z; abstracts
+    checked, see :mod:`meltzone.evolution.boundary_layer`), collect at its top, so M_b is also the mantle mass below r_b
     (linear between nodes: the node's shell mass centred on it, so that the thickness is not a node count). T_max
     - dT rises strictly with M_b, so the ocean thins continuously as the core cools. (Placing the top where tc
     meets the curve at the top alone left the melt below it under its own melting point, and where the solidus
