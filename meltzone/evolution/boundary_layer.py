@@ -85,7 +85,8 @@ Hernlund & Coltice
   coexisting solid at deep-mantle pressures: "Investigating magma ocean solidification on Earth through
   laser-heated diamond anvil cell experiments", abstract checked, GRL 2021 from memory; dense iron-rich melt
   segregates from lighter solids wherever they form: Boukare et al. 2025, Nature,
-  doi:10.1038/s41586-025-08701-z, abstract checked), collect at its top r_b, where the mantle mass below is M_b (linear between nodes, so the thickness is not a node count). M_b then rises strictly and
+  doi:10.1038/s41586-025-08701-z, abstract checked), collect at its top r_b, where the mantle mass below is M_b
+  (linear between nodes, so the thickness is not a node count). M_b then rises strictly and
   continuously with T_c for any M_ref. (The former top condition, T_c on the curve at the top alone, left the
   melt below under its own curve; where the solidus falls upward faster than the enrichment lifts the curve
   its top jumped (1 M_E, measured: from M_ref = 0.14 of the mantle), and from 0.18 the curve had no crossing:
