@@ -81,7 +81,14 @@ def test_key_is_validated():
         PlanetSpec(**MARS, retained_melt_fraction=1.5)
 
 
-def test_mars_volcanism_is_a_waning_stage_with_one_percent_retained():
+@pytest.fixture(scope="module")
+def mars_retained():
+    """The Mars-like planet with 1% retained, peridotite and chondritic whole-mantle curves."""
+    return [evolve(PlanetSpec(**{**MARS, "model": model}, retained_melt_fraction=0.01))
+            for model in ("peridotite-mantle", "whole-mantle-sg")]
+
+
+def test_mars_volcanism_is_a_waning_stage_with_one_percent_retained(mars_retained):
     """With 1% retained the Mars-like planet's volcanism is one extended stage that wanes, as in parameterised
     stagnant-lid models whose second stage of crust formation is extended and wanes (Morschhauser, Grott & Breuer
     2011, Icarus 212:541, abstract checked), not the default law's burst (0.23 Gyr active, measured): active for
@@ -90,7 +97,7 @@ def test_mars_volcanism_is_a_waning_stage_with_one_percent_retained():
     abstract checked; the default law's burst carried 36 TW against 4.7 TW, measured), and production at the end
     of the active stage below a tenth of its peak. Measured: 3.1 Gyr active, 2 episodes, heat pipe <= 3.0 TW
     against 3-4.5 TW. The crust then reaches its eclogite cap (136 km; see test_volcanism.test_mars_crust_thickness)."""
-    r = evolve(PlanetSpec(**MARS, retained_melt_fraction=0.01))
+    r = mars_retained[0]
     s, h = r.summary(), r.history
     assert s["volcanism_active_yr"] >= 1e9
     assert s["volcanic_episodes"] <= 2
@@ -99,3 +106,16 @@ def test_mars_volcanism_is_a_waning_stage_with_one_percent_retained():
     prod = h["melt_production"]
     last = np.nonzero(prod > 0.0)[0][-1]
     assert prod[last - 1] < 0.1 * np.max(prod)
+
+
+def test_mars_outgassing_with_one_percent_retained(mars_retained):
+    """Mars-like outgassing with 1% retained against Grott, Morschhauser, Breuer & Hauber 2011, EPSL 308:391
+    (abstract checked): significant outgassing ceased 3.5-2 Gyr ago, i.e. 1.0-2.5 Gyr into a 4.5 Gyr run (read
+    here as the time by which 90% of the H2O + CO2 is out), and 17-61 m of water (global layer of 1000 kg/m^3)
+    reached the surface. Their melting models and volatile laws differ from this model's (not tuned). Measured:
+    2.28 and 1.62 Gyr, 35.6 and 38.6 m (the default law: 0.94 and 0.57 Gyr, 41.5 and 42.0 m)."""
+    for r in mars_retained:
+        s = r.summary()
+        area = 4.0 * np.pi * r.interior.radius ** 2
+        assert 1.0e9 <= s["outgassed_90pct_yr"] <= 2.5e9
+        assert 17.0 <= s["outgassed_h2o_kg"] / (1000.0 * area) <= 61.0
