@@ -6,7 +6,10 @@ scheme's reservoir and with the mixing-length scheme at 0.5-15 Earth masses; the
 minutes on one core. Stagnant-lid extraction comes in episodes: volcanism_end_yr is the end of the last one
 before 4.5 Gyr (see volcanic_episodes, volcanism_active_yr).
 
-    python examples/measure_trends.py [--quick]
+    python examples/measure_trends.py [--quick] [--retained=F]
+
+--retained=F runs every planet with volcanism.retained_melt_fraction = F (the melt fraction that weakens the
+solid mantle where melt is extracted; the default 1 keeps the batch melt fraction).
 """
 
 from __future__ import annotations
@@ -20,10 +23,13 @@ import meltzone
 
 warnings.simplefilter("ignore")
 QUICK = "--quick" in sys.argv
+RETAINED = [float(a.split("=", 1)[1]) for a in sys.argv if a.startswith("--retained=")]
 
 
 def run(mass, **sections):
     spec = {"planet": {"mass_earth": mass}}
+    if RETAINED:
+        spec["volcanism"] = {"retained_melt_fraction": RETAINED[-1]}
     for name, values in sections.items():
         spec.setdefault(name, {}).update(values)
     t0 = time.perf_counter()

@@ -85,4 +85,13 @@ VOLCANISM_KEYS = {
         doc="bulk solid/melt partition coefficient of U, Th and K (one value for all) in batch melting",
         source="U, Th and K are highly incompatible in peridotite, bulk D ~ 0.001-0.01 (common practice; e.g. "
                "Workman & Hart 2005, EPSL 231:53, from memory); limits: perfectly incompatible to no enrichment"),
+    "retained_melt_fraction": dict(
+        default=1.0, unit="1", lo=0.0, hi=1.0,
+        doc="melt fraction the solid mantle keeps where melt is extracted (after the rheological switch, no "
+            "deeper than max_extraction_pressure_gpa): the melt weakening exp(-alpha phi) of the upper boundary "
+            "layer's viscosity takes min(phi, this) instead of the batch melt fraction phi of the adiabat; 1 keeps "
+            "phi (at most convection.critical_melt_fraction), 0 no weakening where melt leaves",
+        source="melt connects and separates from its matrix at small porosity (McKenzie 1984, J. Petrol. 25:713, "
+               "compaction, abstract checked); ~0.1% from trace elements and U-series, more retained by seismic "
+               "data (Faul 2001, Nature 410:920, abstract checked; ~1-2%, from memory); limits: none to all"),
 }

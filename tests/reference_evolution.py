@@ -122,6 +122,8 @@ class Physics:
     conductivity_exponent: float
     reference_density: float  # the surface rock's
     rayleigh_viscosity_depth: str
+    retained_melt: float  # where melt is extracted the weakening melt fraction is at most this; 1: the batch phi
+    extraction_pressure: float  # [Pa] deepest melt extraction; 0 with volcanism off (no cap anywhere)
     start_age_s: float
     isotope_heat: tuple  # W per kg of mantle today (scaled), one per isotope
     isotope_decay: tuple  # 1/s
@@ -238,6 +240,8 @@ def build_inputs(spec, interior=None):
         lid_law=cv.lid_growth_law, density_properties=cv.mantle_properties == "density",
         expansivity_exponent=cv.expansivity_density_exponent, conductivity_exponent=cv.conductivity_density_exponent,
         reference_density=float(it.rho[-1]), rayleigh_viscosity_depth=cv.rayleigh_viscosity_depth,
+        retained_melt=spec.volcanism.retained_melt_fraction,
+        extraction_pressure=spec.volcanism.max_extraction_pressure_gpa * 1e9 if spec.volcanism.enabled == "on" else 0.0,
         start_age_s=spec.heating.start_age_gyr * 1e9 * YEAR,
         isotope_heat=tuple(scale * iso.element_ppm * 1e-6 * iso.isotope_fraction * iso.heat_w_per_kg
                            for iso in ISOTOPES),
@@ -542,11 +546,18 @@ class ReferenceModel:
         with the surface melt fraction ("surface"); the base of the upper boundary layer below the top of the
         convecting mantle (lid base or surface), on the adiabat, the layer's thickness by three fixed-point passes
         of Nu = a (Ra / Ra_cr)^beta ("boundary-layer-base"); half way down the convecting mantle ("mid-mantle").
-        Melt weakening by the batch melt fraction there, at most phi_c."""
+        Melt weakening by the batch melt fraction there, at most phi_c; where melt is extracted (volcanism on, no
+        deeper than its extraction pressure) at most the retained melt fraction, whose melt stays in the rock."""
         ph, m = self.ph, self.mantle
-        phi_c = ph.critical_melt_fraction
+
+        def weakening(phi, p):
+            cap = ph.critical_melt_fraction
+            if ph.retained_melt < 1.0 and p <= ph.extraction_pressure:
+                cap = min(cap, ph.retained_melt)
+            return min(phi, cap)
+
         if ph.rayleigh_viscosity_depth == "surface":
-            return viscosity(tu, ph.pressure_top, min(phi_surf, phi_c), ph)
+            return viscosity(tu, ph.pressure_top, weakening(phi_surf, ph.pressure_top), ph)
         d_top = max(d, LID_MIN) if ph.stagnant_lid else 0.0
         d_conv = max(self.depth - d_top, 0.05 * self.depth)
         mid = ph.rayleigh_viscosity_depth == "mid-mantle"
@@ -560,7 +571,8 @@ class ReferenceModel:
             phi = float((1.0 - w) * melt_fraction(np.array([t]), m, slice(j, j + 1))[0]
                         + w * melt_fraction(np.array([t]), m, slice(j + 1, j + 2))[0])
             alpha, _, kappa = properties(float(np.interp(r, m.r, m.density)), ph)
-            eta = (viscosity(t, float(np.interp(r, m.r, m.pressure)), min(phi, phi_c), ph)
+            p = float(np.interp(r, m.r, m.pressure))
+            eta = (viscosity(t, p, weakening(phi, p), ph)
                    * (kappa / ph.diffusivity) / (alpha / ph.expansivity))
             z = d_top + boundary_layer(d_conv, d_temp, eta, ph.nusselt_prefactor, ph.beta, ph)
         return eta

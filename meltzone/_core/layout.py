@@ -118,6 +118,11 @@ P_VENT, P_DEPLETE, P_CRUST_HEAT, P_D_HPE = range(N_PAR, N_PAR := len(PARAMETERS)
 # written before this parameter existed)
 PARAMETERS += ("basal_depression_reference_solidus",)
 P_BMO_TREF, = range(N_PAR, N_PAR := len(PARAMETERS))
+# volcanism, continued: switch (1 on) of the retained melt fraction, and that fraction: where melt is extracted
+# (volcanism on, after the rheological switch, no deeper than P_P_EXTRACT) the solid mantle's melt weakening takes
+# min(phi, retained) (physics.solid_viscosity); 0, the switch of files written before it existed, takes phi
+PARAMETERS += ("retained_melt", "retained_melt_fraction")
+P_RETAIN, P_PHI_RETAIN = range(N_PAR, N_PAR := len(PARAMETERS))
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",

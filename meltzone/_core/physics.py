@@ -20,8 +20,8 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
                      D_TS, G_F, G_R, G_W, ISO_DECAY, ISO_HEAT, P_A_RH, P_A_VISC,
                      P_ALPHA, P_ATMOSPHERE, P_BETA, P_BLEND, P_CC, P_CM, P_CORE_RADIUS, P_E_ACT,
                      P_ETA_LIQ, P_G_CMB, P_G_SURF, P_K, P_KAPPA, P_LATENT, P_LID_MIN,
-                     P_MANTLE_MASS, P_MELT_WEAK, P_NU_A, P_P_CMB, P_P_TOP, P_PHI_C, P_RA_CR, P_RADIUS,
-                     P_RHO_MANTLE, P_RHO_TOP,
+                     P_MANTLE_MASS, P_MELT_WEAK, P_NU_A, P_P_CMB, P_P_EXTRACT, P_P_TOP, P_PHI_C, P_PHI_RETAIN,
+                     P_RA_CR, P_RADIUS, P_RETAIN, P_RHO_MANTLE, P_RHO_TOP, P_VOLC,
                      P_STAGNANT, P_START_AGE, P_T_EQ, P_V_ACT, P_V_DECAY, REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID,
                      REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
 from .basal import basal_ocean, basal_top_energy
@@ -321,16 +321,30 @@ RA_POINT_PASSES = 3
 
 
 @njit
+def weakening_melt(phi, p, par):
+    """Melt fraction that weakens the solid mantle at batch melt fraction phi and pressure p [Pa]: at most phi_c;
+    where melt is extracted (volcanism on, no deeper than P_P_EXTRACT; the caller is past the rheological switch)
+    and P_RETAIN is on, at most the retained fraction P_PHI_RETAIN: melt leaves its source once it connects, at
+    porosities of ~0.1-2% (McKenzie 1984, J. Petrol. 25:713, compaction; Faul 2001, Nature 410:920, abstract
+    checked: geochemical models have it segregate at ~0.1%, seismic data suggest more is retained)."""
+    cap = par[P_PHI_C]
+    if par[P_RETAIN] > 0.5 and par[P_VOLC] > 0.5 and p <= par[P_P_EXTRACT]:
+        cap = min(cap, par[P_PHI_RETAIN])
+    return min(phi, cap)
+
+
+@njit
 def solid_viscosity(tu, d_lid, phi_surf, grid, par, law):
     """Viscosity [Pa s] of the solidified mantle's upper boundary layer, with alpha / kappa at the same point folded
     in (Ra ~ alpha / (kappa eta)); where, by P_RA_VISC (properties.py): the surface at T_u with the surface melt
     fraction (the rule before the switch existed); the base of the upper boundary layer below the top of the
     convecting mantle (the lid's base, or the surface), at the adiabat's temperature, pressure and batch melt
     fraction there, the layer's thickness by RA_POINT_PASSES fixed-point passes (this model's choice); or half
-    way down the convecting mantle. Melt weakening at most up to phi_c."""
+    way down the convecting mantle. Melt weakening at most up to phi_c, and where melt is extracted at most up to
+    the retained fraction (:func:`weakening_melt`)."""
     mode = par[P_RA_VISC]
     if mode < 0.5 + RA_VISC_SURFACE:
-        return viscosity(tu, par[P_P_TOP], min(phi_surf, par[P_PHI_C]), par)
+        return viscosity(tu, par[P_P_TOP], weakening_melt(phi_surf, par[P_P_TOP], par), par)
     d_top = max(d_lid, par[P_LID_MIN]) if par[P_STAGNANT] > 0.5 else 0.0
     d_conv = max(par[P_RADIUS] - par[P_CORE_RADIUS] - d_top, 0.05 * (par[P_RADIUS] - par[P_CORE_RADIUS]))
     mid = mode > RA_VISC_MID - 0.5
@@ -342,8 +356,8 @@ def solid_viscosity(tu, d_lid, phi_surf, grid, par, law):
         t = tu * (grid[G_F, j] + s * (grid[G_F, j + 1] - grid[G_F, j]))
         phi = (1.0 - s) * node_melt(t, grid, j, law) + s * node_melt(t, grid, j + 1, law)
         fa, fk, fkap = property_factors(grid[G_RHO, j] + s * (grid[G_RHO, j + 1] - grid[G_RHO, j]), par)
-        eta = viscosity(t, grid[G_P, j] + s * (grid[G_P, j + 1] - grid[G_P, j]), min(phi, par[P_PHI_C]),
-                        par) * fkap / fa
+        p = grid[G_P, j] + s * (grid[G_P, j + 1] - grid[G_P, j])
+        eta = viscosity(t, p, weakening_melt(phi, p, par), par) * fkap / fa
         ra = par[P_ALPHA] * par[P_RHO_MANTLE] * par[P_G_SURF] * d_conv ** 3 * max(d_t, 1e-6) / (par[P_KAPPA] * eta)
         z = d_top + top_layer_thickness(d_conv, ra, YES, par)
     return eta

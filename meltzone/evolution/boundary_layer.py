@@ -355,6 +355,8 @@ def build_inputs(spec, interior, curves):
     par[k.P_DEPLETE] = 1.0 if vc.melt_depletion == "on" else 0.0
     par[k.P_CRUST_HEAT] = 1.0 if vc.crust_heat_sources == "on" else 0.0
     par[k.P_D_HPE] = vc.heat_source_partition_coefficient
+    par[k.P_RETAIN] = 1.0 if vc.retained_melt_fraction < 1.0 else 0.0
+    par[k.P_PHI_RETAIN] = vc.retained_melt_fraction
     iso = isotope_table(spec.heating.radiogenic_scale)
     return k.KernelInputs(grid, core, np.ascontiguousarray(iso, dtype=np.float64), par, int(curves["law_code"]))
 
