@@ -314,7 +314,8 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     surface and the crust's heat that leaves through it (both added to the heat out, so the budget still
     closes; the crust's heat joins the surface heat flow), the lid thinned by the crust's heat (never below its
     minimum: :func:`meltzone._core.lid.floored_rate`), plus the crust,
-    the extracted and outgassed volatiles and the crust's share of the heat sources."""
+    the extracted and outgassed volatiles and the crust's share of the heat sources; on a planet whose water is
+    all lost, the escape of the outgassed water (:func:`dry_escape`)."""
     energy_rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy)
     volcanism(work[0], y, diag, grid, par, law, t >= t_switch)
     q = diag[D_QVOLC] + diag[D_QS_CRUST] * 4.0 * math.pi * par[P_RADIUS] ** 2
