@@ -419,3 +419,35 @@ def test_mixing_length_cells_in_contact_with_the_atmosphere():
     mush_top = [0.5, 0.5, 0.0, 0.0, 0.1, 0.3, 0.6, 0.42]
     expected = x * x * (3.0 - 2.0 * x) * (0.1 * w[4] + 0.3 * w[5] + 0.6 * w[6] + 0.42 * w[7])
     assert melt_mass(mush_top) == pytest.approx(expected, rel=1e-12)
+
+
+def test_dry_escape_keeps_pace_with_outgassing():
+    """A desiccated planet (water left w = inventory + outgassed - lost <= 0) whose volcanoes outgas water: the
+    escape takes it as fast as it comes (the sliding solution of the escape's jump at w = 0; Filippov 1988,
+    from memory), so the water left stays put (dw/dt = 0 at w = 0), never faster than energy-limited escape
+    (Watson et al. 1981, tests/reference_surface.py), and makes up an overshoot w < 0 at -w / DRY_RELAX_TIME;
+    with water left the rate of the atmosphere applies (-1 returned)."""
+    from meltzone._core.radiation import escape_rate
+    from meltzone._core.volcanism import DRY_RELAX_TIME, dry_escape
+
+    it = meltzone.build_interior(mass_earth=1.0)
+    spec = PlanetSpec(mass_msun=1.0, atmosphere="steam", semi_major_axis_au=0.8, escape_efficiency=0.2)
+    par = np.zeros(k.N_PAR)
+    star.fill_parameters(spec, it, par)
+    par[k.P_H2O_TOTAL] = 1e21
+    t = 1e9 * 3.15576e7 - par[k.P_STAR_AGE0]
+    limit = escape_rate(t, 1e20, 0.0, par)
+    l_ref = xuv(lambda a: float(star.bolometric_luminosity(1.0, a)), 1e9)
+    assert limit == pytest.approx(water_escape_rate(0.2, it.radius, it.mass, l_ref, 0.8), rel=1e-10)
+    y = np.zeros(k.N_Y)
+    y[k.Y_OG_H2O] = 5e19
+    y[k.Y_WATER] = 1.05e21  # all of it lost: w = 0
+    supply = 0.5 * limit
+    assert dry_escape(t, y, par, supply) == pytest.approx(supply, rel=1e-12)  # w stays 0
+    assert dry_escape(t, y, par, 3.0 * limit) == pytest.approx(limit, rel=1e-12)  # beyond the limit: w grows
+    y[k.Y_WATER] = 1.05e21 + 1e15  # an overshoot of 1e15 kg is made up
+    assert dry_escape(t, y, par, supply) == pytest.approx(supply - 1e15 / DRY_RELAX_TIME, rel=1e-12)
+    y[k.Y_WATER] = 1.05e21 + 1e30
+    assert dry_escape(t, y, par, supply) == 0.0  # never negative
+    y[k.Y_WATER] = 1.05e21 - 1e15  # water left: the atmosphere's rate
+    assert dry_escape(t, y, par, supply) == -1.0

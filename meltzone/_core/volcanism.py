@@ -20,6 +20,8 @@ from .layout import (D_ATM_CO2, D_ATM_H2O, D_DCRUST, D_DELTA_U, D_DHPE, D_DLID, 
                      P_LID_MIN, P_MANTLE_MASS, P_P_ECLOGITE, P_P_EXTRACT, P_RADIUS, P_RHO_CRUST, P_RHO_TOP, P_RIDGE,
                      P_STAGNANT, P_STEAM, P_VENT, P_VOLC, P_X_CO2, P_X_H2O, REGIME_MAGMA_OCEAN, Y_CRUST, Y_EM, Y_HPE,
                      Y_LID, Y_OG_CO2, Y_OG_H2O, Y_OUT, Y_XCO2, Y_XH2O)
+from .layout import P_H2O_TOTAL, Y_WATER
+from .radiation import escape_rate
 from .physics import GREY_H2O_COEFF, GREY_H2O_EXPONENT, isentropic_melt, node_melt, smoothstep
 from .physics import rhs as energy_rhs
 
@@ -30,6 +32,10 @@ CRUST_CAP_WIDTH = 0.05
 #: Kennedy 1991, as used by Lebrun et al. 2013, JGR Planets 118:1155; from memory; the grey atmosphere's law).
 #: H2O: X = 6.8e-8 P^0.7 (GREY_H2O_COEFF, GREY_H2O_EXPONENT; the same source)
 VENT_CO2_COEFF = 4.4e-12
+#: Time over which the escape of a desiccated planet's outgassed water makes up an overshoot of the water lost
+#: beyond the water there was [s] (:func:`dry_escape`; this model's choice: a numerical relaxation, long
+#: against the longest step, run.max_step, so that it never limits an explicit step)
+DRY_RELAX_TIME = 1.0e8 * 3.15576e7
 #: The diagnostics :func:`volcanism` fills
 OUTPUTS = (D_MPROD, D_QVOLC, D_DCRUST, D_XH2O, D_XCO2, D_UCONV, D_OG_H2O, D_OG_CO2, D_DHPE, D_QCRUST, D_QS_CRUST,
            D_DLID_CRUST)
@@ -308,7 +314,8 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     surface and the crust's heat that leaves through it (both added to the heat out, so the budget still
     closes; the crust's heat joins the surface heat flow), the lid thinned by the crust's heat (never below its
     minimum: :func:`meltzone._core.lid.floored_rate`), plus the crust,
-    the extracted and outgassed volatiles and the crust's share of the heat sources."""
+    the extracted and outgassed volatiles and the crust's share of the heat sources; on a planet whose water is
+    all lost, the escape of the outgassed water (:func:`dry_escape`)."""
     energy_rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy)
     volcanism(work[0], y, diag, grid, par, law, t >= t_switch)
     q = diag[D_QVOLC] + diag[D_QS_CRUST] * 4.0 * math.pi * par[P_RADIUS] ** 2
@@ -323,6 +330,28 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     dy[Y_OG_H2O] = diag[D_OG_H2O]
     dy[Y_OG_CO2] = diag[D_OG_CO2]
     dy[Y_HPE] = diag[D_DHPE]
+    if diag[D_OG_H2O] > 0.0 and (par[P_STEAM] > 0.5 or par[P_ATMOSPHERE] > 0.5):
+        dry = dry_escape(t, y, par, diag[D_OG_H2O])
+        if dry >= 0.0:
+            dy[Y_WATER] = dry
+
+
+@njit
+def dry_escape(t, y, par, supply):
+    """Water lost to space [kg/s] by a planet whose water is all lost (water left w = inventory + outgassed - lost
+    <= 0) while the volcanoes outgas ``supply`` [kg/s] of it: energy-limited escape removes the vapour as fast as
+    it comes, up to its own limit (:func:`meltzone._core.radiation.escape_rate`), less w / DRY_RELAX_TIME (an
+    overshoot w < 0 of the step that desiccated the planet is made up), never negative. -1 where the water
+    left is positive (the rate of :func:`meltzone._core.physics.diagnose` applies). Without it the rate jumped from
+    0 (w <= 0) to the full limit (w > 0): the water left, refilled by outgassing, crossed 0 every few kyr, and a
+    trace of vapour in one stage of a step moved the lid's rate by ~4e-11 m/s; the error estimates then held a
+    stagnant-lid planet's steps at 1-10 kyr (measured: 11,000-35,000 steps to 4.5 Gyr). The escape that keeps
+    pace with the supply is the sliding solution of that jump (Filippov 1988, Differential Equations with
+    Discontinuous Righthand Sides, Kluwer; from memory), so the atmosphere stays dry as before."""
+    water = par[P_H2O_TOTAL] + y[Y_OG_H2O] - y[Y_WATER]
+    if water > 0.0:
+        return -1.0
+    return max(min(escape_rate(t, 1.0, 0.0, par), supply) + water / DRY_RELAX_TIME, 0.0)
 
 
 @njit(inline="always")
