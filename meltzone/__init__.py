@@ -20,7 +20,9 @@ _LAZY = {
     "Result": ("meltzone.results", "Result"),
     "load": ("meltzone.results", "load"),
     "write": ("meltzone.results", "write"),
-    "sweep": ("meltzone.sweep", "run_sweep"),
+    # the subpackage itself (it used to be an alias of run_sweep, which hid the subpackage's other names such as
+    # meltzone.sweep.infer_core_fraction until something imported the subpackage)
+    "sweep": ("meltzone.sweep", None),
     "run_sweep": ("meltzone.sweep", "run_sweep"),
 }
 
@@ -32,7 +34,7 @@ def __getattr__(name: str):
         module, attr = _LAZY[name]
     except KeyError:
         raise AttributeError(f"module 'meltzone' has no attribute {name!r}") from None
-    value = getattr(import_module(module), attr)
+    value = import_module(module) if attr is None else getattr(import_module(module), attr)
     globals()[name] = value
     return value
 

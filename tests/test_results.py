@@ -353,6 +353,19 @@ def test_lazy_public_api():
     assert meltzone.evolve is evolve
 
 
+def test_lazy_sweep_is_the_subpackage():
+    """In a fresh interpreter ``meltzone.sweep`` is the subpackage, whose names the README quotes
+    (meltzone.sweep.infer_core_fraction); it was an alias of run_sweep that hid them."""
+    import subprocess
+    import sys
+
+    code = ("import meltzone, types; s = meltzone.sweep; "
+            "assert isinstance(s, types.ModuleType) and s.run_sweep is meltzone.run_sweep; "
+            "from meltzone.interior import infer_core_fraction; assert s.infer_core_fraction is infer_core_fraction")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
+    assert done.returncode == 0, done.stderr
+
+
 # ---------------------------------------------------------------- notebook use
 def test_repr_is_short(run):
     """In a notebook a Result shows one line (common practice: a repr is a summary, not the data)."""
