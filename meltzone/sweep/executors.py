@@ -158,7 +158,8 @@ class DaskBackend:
             try:
                 import distributed  # noqa: F401
             except ImportError:
-                raise ConfigError("Dask executors need dask.distributed: pip install 'meltzone[cluster]'") from None
+                raise ConfigError("Dask executors need dask.distributed: pip install \".[cluster]\" in the cloned "
+                                  "folder") from None
             from distributed import Client
 
             if scheduler is not None:
