@@ -1,6 +1,7 @@
 """Trends with planet mass that the README quotes (model estimates), measured with the installed meltzone.
 
-Prints one JSON object: the two schemes at 1, 5 and 10 Earth masses; stagnant-lid planets of 1-12 Earth masses
+Prints one JSON object: the two schemes at 1, 5 and 10 Earth masses, mobile and stagnant lid (with the surface
+heat flow at 4.5 Gyr); stagnant-lid planets of 1-12 Earth masses
 at 4.5 Gyr (magma-ocean end, volcanism, crust, outgassing); the basal magma ocean with the boundary-layer
 scheme's reservoir and with the mixing-length scheme at 0.5-15 Earth masses; the Earth hindcast. Takes a few
 minutes on one core. Stagnant-lid extraction comes in episodes: volcanism_end_yr is the end of the last one
@@ -18,6 +19,8 @@ import json
 import sys
 import time
 import warnings
+
+import numpy as np
 
 import meltzone
 
@@ -42,15 +45,25 @@ def basal(s):
     return None if b is None else {k: b[k] for k in ("start_yr", "end_yr", "max_thickness_m")}
 
 
+def heat_flow_tw_at(result, t_gyr):
+    """Surface heat flow [TW] at t_gyr (linear between recorded times; the volcanic heat pipe included)."""
+    h = result.history
+    q = h["surface_heat_flow"] + (h["volcanic_heat_flow"] if "volcanic_heat_flow" in h else 0.0)
+    return float(np.interp(t_gyr * 1e9 * 3.15576e7, h.time, q) / 1e12)
+
+
 def schemes():
     rows = []
-    for mass in (1.0, 5.0, 10.0):
-        for scheme in ("boundary-layer", "mixing-length"):
-            s, dt, _ = run(mass, convection={"scheme": scheme}, run={"end_time_gyr": 10.0})
-            rows.append({"mass_earth": mass, "scheme": scheme, "magma_ocean_end_yr": s["magma_ocean_end_yr"],
-                         "surface_magma_ocean_end_yr": s.get("surface_magma_ocean_end_yr"),
-                         "rheological_transition_yr": s["rheological_transition_yr"], "basal_layer": basal(s),
-                         "last_melt_yr": s["last_melt_yr"], "run_time_s": round(dt, 2)})
+    for regime in ("mobile-lid", "stagnant-lid"):
+        for mass in (1.0, 5.0, 10.0):
+            for scheme in ("boundary-layer", "mixing-length"):
+                s, dt, r = run(mass, convection={"scheme": scheme, "regime": regime}, run={"end_time_gyr": 10.0})
+                rows.append({"mass_earth": mass, "regime": regime, "scheme": scheme,
+                             "magma_ocean_end_yr": s["magma_ocean_end_yr"],
+                             "surface_magma_ocean_end_yr": s.get("surface_magma_ocean_end_yr"),
+                             "rheological_transition_yr": s["rheological_transition_yr"], "basal_layer": basal(s),
+                             "last_melt_yr": s["last_melt_yr"], "heat_flow_4p5_gyr_tw": heat_flow_tw_at(r, 4.5),
+                             "run_time_s": round(dt, 2)})
     return rows
 
 

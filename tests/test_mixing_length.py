@@ -229,6 +229,30 @@ def test_grid_convergence_of_the_surface_magma_ocean_end_at_five_earth_masses():
     assert fine == pytest.approx(coarse, rel=0.02)
 
 
+def _heat_loss_tw(result):
+    """Surface heat flow plus the volcanic heat pipe at the end of the run [TW]."""
+    h = result.history
+    pipe = h["volcanic_heat_flow"][-1] if "volcanic_heat_flow" in h.series else 0.0
+    return (h["surface_heat_flow"][-1] + pipe) / 1e12
+
+
+@pytest.mark.xfail(strict=True, reason="measured at 1 M_E, 64 nodes, 4.5 Gyr: stagnant 33.5 TW (a 115 km lid) against "
+                   "mobile 31.0 TW, ratio 1.08 (5 M_E: 1.01; the boundary-layer scheme 0.33 and 0.11). The conductive "
+                   "top is ~100 km thick in both regimes, so the mixing length's taper to the surface (l = depth, "
+                   "kappa_h ~ l^4) sets it, not the rheology; probable cause, not tested: the layer under the lid "
+                   "convects with l measured from the surface, not from the lid's base")
+def test_stagnant_lid_loses_heat_more_slowly_than_a_mobile_lid():
+    """A stagnant lid throttles a planet's heat loss: its flux passes through the rheological sublayer under the lid
+    (temperature scale ~ R T_i^2 / E), so at a similar interior temperature it carries a fraction of what a mobile
+    lid carries (Solomatov & Moresi 2000, JGR 105:21795; the scaling from memory). The boundary-layer scheme
+    gives a third of the mobile lid's loss at 1 M_E after 4.5 Gyr. Asserted: the mixing-length scheme's stagnant
+    lid loses at most 0.7 of what its mobile lid loses (this project's tolerance, generous for the hotter
+    interior a stagnant lid keeps)."""
+    stagnant = evolve(spec_of(1.0, 64, 4.5, convection={"scheme": "mixing-length", "regime": "stagnant-lid"}))
+    mobile = evolve(spec_of(1.0, 64, 4.5, convection={"scheme": "mixing-length", "regime": "mobile-lid"}))
+    assert _heat_loss_tw(stagnant) < 0.7 * _heat_loss_tw(mobile)
+
+
 def test_crystallisation_direction_and_time_as_published():
     """Monteux, Andrault & Samuel 2016 (EPSL 448:140; abstract read): a fully molten Earth mantle with the
     melting curves this project's default model takes from that study solidifies from the bottom up, the
