@@ -127,22 +127,34 @@ def _phase_boundaries(ax, result, label=True, window=None):
                     fontsize=6.5, color="0.25")
 
 
-def _pressure_axis(ax, result):
-    """A right-hand axis with the pressure [GPa] of the depth on the left (y) axis."""
-    from matplotlib.ticker import MaxNLocator
+def _pressure_axis(ax, result, depth_scale=None):
+    """A right-hand axis with the pressure [GPa] of the depth on the left (y) axis: a twin axis on the same depth
+    scale (``depth_scale``: the (forward, inverse) functions of the left axis's function scale, None for a linear
+    one), its ticks placed at the depths of round pressures. (A secondary axis with depth -> pressure functions
+    placed its ticks as on a linear depth axis, so on the square-root depth scale of the profiles its 150 GPa
+    sat at ~420 km instead of ~1,400 km.)"""
+    from matplotlib.ticker import MaxNLocator, NullLocator
 
     from .constants import GPA
 
     it = result.interior
     depth = (it.radius - it.r[it.mantle])[::-1] / 1e3  # increasing
     p = it.P[it.mantle][::-1] / GPA
-    sec = ax.secondary_yaxis("right", functions=(lambda d: np.interp(d, depth, p),
-                                                 lambda q: np.interp(q, p, depth)))
-    lo, hi = sorted(ax.get_ylim())
+    lim = ax.get_ylim()
+    lo, hi = sorted(lim)
     p_lo, p_hi = np.interp([lo, hi], depth, p)
     ticks = MaxNLocator(6).tick_values(p_lo, p_hi)
     slack = 1e-3 * (p_hi - p_lo)
-    sec.set_yticks(ticks[(ticks >= p_lo - slack) & (ticks <= p_hi + slack)])
+    ticks = ticks[(ticks >= p_lo - slack) & (ticks <= p_hi + slack)]
+    labels_left = ax.yaxis.majorTicks[0].label1.get_visible()
+    sec = ax.twinx()
+    ax.tick_params(axis="y", labelleft=labels_left)  # twinx moves the host's ticks left and shows their labels
+    sec.tick_params(axis="x", which="both", bottom=False, top=False, labelbottom=False, labeltop=False)
+    if depth_scale is not None:
+        sec.set_yscale("function", functions=depth_scale)
+    sec.set_ylim(lim)
+    sec.set_yticks(np.interp(ticks, p, depth), [f"{t:g}" for t in ticks])
+    sec.yaxis.set_minor_locator(NullLocator())
     sec.set_ylabel("pressure [GPa]")
     return sec
 
@@ -365,11 +377,15 @@ def profile_times(result, n: int = 5) -> list[tuple[float, str]]:
     return sorted(kept)
 
 
+#: the (forward, inverse) functions of the square-root depth scale
+SQRT_DEPTH = (lambda d: np.sqrt(np.clip(d, 0.0, None)), lambda s: np.square(s))
+
+
 def _sqrt_depth_axis(ax, cmb: float) -> None:
     """A depth axis [km] on a square-root scale with round ticks (the top 10% of the mantle takes ~30% of it)."""
     from matplotlib.ticker import FixedLocator
 
-    ax.set_yscale("function", functions=(lambda d: np.sqrt(np.clip(d, 0.0, None)), lambda s: np.square(s)))
+    ax.set_yscale("function", functions=SQRT_DEPTH)
     ticks = [d for d in (0, 50, 100, 200, 400, 700, 1000, 1500, 2000, 3000, 4000, 5000, 6000, 8000)
              if d <= cmb * 0.97] + [round(cmb)]
     ax.yaxis.set_major_locator(FixedLocator(ticks))
@@ -443,7 +459,7 @@ def build_profiles(result, times_yr=None, n: int = 5):
     handles.insert(2, Patch(color=OKABE_ITO["orange"], alpha=0.3, label="partial melting (solidus to liquidus)"))
     if flagged:
         handles.append(Patch(color="0.5", alpha=0.25, label="melting curves extrapolated"))
-    _pressure_axis(axes[0], result)
+    _pressure_axis(axes[0], result, SQRT_DEPTH)
     fig.legend(handles=handles, loc="outside lower left", ncol=3, fontsize=7, frameon=False)
     fig.suptitle(f"{result.spec.planet.name}: temperature profiles", fontsize=11)
     add_note(fig)

@@ -85,6 +85,29 @@ def test_run_figures_overlap_and_units(runs, name):
         _check_hygiene(build(runs[0][name]))
 
 
+@pytest.mark.parametrize("build", [plot.build_profiles, plot.build_meltmap])
+def test_pressure_axis_reads_the_interiors_pressure_at_each_depth(runs, build):
+    """Each tick of the right-hand pressure axis sits, on the screen, at the depth where the run's own interior has
+    that pressure (1% of the mantle's pressure range; the structure is the oracle). It failed on the profiles'
+    square-root depth scale, where a secondary axis placed 150 GPa at ~420 km instead of ~1,400 km."""
+    r = runs[0]["super"]
+    it = r.interior
+    depth = (it.radius - it.r[it.mantle])[::-1] / 1e3
+    p = it.P[it.mantle][::-1] / 1e9
+    fig = build(r)
+    fig.canvas.draw()
+    twins = [ax for ax in fig.axes if ax.get_ylabel() == "pressure [GPa]"]
+    assert len(twins) == 1
+    sec = twins[0]
+    host = next(ax for ax in fig.axes if ax is not sec and ax.bbox.bounds == sec.bbox.bounds)
+    ticks = [(pos, float(t.get_text())) for pos, t in zip(sec.get_yticks(), sec.get_yticklabels()) if t.get_text()]
+    assert len(ticks) >= 3
+    for pos, pressure in ticks:
+        y_screen = sec.transData.transform((0.0, pos))[1]
+        d = host.transData.inverted().transform((0.0, y_screen))[1]  # the depth the host axis shows there
+        assert np.interp(d, depth, p) == pytest.approx(pressure, abs=0.01 * p[-1])
+
+
 def test_thin_basal_layer_gets_a_zoom_panel_and_a_labelled_minimum_width(runs):
     """The basal layer of the bare run is < 1% of the mantle: a zoom panel above the CMB in the melt map and
     the profiles, and its true thickness written on the melt map."""
