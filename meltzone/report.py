@@ -18,6 +18,11 @@ from .constants import EARTH_MASS, EARTH_RADIUS, GPA, YEAR
 from .results import MODEL_NOTE
 
 
+def is_duration(key: str) -> bool:
+    """Whether a summary key holds a time [yr] (``..._yr``), not a rate per year (``..._km3_yr``)."""
+    return key.endswith("_yr") and not key.endswith("_km3_yr")
+
+
 def format_years(years: float) -> str:
     """A model time in years as a short string with the unit: 250 yr, 3.2 kyr, 45 Myr, 4.5 Gyr."""
     if years is None or not np.isfinite(years):
@@ -450,7 +455,7 @@ def _cell(key: str, value) -> str:
         return "-"
     if isinstance(value, bool):
         return "yes" if value else "no"
-    if key.endswith("_yr") and _is_number(value):
+    if is_duration(key) and _is_number(value):
         return format_years(value)
     if _is_number(value):
         return f"{value:.4g}"
@@ -462,7 +467,7 @@ def _difference(key: str, diff) -> str:
         return ""
     if diff == 0:
         return " (=)"
-    if key.endswith("_yr"):
+    if is_duration(key):
         return f" ({'+' if diff > 0 else '-'}{format_years(abs(diff))})"
     return f" ({diff:+.3g})"
 

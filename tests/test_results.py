@@ -386,3 +386,14 @@ def test_to_xarray_groups_with_units(run):
     assert all("units" in hist[v].attrs for v in hist.data_vars)
     assert set(tree.children) >= {"history", "layers", "events", "structure", "flags"}
     assert tree["events"].to_dataset().sizes["event"] == len(run.tracked()[1])
+
+
+def test_compare_shows_rates_per_year_as_rates_and_times_as_times():
+    """`meltzone compare` formats ``..._yr`` keys as durations but the melt-production rates (``..._km3_yr``,
+    km^3 per year) as numbers (a user trial found 17,415 km^3/yr printed as "17.4 kyr")."""
+    from meltzone.report import _cell, _difference, is_duration
+
+    assert not is_duration("peak_melt_production_km3_yr") and is_duration("volcanism_active_yr")
+    assert _cell("peak_melt_production_km3_yr", 17415.0) == "1.742e+04"
+    assert "yr" not in _difference("final_melt_production_km3_yr", -16900.0)
+    assert _cell("magma_ocean_end_yr", 1200.0).endswith("kyr")

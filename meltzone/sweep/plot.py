@@ -12,6 +12,7 @@ import tomllib
 import numpy as np
 
 from ..errors import MeltzoneError
+from ..report import is_duration
 from .file import read_sweep
 from .stats import flag_names, input_names
 from .worker import METRICS, OK
@@ -112,7 +113,7 @@ def _lifetime(fig, ax, data, x, y, outcome, bins):
     cv, _ = _column_or_base(data, y)
     t = np.asarray(c[outcome], dtype=np.float64)
     persists = ok & (c["magma_ocean_persists"] == 1) if outcome == "magma_ocean_end_yr" else np.zeros_like(ok)
-    has = ok & np.isfinite(t) & np.isfinite(xv) & ((t > 0) if outcome.endswith("_yr") else True)
+    has = ok & np.isfinite(t) & np.isfinite(xv) & ((t > 0) if is_duration(outcome) else True)
     if not np.any(has | persists):
         raise MeltzoneError(f"no case of this sweep has a value of {outcome!r} to plot")
     lo_c, hi_c = np.nanmin(cv[ok]), np.nanmax(cv[ok])
