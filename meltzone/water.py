@@ -5,8 +5,9 @@ Definitions (this model's, after Hamano et al. 2013: type I planets solidify wit
 their water; type II planets, inside a critical distance, keep their magma ocean until hydrodynamic escape has
 desiccated them; abstract checked): with a host star, a water inventory and a magma ocean at the start, the
 type is ``"II"`` when at least half of the water has been lost to space by the time the surface magma ocean
-ends (the summary's ``magma_ocean_end_yr``, whatever definition of the end it uses), ``"I"`` when less has; null when the magma ocean outlives the run with less than half lost (undecided),
-or without a star, water or magma ocean. Reads only the History (no kernel).
+ends (the summary's ``magma_ocean_end_yr``, whatever definition of the end it uses), ``"I"`` when less has;
+null when the magma ocean outlives the run with less than half lost (undecided), or without a star, water or
+magma ocean. Reads only the History (no kernel).
 """
 
 from __future__ import annotations
@@ -21,7 +22,8 @@ TYPE_II_LOST_FRACTION = 0.5
 
 def water_outcomes(result, magma_ocean_end_s) -> dict:
     """``water_ocean_formed_yr`` (first step with condensed water, null if never), ``water_ocean_kg`` (at the
-    end), ``water_lost_kg`` (to space by the end), ``solidification_type`` ("I", "II" or null)."""
+    end), ``water_lost_kg`` (to space by the end, volcanically outgassed water included), ``solidification_type``
+    ("I", "II" or null)."""
     h = result.history
     spec = result.spec
     ocean = h["water_ocean"] if "water_ocean" in h else np.zeros_like(h.time)
@@ -39,6 +41,9 @@ def water_outcomes(result, magma_ocean_end_s) -> dict:
     return {
         "water_ocean_formed_yr": float(h.time[formed[0]] / YEAR) if formed.size else None,
         "water_ocean_kg": float(ocean[-1]),
-        "water_lost_kg": float(min(lost[-1], inventory)),
+        # the water there was to lose: the inventory and what the volcanoes outgassed from the mantle's own
+        # water (capped there only against the integrator's round-off; capping at the inventory alone dropped
+        # the outgassed water that escaped later: 9.1e19 kg of the red-dwarf example's 2.89e21 kg)
+        "water_lost_kg": float(min(lost[-1], inventory + (h["outgassed_h2o"][-1] if "outgassed_h2o" in h else 0.0))),
         "solidification_type": kind,
     }
