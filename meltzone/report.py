@@ -183,12 +183,15 @@ def _magma_ocean_text(s: dict) -> str:
         text = f"ends after {format_years(mo)}"
         surface = s.get("surface_magma_ocean_end_yr")
         if surface is not None and surface != mo:
-            text += f" (< 1% of the mantle above the rheological transition; the top reached it after " \
-                    f"{format_years(surface)})"
+            text += f" (< 1% of the mantle above the rheological transition; the top of the convecting mantle, " \
+                    f"taken to the surface along its adiabat, left it after {format_years(surface)})"
     if s.get("magma_ocean_reformed_yr") is not None:
         again = "forms" if not s["magma_ocean_at_start"] else "forms again"
         text += (f"; {again} at {format_years(s['magma_ocean_reformed_yr'])} (the mantle warmed past the "
                  "rheological transition)" + (" and is present at the end" if s["magma_ocean_at_end"] else ""))
+    again_top = s.get("surface_magma_ocean_reformed_yr")
+    if again_top is not None and again_top != s.get("magma_ocean_reformed_yr"):
+        text += f"; by the top of the mantle alone it formed again at {format_years(again_top)}"
     if s.get("surface_above_solidus_at_end"):
         molten = s.get("surface_molten_depth_at_end_m")
         text += (f"; surface above the solidus at the end, melt to {km(s['surface_melt_depth_at_end_m'])} km"
@@ -211,7 +214,7 @@ def _crystallisation_text(s: dict) -> str:
     depth = s.get("first_crystal_depth_m")
     rheo = s.get("rheological_transition_yr")
     first = "none fully molten at the start" if depth is None else f"starts at {km(depth)} km depth"
-    whole = ("the whole mantle below the rheological transition after " + format_years(rheo)) if rheo is not None \
+    whole = ("every mantle node below the critical melt fraction after " + format_years(rheo)) if rheo is not None \
         else "some of the mantle above the rheological transition at the end" if (
             s["magma_ocean_at_end"] or s["magma_ocean_at_start"]) \
         else "no part above the rheological transition at the start"
