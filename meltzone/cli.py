@@ -92,6 +92,13 @@ def main():
 
 
 # ---------------------------------------------------------------- interior
+def _no_empty_path(ctx, param, value):
+    """Click callback: an empty or blank path is a mistake, not a request for the default file."""
+    if value is not None and not str(value).strip():
+        raise click.BadParameter("an empty path; leave the option out for the default")
+    return value
+
+
 def _planet_options(func):
     func = click.option("--set", "overrides", multiple=True, metavar="SECTION.KEY=VALUE",
                         help="Override one config key (repeatable), e.g. --set interior.mantle_nodes=512.")(func)
@@ -284,7 +291,7 @@ def _progress_callback(end_time_s: float, min_wall_s: float = 1.0):
 
 @main.command(epilog=BASE_PLANET_RULE)
 @_planet_options
-@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None,
+@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None, callback=_no_empty_path,
               help="Results file (HDF5). Default: <config stem>.h5, or meltzone-demo.h5 for the demo planet.")
 @click.option("--json", "as_json", is_flag=True, help="Print the run's summary as JSON (SI, times in years).")
 @_user_errors
@@ -360,7 +367,7 @@ def layers_command(path, as_json):
               help="Run files: meltmap (melt fraction against time and depth), profiles (temperature profiles) or "
                    "history (time series). Sweep files: lifetime (an outcome metric against an input) or probability "
                    "(the fraction of cases with a yes/no outcome over two inputs).")
-@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None,
+@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None, callback=_no_empty_path,
               help="Figure file, .png, .pdf or .svg by its suffix. Default: <FILE stem>-<figure>.png.")
 @click.option("--outcome", default=None, metavar="KEY",
               help="Sweep files: the outcome drawn (probability: a yes/no outcome; lifetime: a metric).")
@@ -397,7 +404,8 @@ def plot_command(path, figure, output, outcome, x_key, y_key):
 @click.option("--example", is_flag=True, help="Print a commented TOML config with every key, unit and default.")
 @_user_errors
 def config(example):
-    """Print configuration help (every key, its unit and its default)."""
+    """Configuration help: with --example, every key with its unit, allowed values and default, as a commented
+    TOML file to start from."""
     from .config import PlanetSpec
 
     if not example:
@@ -409,7 +417,8 @@ def config(example):
 
 @main.command("sweep")
 @click.argument("spec", required=False, type=click.Path(dir_okay=False))
-@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None, help="Sweep file to write (HDF5).")
+@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None, callback=_no_empty_path,
+              help="Sweep file to write (HDF5).")
 @click.option("--workers", type=click.IntRange(min=1), default=None, metavar="N",
               help="Local process pool of N workers (default: one per core).")
 @click.option("--dask-local", "dask_local", type=click.IntRange(min=1), default=None, metavar="N",
@@ -460,7 +469,7 @@ def sweep_command(spec, output, workers, dask_local, dashboard, scheduler, resum
 
 @main.command("compare")
 @click.argument("paths", nargs=-1, required=True, type=click.Path(dir_okay=False))
-@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None,
+@click.option("-o", "--output", type=click.Path(dir_okay=False), default=None, callback=_no_empty_path,
               help="Also draw the runs' melt maps and histories on shared axes to this file (.png, .pdf, .svg).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object (SI, times in years).")
 @_user_errors

@@ -50,7 +50,7 @@ from .config_star import ESCAPE_KEYS, ORBIT_KEYS, STAR_KEYS, check_star
 
 SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
     "planet": {
-        "name": Key("unnamed planet", "", "label used in reports and files", max_len=200,
+        "name": Key("unnamed planet", "", "label used in reports and files", max_len=200, nonblank=True,
             source="this model's choice (a label; stored as an HDF5 string attribute)"),
         "mass_earth": Key(1.0, "Earth masses", "planet mass (calibrated range 0.5-15; a warning outside it)",
                           lo=MASS_LIMITS_EARTH[0], hi=MASS_LIMITS_EARTH[1],
@@ -305,6 +305,8 @@ def _check_text(where: str, key: Key, value: str) -> str:
                               f"unpaired surrogate; must be {key.allowed()}")
     if key.max_len is not None and len(value) > key.max_len:
         raise ConfigError(f"{where} = {_show(value)}: {len(value)} characters; must be {key.allowed()}")
+    if key.nonblank and not value.strip():
+        raise ConfigError(f"{where} = {_show(value)}: empty; must be {key.allowed()}")
     return value
 
 

@@ -23,6 +23,8 @@ class Key:
     special: float | None = None
     #: Longest allowed string (string keys).
     max_len: int | None = None
+    #: A string key that must not be empty or blank (a label the reports print).
+    nonblank: bool = False
 
     @property
     def kind(self) -> type:
@@ -32,7 +34,8 @@ class Key:
         if self.choices is not None:
             return "one of " + ", ".join(repr(c) for c in self.choices)
         if self.kind is str:
-            return f"a string of at most {self.max_len} characters without control characters"
+            blank = "a non-blank string" if self.nonblank else "a string"
+            return f"{blank} of at most {self.max_len} characters without control characters"
         parts = []
         if self.lo is not None:
             parts.append(f"{'>' if self.lo_open else '>='} {self.lo:g}")

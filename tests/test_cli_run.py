@@ -260,3 +260,15 @@ def test_run_refuses_an_unwritable_output_folder_before_running(tmp_path, monkey
     monkeypatch.setattr(os, "access", lambda p, m: False if m == os.W_OK else True)
     res = CliRunner().invoke(main, ["run", "-o", str(tmp_path / "out.h5")])
     assert res.exit_code == 2 and "not writable" in res.output and "Traceback" not in res.output
+
+
+def test_empty_output_path_and_blank_planet_name_are_mistakes(tmp_path, monkeypatch):
+    """An empty -o is a mistake, not a request for the default file (which it used to overwrite silently), and a
+    blank planet name would leave the reports' planet line empty: both exit 2 naming the option or key (user
+    trial; common practice of this project)."""
+    monkeypatch.chdir(tmp_path)
+    line = _error_line(CliRunner().invoke(main, ["run", "-o", ""]))
+    assert "--output" in line and "empty" in line
+    assert not (tmp_path / "meltzone-demo.h5").exists()
+    line = _error_line(CliRunner().invoke(main, ["run", "--set", "planet.name=", "-o", str(tmp_path / "x.h5")]))
+    assert "planet.name" in line and "empty" in line

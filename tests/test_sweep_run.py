@@ -395,7 +395,7 @@ def test_ctrl_c_of_the_cli_stops_workers_and_resumes(tmp_path):
     assert 1 <= len(rows) < 40 and not out.exists()
     res = CliRunner().invoke(main, ["sweep", str(spec_path), "-o", str(out), "--resume", "--workers", "2"])
     assert res.exit_code == 0, res.output
-    assert f"({len(rows)} from the checkpoint); {40 - len(rows)} run" in res.output
+    assert f"({len(rows)} from the checkpoint); {40 - len(rows)} handled by this call" in res.output
     c = read_sweep(out)["cases"]
     assert list(c["case"]) == list(range(40)) and np.all(c["status"] == OK)
     _assert_checkpoint_kept(out, rows)

@@ -49,7 +49,8 @@ class SweepReport:
         extra = f", {self.n_rejected} rejected" if self.n_rejected else ""
         res = f" ({self.resumed} from the checkpoint)" if self.resumed else ""
         return (f"wrote {self.path}: {self.n_cases} cases, {self.n_failed} failed{extra}{res}; "
-                f"{len(self.ran)} run on {self.executor} in {self.wall_time_s:.1f} s")
+                f"{len(self.ran)} handled by this call (rejected draws included) on {self.executor} in "
+                f"{self.wall_time_s:.1f} s")
 
 
 # ---------------------------------------------------------------------- progress
