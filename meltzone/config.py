@@ -24,6 +24,7 @@ from types import MappingProxyType
 from typing import Any, Mapping
 
 from .config_key import Key
+from .constants import EARTH_MASS
 from .config_volcanism import VOLCANISM_KEYS
 from .errors import ConfigError
 from .mantle_keys import basal_ocean_keys, convection_keys, initial_keys
@@ -47,6 +48,11 @@ _BAD_CHAR_CATEGORIES = frozenset({"Cc", "Cs", "Zl", "Zp"})
 
 
 from .config_star import ESCAPE_KEYS, ORBIT_KEYS, STAR_KEYS, check_star
+
+#: Water share of the planet's mass above which a run warns that it describes a water world (this model's choice:
+#: 1 wt%, ~43 Earth oceans per Earth mass, where the water layer is thousands of km deep and high-pressure ices
+#: form; Earth's oceans are 0.023 wt%)
+WATER_WORLD_SHARE = 0.01
 
 SCHEMA: Mapping[str, Mapping[str, Key]] = MappingProxyType({
     "planet": {
@@ -492,6 +498,14 @@ class PlanetSpec:
         if not lo <= mass <= hi:
             warnings.warn(f"planet.mass_earth = {mass:g} is outside the calibrated range {lo:g}-{hi:g} Earth "
                           "masses; results are extrapolated", UserWarning, stacklevel=2)
+        water = values["surface"]["water_inventory_kg"]
+        share = water / (mass * EARTH_MASS)
+        if share > WATER_WORLD_SHARE:
+            warnings.warn(f"surface.water_inventory_kg = {water:g} is {100 * share:.2g}% of the planet's mass, above "
+                          f"{100 * WATER_WORLD_SHARE:g}% (~{WATER_WORLD_SHARE * EARTH_MASS / 1.4e21:.0f} Earth "
+                          "oceans per Earth mass): a water world, which this rocky-mantle model does not describe "
+                          "(no high-pressure ice or water layer); results are not meaningful there",
+                          UserWarning, stacklevel=2)
 
     # ------------------------------------------------------------------ I/O
     @classmethod

@@ -339,3 +339,18 @@ def test_cli_empty_file_warns_once(tmp_path):
     warn = [ln for ln in res.stderr.splitlines() if ln.startswith("warning:")]
     assert len(warn) == 1 and "1 M_E" in warn[0] and "0.325" in warn[0]
     assert "1 M_E, core mass fraction 0.325" in res.stdout
+
+
+def test_a_water_world_inventory_warns_and_an_ocean_does_not():
+    """Water above 1 wt% of the planet (this model's threshold, ~43 Earth oceans per Earth mass) makes a water
+    world, which a rocky-mantle model does not describe: a warning naming the key. Five Earth oceans (1.4e21 kg
+    each, common practice) on an Earth-mass planet (0.12 wt%) pass silently."""
+    import warnings
+
+    from meltzone.config import as_spec
+
+    with pytest.warns(UserWarning, match="surface.water_inventory_kg.*water world"):
+        as_spec({"planet": {"mass_earth": 1.0}, "surface": {"atmosphere": "steam", "water_inventory_kg": 1e24}})
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        as_spec({"planet": {"mass_earth": 1.0}, "surface": {"atmosphere": "steam", "water_inventory_kg": 7e21}})
