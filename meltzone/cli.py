@@ -99,6 +99,17 @@ def _no_empty_path(ctx, param, value):
     return value
 
 
+def _check_output_folder(path) -> None:
+    """Refuse an output path whose folder is missing or not writable, before any work is done."""
+    from pathlib import Path
+
+    parent = Path(path).parent
+    if not parent.resolve().is_dir():
+        raise click.BadParameter(f"folder {str(parent)!r} does not exist", param_hint="--output")
+    if not os.access(parent.resolve(), os.W_OK):
+        raise click.BadParameter(f"folder {str(parent)!r} is not writable", param_hint="--output")
+
+
 def _planet_options(func):
     func = click.option("--set", "overrides", multiple=True, metavar="SECTION.KEY=VALUE",
                         help="Override one config key (repeatable), e.g. --set interior.mantle_nodes=512.")(func)
@@ -309,10 +320,7 @@ def run(config, mass, core_fraction, overrides, output, as_json):
 
     spec = _spec_from_options(config, mass, core_fraction, overrides)
     out = Path(output) if output else Path(f"{Path(config).stem}.h5" if config else "meltzone-demo.h5")
-    if not out.parent.resolve().is_dir():
-        raise click.BadParameter(f"folder {str(out.parent)!r} does not exist", param_hint="--output")
-    if not os.access(out.parent.resolve(), os.W_OK):
-        raise click.BadParameter(f"folder {str(out.parent)!r} is not writable", param_hint="--output")
+    _check_output_folder(out)
     _announce_compilation()
     callback, finish = _progress_callback(spec.run.end_time_gyr * GYR)
     try:
@@ -483,6 +491,7 @@ def compare_command(paths, output, as_json):
         from .figstyle import figure_format
 
         figure_format(output)
+        _check_output_folder(output)
     runs = report.load_runs(paths)
     if as_json:
         _echo_json(report.compare_dict(runs, paths))
