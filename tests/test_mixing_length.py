@@ -241,7 +241,8 @@ def _heat_loss_tw(result):
                    "top is ~100 km thick in both regimes, so the mixing length's taper to the surface (l = depth, "
                    "kappa_h ~ l^4) sets it, not the rheology. Measuring l from a fixed depth of 100, 200 or 300 km "
                    "instead of the surface (an experiment, not in the code) gives 54, 34 and 23 TW in both regimes "
-                   "alike, so a thicker non-convecting top alone does not throttle it; cause not found")
+                   "alike, with interiors 800-1700 K hotter: a fixed depth is no stand-in for a lid that adjusts; "
+                   "cause not settled")
 def test_stagnant_lid_loses_heat_more_slowly_than_a_mobile_lid():
     """A stagnant lid throttles a planet's heat loss: its flux passes through the rheological sublayer under the lid
     (temperature scale ~ R T_i^2 / E), so at a similar interior temperature it carries a fraction of what a mobile
