@@ -95,7 +95,7 @@ def main():
 def _no_empty_path(ctx, param, value):
     """Click callback: an empty or blank path is a mistake, not a request for the default file."""
     if value is not None and not str(value).strip():
-        raise click.BadParameter("an empty path; leave the option out for the default")
+        raise click.BadParameter("an empty path")
     return value
 
 

@@ -500,8 +500,8 @@ class PlanetSpec:
                           "masses; results are extrapolated", UserWarning, stacklevel=2)
         water = values["surface"]["water_inventory_kg"]
         share = water / (mass * EARTH_MASS)
-        if share > WATER_WORLD_SHARE:
-            warnings.warn(f"surface.water_inventory_kg = {water:g} is {100 * share:.2g}% of the planet's mass, above "
+        if share > WATER_WORLD_SHARE and values["surface"]["atmosphere"] != "none":
+            warnings.warn(f"surface.water_inventory_kg = {water:g} is {100 * share:.3g}% of the planet's mass, above "
                           f"{100 * WATER_WORLD_SHARE:g}% (~{WATER_WORLD_SHARE * EARTH_MASS / 1.4e21:.0f} Earth "
                           "oceans per Earth mass): a water world, which this rocky-mantle model does not describe "
                           "(no high-pressure ice or water layer); results are not meaningful there",

@@ -57,3 +57,8 @@ WATER_CRITICAL_TEMPERATURE = 647.096
 WATER_CRITICAL_PRESSURE = 22.064e6
 #: Mass of water per mass of hydrogen in it: M(H2O) / (2 M(H)) = 18.015 / 2.016 (IUPAC 2013 atomic weights).
 WATER_PER_HYDROGEN = 18.015 / 2.016
+
+
+def is_duration(key: str) -> bool:
+    """Whether a summary key holds a time [yr] (``..._yr``), not a rate per year (``..._km3_yr``)."""
+    return key.endswith("_yr") and not key.endswith("_km3_yr")

@@ -153,6 +153,7 @@ def _pressure_axis(ax, result, depth_scale=None):
     if depth_scale is not None:
         sec.set_yscale("function", functions=depth_scale)
     sec.set_ylim(lim)
+    ax.callbacks.connect("ylim_changed", lambda host: sec.set_ylim(host.get_ylim()))  # zoom, pan, set_ylim
     sec.set_yticks(np.interp(ticks, p, depth), [f"{t:g}" for t in ticks])
     sec.yaxis.set_minor_locator(NullLocator())
     sec.set_ylabel("pressure [GPa]")

@@ -14,13 +14,8 @@ import math
 
 import numpy as np
 
-from .constants import EARTH_MASS, EARTH_RADIUS, GPA, YEAR
+from .constants import EARTH_MASS, EARTH_RADIUS, GPA, YEAR, is_duration
 from .results import MODEL_NOTE
-
-
-def is_duration(key: str) -> bool:
-    """Whether a summary key holds a time [yr] (``..._yr``), not a rate per year (``..._km3_yr``)."""
-    return key.endswith("_yr") and not key.endswith("_km3_yr")
 
 
 def format_years(years: float) -> str:
@@ -190,7 +185,8 @@ def _magma_ocean_text(s: dict) -> str:
         text += (f"; {again} at {format_years(s['magma_ocean_reformed_yr'])} (the mantle warmed past the "
                  "rheological transition)" + (" and is present at the end" if s["magma_ocean_at_end"] else ""))
     again_top = s.get("surface_magma_ocean_reformed_yr")
-    if again_top is not None and again_top != s.get("magma_ocean_reformed_yr"):
+    if (again_top is not None and s.get("surface_magma_ocean_end_yr") is not None
+            and again_top != s.get("magma_ocean_reformed_yr")):
         text += f"; by the top of the mantle alone it formed again at {format_years(again_top)}"
     if s.get("surface_above_solidus_at_end"):
         molten = s.get("surface_molten_depth_at_end_m")

@@ -11,6 +11,7 @@ import tomllib
 
 import numpy as np
 
+from ..constants import is_duration
 from ..errors import MeltzoneError
 from .file import read_sweep
 from .stats import flag_names, input_names
@@ -112,8 +113,6 @@ def _lifetime(fig, ax, data, x, y, outcome, bins):
     cv, _ = _column_or_base(data, y)
     t = np.asarray(c[outcome], dtype=np.float64)
     persists = ok & (c["magma_ocean_persists"] == 1) if outcome == "magma_ocean_end_yr" else np.zeros_like(ok)
-    from ..report import is_duration  # here: meltzone.report loads scipy through meltzone.results
-
     has = ok & np.isfinite(t) & np.isfinite(xv) & ((t > 0) if is_duration(outcome) else True)
     if not np.any(has | persists):
         raise MeltzoneError(f"no case of this sweep has a value of {outcome!r} to plot")
