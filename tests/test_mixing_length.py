@@ -246,7 +246,8 @@ def _heat_loss_tw(result):
 def test_stagnant_lid_loses_heat_more_slowly_than_a_mobile_lid():
     """A stagnant lid throttles a planet's heat loss: its flux passes through the rheological sublayer under the lid
     (temperature scale ~ R T_i^2 / E), so at a similar interior temperature it carries a fraction of what a mobile
-    lid carries (Solomatov & Moresi 2000, JGR 105:21795; the scaling from memory). The boundary-layer scheme
+    lid carries (Solomatov & Moresi 2000, JGR 105, doi:10.1029/2000JB900197; abstract checked: "the low heat
+    transport efficiency of stagnant lid convection"; the scaling from memory). The boundary-layer scheme
     gives a third of the mobile lid's loss at 1 M_E after 4.5 Gyr. Asserted: the mixing-length scheme's stagnant
     lid loses at most 0.7 of what its mobile lid loses (this project's tolerance, generous for the hotter
     interior a stagnant lid keeps)."""
