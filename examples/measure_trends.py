@@ -23,6 +23,7 @@ import warnings
 import numpy as np
 
 import meltzone
+from meltzone.constants import GYR, YEAR
 
 warnings.simplefilter("ignore")
 QUICK = "--quick" in sys.argv
@@ -49,7 +50,7 @@ def heat_flow_tw_at(result, t_gyr):
     """Surface heat flow [TW] at t_gyr (linear between recorded times; the volcanic heat pipe included)."""
     h = result.history
     q = h["surface_heat_flow"] + (h["volcanic_heat_flow"] if "volcanic_heat_flow" in h else 0.0)
-    return float(np.interp(t_gyr * 1e9 * 3.15576e7, h.time, q) / 1e12)
+    return float(np.interp(t_gyr * GYR, h.time, q) / 1e12)
 
 
 def schemes():
@@ -105,7 +106,7 @@ def hindcast():
                      if "volcanic_heat_flow" in h else None,
                      "cmb_heat_flow_tw": float(h["cmb_heat_flow"][-1] / 1e12),
                      "urey": float(h["radiogenic_power"][-1] / h["surface_heat_flow"][-1]),
-                     "melt_production_km3_yr": float(h["melt_production"][-1] * 3.15576e7 / 1e9)
+                     "melt_production_km3_yr": float(h["melt_production"][-1] * YEAR / 1e9)
                      if "melt_production" in h else None,
                      "inner_core_radius_km": float(h["inner_core_radius"][-1] / 1e3)}
     return out

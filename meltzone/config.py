@@ -24,8 +24,8 @@ from types import MappingProxyType
 from typing import Any, Mapping
 
 from .config_key import Key
-from .constants import EARTH_MASS
 from .config_volcanism import VOLCANISM_KEYS
+from .constants import EARTH_MASS, EARTH_OCEAN_MASS
 from .errors import ConfigError
 from .mantle_keys import basal_ocean_keys, convection_keys, initial_keys
 
@@ -501,10 +501,11 @@ class PlanetSpec:
         water = values["surface"]["water_inventory_kg"]
         share = water / (mass * EARTH_MASS)
         if share > WATER_WORLD_SHARE and values["surface"]["atmosphere"] != "none":
+            oceans = WATER_WORLD_SHARE * EARTH_MASS / EARTH_OCEAN_MASS
             warnings.warn(f"surface.water_inventory_kg = {water:g} is {100 * share:.3g}% of the planet's mass, above "
-                          f"{100 * WATER_WORLD_SHARE:g}% (~{WATER_WORLD_SHARE * EARTH_MASS / 1.4e21:.0f} Earth "
-                          "oceans per Earth mass): a water world, which this rocky-mantle model does not describe "
-                          "(no high-pressure ice or water layer); results are not meaningful there",
+                          f"{100 * WATER_WORLD_SHARE:g}% (~{oceans:.0f} Earth oceans per Earth mass): a water world, "
+                          "which this rocky-mantle model does not describe (no high-pressure ice or water layer); "
+                          "results are not meaningful there",
                           UserWarning, stacklevel=2)
 
     # ------------------------------------------------------------------ I/O

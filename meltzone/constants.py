@@ -55,6 +55,8 @@ SOLAR_LUMINOSITY_BHAC15 = 3.839e26
 #: Critical point of water: 647.096 K, 22.064 MPa (IAPWS 1995, Wagner & Pruss 2002, JPCRD 31:387).
 WATER_CRITICAL_TEMPERATURE = 647.096
 WATER_CRITICAL_PRESSURE = 22.064e6
+#: Mass of Earth's oceans [kg], the unit "one Earth ocean" (1.4e21 kg; common practice).
+EARTH_OCEAN_MASS = 1.4e21
 #: Mass of water per mass of hydrogen in it: M(H2O) / (2 M(H)) = 18.015 / 2.016 (IUPAC 2013 atomic weights).
 WATER_PER_HYDROGEN = 18.015 / 2.016
 

@@ -28,6 +28,7 @@ def water_outcomes(result, magma_ocean_end_s) -> dict:
     spec = result.spec
     ocean = h["water_ocean"] if "water_ocean" in h else np.zeros_like(h.time)
     lost = h["water_lost"] if "water_lost" in h else np.zeros_like(h.time)
+    outgassed = float(h["outgassed_h2o"][-1]) if "outgassed_h2o" in h else 0.0
     inventory = spec.surface.water_inventory_kg
     formed = np.flatnonzero(ocean > 0.0)
     kind = None
@@ -41,9 +42,9 @@ def water_outcomes(result, magma_ocean_end_s) -> dict:
     return {
         "water_ocean_formed_yr": float(h.time[formed[0]] / YEAR) if formed.size else None,
         "water_ocean_kg": float(ocean[-1]),
-        # the water there was to lose: the inventory and what the volcanoes outgassed from the mantle's own
-        # water (capped there only against the integrator's round-off; capping at the inventory alone dropped
-        # the outgassed water that escaped later: 9.1e19 kg of the red-dwarf example's 2.89e21 kg)
-        "water_lost_kg": float(min(lost[-1], inventory + (h["outgassed_h2o"][-1] if "outgassed_h2o" in h else 0.0))),
+        # at most the water there was to lose, the inventory and what the volcanoes outgassed from the mantle's own
+        # water (a cap against the integrator's round-off only; the inventory alone dropped the outgassed water
+        # that escaped later: 9.1e19 kg of the red-dwarf example's 2.89e21 kg)
+        "water_lost_kg": float(min(lost[-1], inventory + outgassed)),
         "solidification_type": kind,
     }
