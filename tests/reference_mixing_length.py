@@ -56,6 +56,9 @@ class Reference:
         f = self.mantle.adiabat
         self.ratio = f[1:] / f[:-1]  # interior faces 1 .. n-1
         self.mobile = spec.convection.regime == "mobile-lid"
+        self.r = r
+        self.rf = rf
+        self.extraction_pressure = self.ph.extraction_pressure  # 0 with volcanism off
         self.heat_share = self.mantle.mass / self.mantle.mass.sum()
         tu, self.tc0 = ref.initial_temperatures(spec, self.mantle, self.core)
         t0 = tu * f
@@ -106,6 +109,38 @@ class Reference:
                  / (ph.expansivity * self.rho_f[j] * self.g_f[j] * abs(dt))) ** (1.0 / 3.0)
         return ph.conductivity * dt / min(delta, self.dr[j])
 
+    def rigid_length(self, log_eta):
+        """Mixing length per face bounded by a rigid region above it: the distance from the face up to where ln eta
+        (linear in radius between the face, at the mean of its two cells, and the cells' nodes above) first exceeds
+        the face's own by a_rh (convection.rheology_a), if nearer than the nearer boundary."""
+        out = self.length.copy()
+        a_rh = self.ph.rheology_a
+        for f in range(1, self.n):
+            base = 0.5 * (log_eta[f - 1] + log_eta[f])
+            rr = np.concatenate([[self.rf[f]], self.r[f:]])
+            vv = np.concatenate([[base], log_eta[f:]]) - base
+            above = np.nonzero(vv >= a_rh)[0]
+            if above.size:
+                k = above[0]
+                r_star = rr[k - 1] + (a_rh - vv[k - 1]) / (vv[k] - vv[k - 1]) * (rr[k] - rr[k - 1])
+                out[f] = min(out[f], r_star - self.rf[f])
+        return out
+
+    def heat_pipe(self, h, t, phi, ts):
+        """Heat [W] the stagnant lid's heat pipe takes out of each cell: m (phi - 0.01) w / 1e4 yr of melt, each kg
+        carrying L + c_p (T - T_s), in partly molten cells no deeper than the extraction pressure, w = 1 -
+        smoothstep((phi - phi_c) / blend); only under a solid top cell."""
+        ph = self.ph
+        out = np.zeros(self.n)
+        if self.mobile or self.extraction_pressure <= 0.0 or phi[-1] > 0.01:
+            return out
+        x = np.clip((phi - ph.critical_melt_fraction) / ph.blend_width, 0.0, 1.0)
+        w = 1.0 - x * x * (3.0 - 2.0 * x)
+        on = (self.mantle.pressure <= self.extraction_pressure) & (phi > 0.01)
+        rate = self.mantle.mass / (1.0e4 * ref.YEAR) * np.maximum(phi - 0.01, 0.0) * w
+        out[on] = (rate * (ph.latent_heat + ph.heat_capacity * (t - ts)))[on]
+        return out
+
     def fluxes(self, y):
         """(face fluxes F_0 .. F_n [W/m^2], T, phi, T_c, T_s)."""
         ph = self.ph
@@ -137,7 +172,8 @@ class Reference:
             # geometric mean of the two cells' viscosities, each at its own T, phi and pressure
             log_eta = self.log_eta(t, phi, floors)
             eta = np.exp(0.5 * (log_eta[j] + log_eta[j + 1]))
-            base = ph.expansivity * self.g_f[face] * self.length[face] ** 4 * s
+            length = self.length[face] if self.mobile else self.rigid_length(log_eta)[face]
+            base = ph.expansivity * self.g_f[face] * length ** 4 * s
             kappa_h = np.minimum(base * self.rho_f[face] / (18.0 * eta), np.sqrt(base / 16.0))
             q[face] += self.rho_f[face] * kappa_h * dh[j] / dr[j]
         top = t[-1]
@@ -152,12 +188,12 @@ class Reference:
         return q, t, phi, tc, ts
 
     def rhs(self, time, y):
-        q, *_ = self.fluxes(y)
+        q, t, phi, _, ts = self.fluxes(y)
         flow = self.area * q
         heat = ref.radiogenic_power(time, self.ph) * self.heat_share
         dy = np.empty_like(y)
         dy[0] = -flow[0] if self.core else 0.0
-        dy[1:] = flow[:-1] - flow[1:] + heat
+        dy[1:] = flow[:-1] - flow[1:] + heat - self.heat_pipe(y[1:] / self.mantle.mass, t, phi, ts)
         return dy
 
     def solve(self, times, rtol=1e-9, method="BDF"):

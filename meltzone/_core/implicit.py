@@ -24,22 +24,30 @@ import numpy as np
 
 from ..constants import STEFAN_BOLTZMANN
 from ._jit import njit
-from .layout import (C_W, F_A, F_DR, F_R, G_F, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP, M_MOBILE, M_TOP_CELLS,
+from .layout import (C_W, F_A, F_DR, F_R, G_F, G_P, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP, M_MOBILE, M_TOP_CELLS,
                      M_NEWTON_TOL, MH_ATM_CO2, MH_ATM_H2O, MH_DT, MH_E_STORED, MH_EC, MH_H, MH_LID, MH_MELT,
                      MH_NEWTON, MH_OUT, MH_PHI_TOP, MH_QC, MH_QS, MH_RIC, MH_T, MH_TC, MH_TS, MH_TU, MS_EPS, MS_H,
-                     MS_H_PREV, MS_N_H, MS_N_NEWTON, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_ATMOSPHERE, P_CC, P_CM,
+                     MS_H_PREV, MS_N_H, MS_N_NEWTON, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_A_RH, P_ATMOSPHERE, P_BLEND, P_P_EXTRACT, P_PHI_C, P_VOLC, P_CC, P_CM,
                      P_H_MAX, P_K, P_LATENT, P_RADIUS, P_STAGNANT, P_T_END, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS,
                      STATUS_STEP_TOO_SMALL)
 from .mlt_physics import (CW_DLN_ETA, CW_DTDH, CW_H_ACT, CW_LN_ETA, N_CW, adiabat_floor, cell_activation,
-                          cell_log_viscosity, cell_slope, cell_state, cmb_flux, interior_flux, surface_adiabat_state,
+                          cell_log_viscosity, cell_slope, rigid_mixing_length, cell_state, cmb_flux, interior_flux, surface_adiabat_state,
                           surface_flux, surface_flux_slope)
 from .record import find_intervals
+from .lid import smoothstep
 from .physics import (CORE, GREY_H2O_COEFF, GREY_H2O_EXPONENT, _invert, contact_weight, core_energy, inner_core,
                       radiogenic_power)
 from .layout import (MH_UPPER_CELL, MH_ABS, MH_DISSOLVED, MH_LOST, MH_OCEAN, MH_OLR, MH_P_CO2, MH_P_H2O, MS_LOST, P_G_SURF,
                      P_H2O_SOL_C, P_H2O_SOL_E, P_H2O_TOTAL, P_STEAM)
 from .radiation import condense, escape_rate, radiation_state, thin_weight, volatiles
 from .tridiag import solve
+
+#: melt fraction a cell keeps where the mixing-length scheme's heat pipe extracts melt, and the e-folding time
+#: [s] of the extraction (this model's choice: melt connects and leaves its source at ~0.1-1% porosity, McKenzie
+#: 1984, J. Petrol. 25:713, Faul 2001, Nature 410:920; the time is short against the mantle's thermal evolution:
+#: see meltzone.evolution.mixing_length, "Heat pipe")
+PIPE_MELT = 0.01
+PIPE_TIME = 1.0e4 * 3.15576e7
 
 #: relative perturbation of the finite-difference Jacobian
 FD_REL = 1.0e-8
@@ -142,7 +150,31 @@ def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core,
 
 
 @njit
-def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors, rad, has_core, temp, phi,
+def heat_pipe(i, h, temp, phi, grid, law, par, ts):
+    """(S [W], dS/dh [W kg/J]) of the heat pipe out of cell i: melt above PIPE_MELT in a partly molten cell no
+    deeper than volcanism.max_extraction_pressure_gpa leaves at the rate m (phi - PIPE_MELT) w / PIPE_TIME and
+    erupts; the cell loses the melt's enthalpy and gains that of the same mass of cold surface material sinking
+    in its place, L + c_p (T - T_s) per kg (the heat pipe of Moore & Webb 2013, Nature 501:501). w = 1 below the
+    rheological transition, falling to 0 across it with the viscosity's smoothstep (a magma ocean convects its
+    heat instead). 0 with volcanism off or outside the stagnant-lid regime (the caller passes ts = 0 then)."""
+    if par[P_VOLC] < 0.5 or par[P_STAGNANT] < 0.5 or grid[G_P, i] > par[P_P_EXTRACT] or phi[i] <= PIPE_MELT:
+        return 0.0, 0.0
+    xb = (phi[i] - par[P_PHI_C]) / par[P_BLEND]
+    if xb >= 1.0:
+        return 0.0, 0.0
+    w = 1.0 - smoothstep(xb)
+    dw = -6.0 * xb * (1.0 - xb) / par[P_BLEND] if xb > 0.0 else 0.0
+    rate = grid[G_W, i] / PIPE_TIME
+    per_kg = par[P_LATENT] + par[P_CM] * (temp[i] - ts)
+    dt_dh, dphi_dh = cell_slope(h[i], temp[i], grid, i, law, par)
+    excess = phi[i] - PIPE_MELT
+    d_excess = dphi_dh * (w + excess * dw)
+    return rate * excess * w * per_kg, rate * (d_excess * per_kg + excess * w * par[P_CM] * dt_dh)
+
+
+@njit
+def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors, rad, ts_pipe, has_core, temp,
+           phi,
            cells, flux, d_lo, d_hi, lower, diag, upper, rhs, dx, work):
     """Solve the backward-Euler step from x_old over dt in place of x (which holds the start guess); x[0] is
     the core's stored heat, x[1:] the cells' enthalpies. ``tc`` starts the core inversion. Returns
@@ -180,9 +212,11 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
             a_lo = faces[F_A, i]
             a_hi = faces[F_A, i + 1]
             m = grid[G_W, i]
-            rhs[i + 1] = m * (h[i] - x_old[i + 1]) / dt - a_lo * flux[i] + a_hi * flux[i + 1] - heat * m / m_total
+            pipe, d_pipe = heat_pipe(i, h, temp, phi, grid, law, par, ts_pipe) if ts_pipe > 0.0 else (0.0, 0.0)
+            rhs[i + 1] = m * (h[i] - x_old[i + 1]) / dt - a_lo * flux[i] + a_hi * flux[i + 1] - heat * m / m_total \
+                + pipe
             lower[i + 1] = -a_lo * d_lo[i]
-            diag[i + 1] = m / dt - a_lo * d_hi[i] + a_hi * d_lo[i + 1]
+            diag[i + 1] = m / dt - a_lo * d_hi[i] + a_hi * d_lo[i + 1] + d_pipe
             upper[i + 1] = a_hi * d_hi[i + 1]
         if not solve(lower, diag, upper, rhs, dx, work):
             return False, it + 1, tc, ts
@@ -295,6 +329,15 @@ def _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps, lost, n_newton):
 
 
 @njit
+def _rigid_lengths(temp, phi, grid, faces, floors, cells, par):
+    """The faces' mixing lengths bounded by a rigid region above (F_LM), from the cells' viscosities at the
+    state (temp, phi); lagged by one step, as the mobile lid's floors."""
+    for i in range(temp.shape[0]):
+        cells[CW_LN_ETA, i] = cell_log_viscosity(temp[i], phi[i], cells[CW_H_ACT, i], floors[i], par)[0]
+    rigid_mixing_length(cells, grid, faces, par[P_A_RH])
+
+
+@njit
 def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, temps, phis, max_steps):
     """Advance (x, state) until the end time, a full history or ``max_steps``; return a STATUS_* code. ``x``
     (E_c, h_0 .. h_{n-1}) and ``x_prev`` (the state one step earlier, for the error estimate) are updated in
@@ -338,6 +381,8 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
     m_ref = grid[G_W, first_light - 1] if first_light >= 1 else grid[G_W, 0]
     _states(x[1:], grid, law, par, temp, phi)
     rad, vol = _surface_state(t, phi, grid, lost, par)
+    if not mobile:
+        _rigid_lengths(temp, phi, grid, faces, floors, cells, par)
     if n_h == 0:
         if mobile:
             adiabat_floor(x[1 + mid], mid, grid, law, par, floors)
@@ -367,11 +412,16 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
         rad, vol = _surface_state(t, phi_old, grid, lost, par)
         if mobile:
             adiabat_floor(x_old[1 + mid], mid, grid, law, par, floors)
+        else:
+            _rigid_lengths(temp_old, phi_old, grid, faces, floors, cells, par)
+        # the heat pipe runs under a solid top (lagged by one step): its eruptions cool to the last surface
+        # temperature
+        ts_pipe = hist[n_h - 1, MH_TS] if phi_old[n - 1] <= PIPE_MELT else 0.0
         if dt_prev > 0.0:  # Newton starts from the linear predictor (the error estimate's)
             for i in range(n + 1):
                 x[i] = x_old[i] + dt * (x_old[i] - x_prev[i]) / dt_prev
         ok, its, tc_new, ts = newton(t + dt, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors,
-                                     rad, has_core, temp, phi, cells, flux, d_lo, d_hi, lower, diag, upper, rhs,
+                                     rad, ts_pipe, has_core, temp, phi, cells, flux, d_lo, d_hi, lower, diag, upper, rhs,
                                      dx, work)
         n_newton += its
         err = 0.0
@@ -393,7 +443,11 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
                 err /= mset[M_ERR]
         if ok and err <= 1.0 and big_t <= mset[M_DT_CELL] and big_phi <= mset[M_DPHI]:
             heat = radiogenic_power(t + dt, iso, par)
-            out += dt * (flux[n] * faces[F_A, n] - heat)
+            pipe = 0.0
+            if ts_pipe > 0.0:
+                for i in range(n):
+                    pipe += heat_pipe(i, x[1:], temp, phi, grid, law, par, ts_pipe)[0]
+            out += dt * (flux[n] * faces[F_A, n] + pipe - heat)
             # water: condensation at the step's surface temperature, escape at its end rate (explicit)
             vap, ocean, dissolved, rate = _water_after(t + dt, ts, vol, par)
             lost = min(lost + dt * rate, par[P_H2O_TOTAL])
@@ -403,6 +457,7 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
                 x_prev[i] = x_old[i]
             record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, rad,
                    (vap, vol[1], ocean, dissolved, lost), out, its, hist, temps, phis, n_h)
+            hist[n_h, MH_QS] += pipe  # the heat pipe's eruptions leave through the surface
             n_h += 1
             steps += 1
             dt_prev = dt

@@ -199,8 +199,8 @@ S_IMPLICIT, S_STIFF_COUNT, S_NONSTIFF_COUNT, S_N_IMPLICIT = range(N_STATE, N_STA
 # ------------------------------------------------------------ mixing-length scheme (implicit.py, mlt_physics.py)
 #: per-face geometry, faces 0 (CMB) .. n (surface) of the n mantle cells
 MLT_FACE_ROWS = ("radius", "area", "density", "gravity", "pressure", "mixing_length", "spacing", "adiabat_ratio",
-                 "adiabat")
-(F_R, F_A, F_RHO, F_G, F_P, F_L, F_DR, F_RATIO, F_F) = range(N_F := len(MLT_FACE_ROWS))
+                 "adiabat", "rigid_mixing_length")
+(F_R, F_A, F_RHO, F_G, F_P, F_L, F_DR, F_RATIO, F_F, F_LM) = range(N_F := len(MLT_FACE_ROWS))
 #: settings of the implicit integrator
 MLT_SETTINGS = ("error_k", "max_melt_step", "max_cell_step_k", "newton_tol_k", "max_newton", "mobile_lid",
                 "min_step")

@@ -11,7 +11,7 @@ import math
 
 from ..melting import LAW_LINEAR
 from ._jit import njit
-from .layout import (F_DR, F_G, F_L, F_P, F_RATIO, F_RHO, G_AUX1, G_AUX2, G_F, G_P, G_TLIQ, G_TSOL, P_ALPHA, P_CM,
+from .layout import (F_DR, F_G, F_L, F_LM, F_P, F_R, F_RATIO, F_RHO, G_AUX1, G_AUX2, G_F, G_P, G_R, G_TLIQ, G_TSOL, P_ALPHA, P_CM,
                      P_K, P_KAPPA, P_LATENT, P_RA_CR)
 from .melt import melt_fraction
 from .physics import activation_enthalpy, log_viscosity_grad, viscosity
@@ -131,7 +131,7 @@ def interior_flux(ha, hb, ta, tb, cells, a, b, faces, j, dh_jac, par):
     d_b = -kc * cells[CW_DTDH, b]
     ratio = faces[F_RATIO, j]
     dh = ha + c * ta * (ratio - 1.0) - hb
-    el = faces[F_L, j]
+    el = faces[F_LM, j]
     # the Jacobian's slopes are taken at least at dh_jac [J/kg] (0: exact slopes): the convective flux and its
     # slope vanish at the onset dh = 0, and a Newton step linearised there switches convection on one cell per
     # iteration
@@ -240,3 +240,35 @@ def adiabat_floor(h_mid, mid, grid, law, par, floors):
     t_mid, _ = cell_state(h_mid, grid, mid, law, par)
     for i in range(floors.shape[0]):
         floors[i] = t_mid * grid[G_F, i] / grid[G_F, mid]
+
+
+@njit
+def rigid_mixing_length(cells, grid, faces, contrast):
+    """Fill the face row F_LM with the mixing length bounded by the nearest rigid region above each face: the
+    geometric F_L (distance to the nearer boundary), or, if less, the distance up to the first point where the
+    viscosity has risen by the factor exp(``contrast``) over the face's own (ln eta of the cells, row CW_LN_ETA,
+    linear in radius between the face and the cells' centres). A stagnant lid is then a rigid boundary for the
+    mantle under it, as the surface is for a mobile lid. ``contrast`` <= 0: F_L unchanged."""
+    n = cells.shape[1]
+    for j in range(1, n):
+        if contrast <= 0.0:
+            faces[F_LM, j] = faces[F_L, j]
+            continue
+        base = 0.5 * (cells[CW_LN_ETA, j - 1] + cells[CW_LN_ETA, j])
+        target = base + contrast
+        el = faces[F_L, j]
+        r0 = faces[F_R, j]
+        r_prev = r0
+        v_prev = base
+        for i in range(j, n):
+            ri = grid[G_R, i]
+            vi = cells[CW_LN_ETA, i]
+            if r_prev - r0 >= el:  # the segment starts beyond the nearer boundary
+                break
+            if vi >= target:
+                frac = (target - v_prev) / (vi - v_prev) if vi > v_prev else 1.0
+                el = min(el, r_prev - r0 + frac * (ri - r_prev))
+                break
+            r_prev = ri
+            v_prev = vi
+        faces[F_LM, j] = el
