@@ -63,16 +63,18 @@ def test_history_keeps_the_contract_and_a_file_round_trip(earth, tmp_path):
 
 @pytest.mark.parametrize("mass,sections", [
     (0.5, {}),
+    # the stagnant lid's rigid mixing length binds (without it in the reference: 3.4e-2)
     (1.0, {"convection": {"regime": "stagnant-lid"}}),
     (2.0, {"initial": {"upper_temperature_k": 1900.0}}),  # partly crystalline at the start
-    # partly molten under a solid top: the stagnant lid's rigid mixing length and heat pipe
-    (1.0, {"convection": {"regime": "stagnant-lid"}, "initial": {"upper_temperature_k": 1800.0}}),
+    # a cool start: the top cell freezes within the window and the heat pipe runs under it (without the pipe in
+    # the reference: 3.6e-2; a start at 1800 K kept the top cell molten for the whole window)
+    (1.0, {"convection": {"regime": "stagnant-lid"}, "initial": {"upper_temperature_k": 1500.0}}),
 ])
 def test_kernel_agrees_with_plain_reference(mass, sections):
     """T(r, t) of the kernel (backward Euler, run.max_temperature_step_k = 1) against the plain reference
     (tests/reference_mixing_length.py: the same semi-discrete equations written again in NumPy, solve_ivp BDF,
     rtol 1e-6) over the first 100 kyr (through the bulk rheological transition, ~1 kyr) at 32 nodes (~66 cells):
-    relative 1e-3 at eight log-spaced recorded steps (measured 1.2e-4, 2.1e-4, 2.2e-4)."""
+    relative 1e-3 at eight log-spaced recorded steps (measured 1.2e-4, 2.0e-4, 2.2e-4, 1.6e-4)."""
     spec = spec_of(mass, 32, 1e-4, run={"max_temperature_step_k": 1.0}, **sections)
     it = build_interior(spec)
     from meltzone import melting
