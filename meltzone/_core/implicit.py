@@ -22,19 +22,19 @@ import math
 
 import numpy as np
 
-from ..constants import STEFAN_BOLTZMANN
+from ..constants import STEFAN_BOLTZMANN, YEAR
 from ._jit import njit
-from .layout import (C_W, F_A, F_DR, F_R, G_F, G_P, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP, M_MOBILE, M_TOP_CELLS,
-                     M_NEWTON_TOL, MH_ATM_CO2, MH_ATM_H2O, MH_DT, MH_E_STORED, MH_EC, MH_H, MH_LID, MH_MELT,
-                     MH_NEWTON, MH_OUT, MH_PHI_TOP, MH_QC, MH_QS, MH_RIC, MH_T, MH_TC, MH_TS, MH_TU, MS_EPS, MS_H,
-                     MS_H_PREV, MS_N_H, MS_N_NEWTON, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_A_RH, P_ATMOSPHERE, P_BLEND, P_P_EXTRACT, P_PHI_C, P_VOLC, P_CC, P_CM,
-                     P_H_MAX, P_K, P_LATENT, P_RADIUS, P_STAGNANT, P_T_END, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS,
-                     STATUS_STEP_TOO_SMALL)
-from .mlt_physics import (CW_DLN_ETA, CW_DTDH, CW_H_ACT, CW_LN_ETA, N_CW, adiabat_floor, cell_activation,
-                          cell_log_viscosity, cell_slope, rigid_mixing_length, cell_state, cmb_flux, interior_flux, surface_adiabat_state,
-                          surface_flux, surface_flux_slope)
-from .record import find_intervals
+from .layout import (C_W, F_A, F_DR, F_R, G_F, G_P, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP,
+                     M_MOBILE, M_TOP_CELLS, M_NEWTON_TOL, MH_ATM_CO2, MH_ATM_H2O, MH_DT, MH_E_STORED, MH_EC, MH_H,
+                     MH_LID, MH_MELT, MH_NEWTON, MH_OUT, MH_PHI_TOP, MH_QC, MH_QS, MH_RIC, MH_T, MH_TC, MH_TS, MH_TU,
+                     MS_EPS, MS_H, MS_H_PREV, MS_N_H, MS_N_NEWTON, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_A_RH, P_ATMOSPHERE,
+                     P_BLEND, P_CC, P_CM, P_H_MAX, P_K, P_LATENT, P_P_EXTRACT, P_PHI_C, P_RADIUS, P_STAGNANT, P_T_END,
+                     P_VOLC, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL)
 from .lid import smoothstep
+from .mlt_physics import (CW_DLN_ETA, CW_DTDH, CW_H_ACT, CW_LN_ETA, N_CW, adiabat_floor, cell_activation,
+                          cell_log_viscosity, cell_slope, cell_state, cmb_flux, interior_flux, rigid_mixing_length,
+                          surface_adiabat_state, surface_flux, surface_flux_slope)
+from .record import find_intervals
 from .physics import (CORE, GREY_H2O_COEFF, GREY_H2O_EXPONENT, _invert, contact_weight, core_energy, inner_core,
                       radiogenic_power)
 from .layout import (MH_UPPER_CELL, MH_ABS, MH_DISSOLVED, MH_LOST, MH_OCEAN, MH_OLR, MH_P_CO2, MH_P_H2O, MS_LOST, P_G_SURF,
@@ -47,7 +47,7 @@ from .tridiag import solve
 #: 1984, J. Petrol. 25:713, Faul 2001, Nature 410:920; the time is short against the mantle's thermal evolution:
 #: see meltzone.evolution.mixing_length, "Heat pipe")
 PIPE_MELT = 0.01
-PIPE_TIME = 1.0e4 * 3.15576e7
+PIPE_TIME = 1.0e4 * YEAR
 
 #: relative perturbation of the finite-difference Jacobian
 FD_REL = 1.0e-8
@@ -156,8 +156,9 @@ def heat_pipe(i, h, temp, phi, grid, law, par, ts):
     erupts; the cell loses the melt's enthalpy and gains that of the same mass of cold surface material sinking
     in its place, L + c_p (T - T_s) per kg (the heat pipe of Moore & Webb 2013, Nature 501:501). w = 1 below the
     rheological transition, falling to 0 across it with the viscosity's smoothstep (a magma ocean convects its
-    heat instead). 0 with volcanism off or outside the stagnant-lid regime (the caller passes ts = 0 then)."""
-    if par[P_VOLC] < 0.5 or par[P_STAGNANT] < 0.5 or grid[G_P, i] > par[P_P_EXTRACT] or phi[i] <= PIPE_MELT:
+    heat instead). Whether the pipe runs at all (volcanism on, stagnant lid, a solid top) is
+    :func:`_pipe_surface`'s decision, once per step."""
+    if grid[G_P, i] > par[P_P_EXTRACT] or phi[i] <= PIPE_MELT:
         return 0.0, 0.0
     xb = (phi[i] - par[P_PHI_C]) / par[P_BLEND]
     if xb >= 1.0:
@@ -174,8 +175,7 @@ def heat_pipe(i, h, temp, phi, grid, law, par, ts):
 
 @njit
 def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors, rad, ts_pipe, has_core, temp,
-           phi,
-           cells, flux, d_lo, d_hi, lower, diag, upper, rhs, dx, work):
+           phi, cells, flux, d_lo, d_hi, lower, diag, upper, rhs, dx, work):
     """Solve the backward-Euler step from x_old over dt in place of x (which holds the start guess); x[0] is
     the core's stored heat, x[1:] the cells' enthalpies. ``tc`` starts the core inversion. Returns
     (converged, iterations, T_c, T_s); on success temp, phi and flux hold the end state's."""
@@ -329,6 +329,16 @@ def _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps, lost, n_newton):
 
 
 @njit
+def _pipe_surface(phi_top, ts_last, par):
+    """The surface temperature [K] the heat pipe's eruptions cool to this step (the last accepted step's), or 0
+    when the pipe does not run: volcanism off, a mobile lid, or a top cell that is not solid (lagged by one
+    step, as the rigid mixing length)."""
+    if par[P_VOLC] < 0.5 or par[P_STAGNANT] < 0.5 or phi_top > PIPE_MELT:
+        return 0.0
+    return ts_last
+
+
+@njit
 def _rigid_lengths(temp, phi, grid, faces, floors, cells, par):
     """The faces' mixing lengths bounded by a rigid region above (F_LM), from the cells' viscosities at the
     state (temp, phi); lagged by one step, as the mobile lid's floors."""
@@ -381,11 +391,11 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
     m_ref = grid[G_W, first_light - 1] if first_light >= 1 else grid[G_W, 0]
     _states(x[1:], grid, law, par, temp, phi)
     rad, vol = _surface_state(t, phi, grid, lost, par)
-    if not mobile:
-        _rigid_lengths(temp, phi, grid, faces, floors, cells, par)
     if n_h == 0:
         if mobile:
             adiabat_floor(x[1 + mid], mid, grid, law, par, floors)
+        else:
+            _rigid_lengths(temp, phi, grid, faces, floors, cells, par)
         if has_core:
             tc, _ = _invert(CORE, x[0], 0.0, 0.0, grid, core, par, law, tc, 0.0)
         ts = fluxes(tc, x[1:], temp, phi, grid, faces, core, par, law, floors, rad, has_core, cells, flux, d_lo,
@@ -414,15 +424,13 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
             adiabat_floor(x_old[1 + mid], mid, grid, law, par, floors)
         else:
             _rigid_lengths(temp_old, phi_old, grid, faces, floors, cells, par)
-        # the heat pipe runs under a solid top (lagged by one step): its eruptions cool to the last surface
-        # temperature
-        ts_pipe = hist[n_h - 1, MH_TS] if phi_old[n - 1] <= PIPE_MELT else 0.0
+        ts_pipe = _pipe_surface(phi_old[n - 1], hist[n_h - 1, MH_TS], par)
         if dt_prev > 0.0:  # Newton starts from the linear predictor (the error estimate's)
             for i in range(n + 1):
                 x[i] = x_old[i] + dt * (x_old[i] - x_prev[i]) / dt_prev
         ok, its, tc_new, ts = newton(t + dt, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors,
-                                     rad, ts_pipe, has_core, temp, phi, cells, flux, d_lo, d_hi, lower, diag, upper, rhs,
-                                     dx, work)
+                                     rad, ts_pipe, has_core, temp, phi, cells, flux, d_lo, d_hi, lower, diag,
+                                     upper, rhs, dx, work)
         n_newton += its
         err = 0.0
         big_t = 0.0

@@ -11,8 +11,8 @@ import math
 
 from ..melting import LAW_LINEAR
 from ._jit import njit
-from .layout import (F_DR, F_G, F_L, F_LM, F_P, F_R, F_RATIO, F_RHO, G_AUX1, G_AUX2, G_F, G_P, G_R, G_TLIQ, G_TSOL, P_ALPHA, P_CM,
-                     P_K, P_KAPPA, P_LATENT, P_RA_CR)
+from .layout import (F_DR, F_G, F_L, F_LM, F_P, F_R, F_RATIO, F_RHO, G_AUX1, G_AUX2, G_F, G_P, G_R, G_TLIQ,
+                     G_TSOL, P_ALPHA, P_CM, P_K, P_KAPPA, P_LATENT, P_RA_CR)
 from .melt import melt_fraction
 from .physics import activation_enthalpy, log_viscosity_grad, viscosity
 from .radiation import net_radiation
@@ -250,10 +250,10 @@ def rigid_mixing_length(cells, grid, faces, contrast):
     linear in radius between the face and the cells' centres). A stagnant lid is then a rigid boundary for the
     mantle under it, as the surface is for a mobile lid. ``contrast`` <= 0: F_L unchanged."""
     n = cells.shape[1]
+    if contrast <= 0.0:
+        faces[F_LM] = faces[F_L]
+        return
     for j in range(1, n):
-        if contrast <= 0.0:
-            faces[F_LM, j] = faces[F_L, j]
-            continue
         base = 0.5 * (cells[CW_LN_ETA, j - 1] + cells[CW_LN_ETA, j])
         target = base + contrast
         el = faces[F_L, j]
