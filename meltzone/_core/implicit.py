@@ -154,9 +154,9 @@ def heat_pipe(i, h, temp, phi, grid, law, par, ts):
     """(S [W], dS/dh [W kg/J]) of the heat pipe out of cell i: melt above PIPE_MELT in a partly molten cell no
     deeper than volcanism.max_extraction_pressure_gpa leaves at the rate m (phi - PIPE_MELT) w / PIPE_TIME and
     erupts; the cell loses the melt's enthalpy and gains that of the same mass of cold surface material sinking
-    in its place, L + c_p (T - T_s) per kg (the heat pipe of Moore & Webb 2013, Nature 501:501). w = 1 below the
-    rheological transition, falling to 0 across it with the viscosity's smoothstep (a magma ocean convects its
-    heat instead). Whether the pipe runs at all (volcanism on, stagnant lid, a solid top) is
+    in its place, L + c_p (T - T_s) per kg (the heat pipe of Moore & Webb 2013, Nature 501:501; from memory).
+    w = 1 below the rheological transition, falling to 0 across it with the viscosity's smoothstep (a magma
+    ocean convects its heat instead). Whether the pipe runs at all (volcanism on, stagnant lid, a solid top) is
     :func:`_pipe_surface`'s decision, once per step."""
     if grid[G_P, i] > par[P_P_EXTRACT] or phi[i] <= PIPE_MELT:
         return 0.0, 0.0

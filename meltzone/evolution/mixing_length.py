@@ -54,7 +54,8 @@ Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltz
 * heat pipe (stagnant lid, volcanism.enabled = "on", under a solid top cell): melt above 1% in a cell no deeper
   than volcanism.max_extraction_pressure_gpa leaves at the rate m (phi - 0.01) w / 10 kyr (w falls from 1 to
   0 across the rheological transition: a magma ocean convects instead) and erupts, each kg taking L + c_p (T -
-  T_s) out of the cell (Moore & Webb 2013, Nature 501:501); this heat is part of the surface heat flow. Without
+  T_s) out of the cell (Moore & Webb 2013, Nature 501:501; from memory); this heat is part of the surface heat
+  flow. Without
   it, the stagnant mantle that the bound keeps hot held 30% melt under a 27 km lid at 5 M_E. The extraction
   time is short against the thermal evolution: 1 and 100 kyr give the same heat flow at 4.5 Gyr within 0.1%
   (1 and 5 M_E, 64 nodes). Intrusions, crust, outgassing and the melt's depletion are not followed in this
