@@ -12,7 +12,8 @@ VOLCANISM_KEYS = {
     "enabled": dict(
         default="on", unit="", choices=("on", "off"),
         doc="melt extraction from the partial-melt zone (boundary-layer scheme): heat pipe, crust growth and "
-            "outgassing; 'off' keeps all melt in the mantle",
+            "outgassing; the mixing-length scheme under a stagnant lid: the heat pipe only; 'off' keeps all melt "
+            "in the mantle",
         source="Morschhauser, Grott & Breuer 2011, Icarus 212:541 (stagnant lid); Kite, Manga & Gaidos 2009, "
                "ApJ 700:1732 (ridges); Moore & Webb 2013, Nature 501:501 (heat pipe)"),
     "erupted_fraction": dict(
