@@ -112,10 +112,13 @@ class Reference:
     def rigid_length(self, log_eta):
         """Mixing length per face bounded by a rigid region above it: the distance from the face up to where ln eta
         (linear in radius between the face, at the mean of its two cells, and the cells' nodes above) first exceeds
-        the face's own by a_rh (convection.rheology_a), if nearer than the nearer boundary."""
+        the face's own by a_rh (convection.rheology_a), if nearer than the nearer boundary; only at faces nearer
+        the surface than the core-mantle boundary."""
         out = self.length.copy()
         a_rh = self.ph.rheology_a
         for f in range(1, self.n):
+            if self.rf[f] - self.rf[0] < self.rf[-1] - self.rf[f]:
+                continue
             base = 0.5 * (log_eta[f - 1] + log_eta[f])
             rr = np.concatenate([[self.rf[f]], self.r[f:]])
             vv = np.concatenate([[base], log_eta[f:]]) - base

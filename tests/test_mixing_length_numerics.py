@@ -203,9 +203,10 @@ def test_surface_refinement_keeps_the_mantle():
 def test_rigid_mixing_length_on_an_exponential_viscosity_profile():
     """The mixing length under a rigid region (meltzone._core.mlt_physics.rigid_mixing_length) against its
     closed form: with ln eta rising linearly upward, ln eta = a + (r - r_0) / H, the viscosity has risen by
-    exp(a_rh) a_rh H above every face, so l = min(distance to the nearer boundary, a_rh H) (analytic; the
-    linear interpolation between nodes is exact for a linear profile). With a constant viscosity the bound never
-    binds (l = distance to the nearer boundary, as in Abe 1997's form)."""
+    exp(a_rh) a_rh H above every face, so l = min(distance to the nearer boundary, a_rh H) at the faces nearer the
+    surface, and the distance to the core-mantle boundary at the faces nearer that (the bound extends only the
+    upper boundary) (analytic; the linear interpolation between nodes is exact for a linear profile). With a
+    constant viscosity the bound never binds (l = distance to the nearer boundary, as in Abe 1997's form)."""
     from meltzone._core.mlt_physics import CW_LN_ETA, N_CW, rigid_mixing_length
 
     n, depth, a_rh = 64, 1.0e6, 2.5
@@ -217,9 +218,11 @@ def test_rigid_mixing_length_on_an_exponential_viscosity_profile():
     for scale in (2.0e4, 1.0e5):
         cells[CW_LN_ETA] = 40.0 + (r - r[0]) / scale
         rigid_mixing_length(cells, grid, faces, a_rh)
-        expected = np.minimum(faces[k.F_L], a_rh * scale)
+        upper = rf - r[0] >= r[-1] - rf
+        expected = np.where(upper, np.minimum(faces[k.F_L], a_rh * scale), faces[k.F_L])
         assert np.allclose(faces[k.F_LM, 1:n], expected[1:n], rtol=1e-12, atol=1e-6)
         assert np.any(faces[k.F_LM, 1:n] < faces[k.F_L, 1:n])
+        assert np.array_equal(faces[k.F_LM, 1:n][~upper[1:n]], faces[k.F_L, 1:n][~upper[1:n]])
     cells[CW_LN_ETA] = 45.0
     rigid_mixing_length(cells, grid, faces, a_rh)
     assert np.array_equal(faces[k.F_LM, 1:n], faces[k.F_L, 1:n])

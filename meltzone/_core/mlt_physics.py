@@ -248,12 +248,19 @@ def rigid_mixing_length(cells, grid, faces, contrast):
     geometric F_L (distance to the nearer boundary), or, if less, the distance up to the first point where the
     viscosity has risen by the factor exp(``contrast``) over the face's own (ln eta of the cells, row CW_LN_ETA,
     linear in radius between the face and the cells' centres). A stagnant lid is then a rigid boundary for the
-    mantle under it, as the surface is for a mobile lid. ``contrast`` <= 0: F_L unchanged."""
+    mantle under it, as the surface is for a mobile lid. Only faces whose nearer boundary is the surface are
+    bounded: the lid extends the upper boundary, while the hot lower boundary layer, whose viscosity also rises
+    upward, keeps its distance to the core (bounded there, it grew conductively to ~500 km at 5 M_E and then
+    overturned at a time that depended on the grid). ``contrast`` <= 0: F_L unchanged."""
     n = cells.shape[1]
+    faces[F_LM] = faces[F_L]
     if contrast <= 0.0:
-        faces[F_LM] = faces[F_L]
         return
+    r_cmb = faces[F_R, 0]
+    r_top = faces[F_R, n]
     for j in range(1, n):
+        if faces[F_R, j] - r_cmb < r_top - faces[F_R, j]:
+            continue
         base = 0.5 * (cells[CW_LN_ETA, j - 1] + cells[CW_LN_ETA, j])
         target = base + contrast
         el = faces[F_L, j]

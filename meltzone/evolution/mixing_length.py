@@ -46,7 +46,10 @@ Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltz
   exp(a_rh) over the face's own (a_rh = convection.rheology_a, the rheological sublayer's scale of Solomatov &
   Moresi 2000, JGR 105:21795; the bound is this model's choice: a parcel cannot mix into a region much stiffer
   than itself, so a stagnant lid is a rigid boundary for the mantle under it, as the surface is; computed from
-  the state at the start of each step, :func:`meltzone._core.mlt_physics.rigid_mixing_length`). With l tapering
+  the state at the start of each step, :func:`meltzone._core.mlt_physics.rigid_mixing_length`), at the faces
+  nearer the surface than the core only (bounding the hot lower boundary layer too, whose viscosity also rises
+  upward, let it grow conductively to ~500 km at 5 M_E and overturn at a grid-dependent time: the heat flow at
+  4.5 Gyr was 294 and 192 TW at 256 and 512 nodes, now 163 and 161 TW, tested). With l tapering
   only to the surface the ~100 km conductive top carried the same flux whatever the rheology: a steadily
   convecting layer with an Arrhenius viscosity carried 8-14 times the stagnant-lid boundary-layer scaling, with
   the bound 1.8-2.1 times (tests/test_mixing_length_numerics.py); 1 M_E at 4.5 Gyr lost 33.5 TW through a
