@@ -4,6 +4,8 @@ friendly layer, :mod:`meltzone.evolution.boundary_layer`, describes the energy b
 
 from __future__ import annotations
 
+import math
+
 from ._jit import njit
 from .layout import (G_AUX1, G_AUX2, G_F, G_R, G_TLIQ, G_TSOL, G_W, P_BMO, P_BMO_DEP, P_BMO_ENRICH, P_BMO_MREF,
                      P_BMO_TREF, P_CM, P_CORE_RADIUS, P_LATENT)
@@ -25,6 +27,75 @@ def _ocean_melting_point(t_sol, m, par):
     where the mantle solidus is t_sol: t_sol - (dT0 + dT_fe (1 - m / M_ref)) x the depression's scale."""
     return t_sol - (par[P_BMO_DEP] + par[P_BMO_ENRICH] * (1.0 - m / par[P_BMO_MREF])) * _depression_scale(
         t_sol, par[P_BMO_TREF])
+
+
+@njit
+def _segment_bisection(tc, t_max, t_a, t_b, m0, m1, lo, hi, par):
+    """Root in [lo, hi] of the curve at the hottest point minus tc on one segment, by bisection (the fallback of
+    :func:`_segment_root`)."""
+    for _ in range(60):
+        mid = 0.5 * (lo + hi)
+        if _ocean_melting_point(max(t_max, t_a + mid * (t_b - t_a)), m0 + mid * (m1 - m0), par) <= tc:
+            lo = mid
+        else:
+            hi = mid
+        if hi - lo <= 1e-15:
+            break
+    return 0.5 * (lo + hi)
+
+
+@njit
+def _segment_root(tc, t_max, t_a, t_b, m0, m1, s_end, par):
+    """Position s in [0, s_end] between two nodes (solidus t_a -> t_b, mass below m0 -> m1, both linear in s) where
+    the ocean's curve at its hottest point, _ocean_melting_point(max(t_max, t_a + s (t_b - t_a)), m0 + s (m1 -
+    m0)), reaches tc; the curve is below tc at s = 0 and above it at s_end and rises strictly with s.
+
+    In closed form (algebra on the curve of :func:`_ocean_melting_point`): while the running maximum t_max is the
+    hottest point the curve is linear in s; where the node's solidus exceeds it, it is linear in s for a constant
+    depression and quadratic (solidus x scale, both linear) with the solidus scaling. A candidate outside its piece
+    or off the curve by more than 1e-11 of tc (round-off) falls back to bisection."""
+    dt = t_b - t_a
+    dm = m1 - m0
+    t_ref = par[P_BMO_TREF]
+    d_all = par[P_BMO_DEP] + par[P_BMO_ENRICH]
+    k_m = par[P_BMO_ENRICH] / par[P_BMO_MREF]  # d(depression) / d(mass) before the scale
+    s_star = s_end  # where the linear solidus passes the running maximum
+    if dt > 0.0:
+        s_star = min(max((t_max - t_a) / dt, 0.0), s_end)
+    s = -1.0
+    if s_star > 0.0 and _ocean_melting_point(t_max, m0 + s_star * dm, par) >= tc:
+        scale = t_max / t_ref if t_ref > 0.0 else 1.0
+        slope = k_m * scale * dm
+        if slope > 0.0:
+            s = (tc - _ocean_melting_point(t_max, m0, par)) / slope
+        lo, hi = 0.0, s_star
+    else:
+        if t_ref > 0.0:  # (t_a + s dt) (c0 + c1 s) = tc
+            c0 = 1.0 - (d_all - k_m * m0) / t_ref
+            c1 = k_m * dm / t_ref
+            a2 = dt * c1
+            a1 = t_a * c1 + dt * c0
+            a0 = t_a * c0 - tc
+            if abs(a2) * s_end <= 1e-12 * abs(a1):
+                if a1 != 0.0:
+                    s = -a0 / a1
+            else:
+                disc = a1 * a1 - 4.0 * a2 * a0
+                if disc >= 0.0:
+                    q = -0.5 * (a1 + math.copysign(math.sqrt(disc), a1))
+                    s1 = q / a2
+                    s2 = a0 / q if q != 0.0 else -1.0
+                    s = s1 if s_star - 1e-12 <= s1 <= s_end + 1e-12 else s2
+        else:  # t_a + s dt - d_all + k_m (m0 + s dm) = tc
+            den = dt + k_m * dm
+            if den > 0.0:
+                s = (tc - t_a + d_all - k_m * m0) / den
+        lo, hi = s_star, s_end
+    if lo - 1e-12 <= s <= hi + 1e-12:
+        s = min(max(s, lo), hi)
+        if abs(_ocean_melting_point(max(t_max, t_a + s * dt), m0 + s * dm, par) - tc) <= 1e-11 * tc:
+            return s
+    return _segment_bisection(tc, t_max, t_a, t_b, m0, m1, lo, hi, par)
 
 
 @njit
@@ -77,19 +148,7 @@ def basal_ocean(tc, grid, par):
             s_end = (m_ref - m_prev) / (m - m_prev)
         m_end = m_ref if s_end < 1.0 else m
         if tc < _ocean_melting_point(max(t_max, t_a + s_end * (t_b - t_a)), m_end, par):
-            # the curve at the hottest point rises strictly with s: bisection on this segment
-            lo = 0.0
-            hi = s_end
-            for _ in range(60):
-                mid = 0.5 * (lo + hi)
-                if _ocean_melting_point(max(t_max, t_a + mid * (t_b - t_a)), m_prev + mid * (m - m_prev),
-                                        par) <= tc:
-                    lo = mid
-                else:
-                    hi = mid
-                if hi - lo <= 1e-15:
-                    break
-            s = 0.5 * (lo + hi)
+            s = _segment_root(tc, t_max, t_a, t_b, m_prev, m, s_end, par)
             return (grid[G_R, j - 1] + s * (grid[G_R, j] - grid[G_R, j - 1]), m_prev + s * (m - m_prev),
                     j - 1 + s)
         if s_end < 1.0:  # above its melting curve at the cap
