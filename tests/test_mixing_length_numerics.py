@@ -284,3 +284,29 @@ def test_stagnant_lid_convection_follows_its_boundary_layer_scaling():
     assert 0.4 <= q_on / scale_on <= 2.5
     assert q_off / scale_off > 5.0
     assert bal_on == pytest.approx(1.0, abs=0.01)
+
+
+def test_lid_base_is_interpolated_between_faces():
+    """The stagnant lid's base (meltzone._core.implicit.lid_base) against its closed form: with a constant
+    conductive flux k dT / dr at two faces and convective / conductive ratios exp(a) below and exp(-b) above, the
+    base lies a / (a + b) of the way from the lower face to the upper one (analytic; ln of the ratio linear in
+    radius between the faces); with no face above the top convecting cell's (the surface) it is that face."""
+    from meltzone._core.implicit import lid_base
+
+    n, k_th = 10, 4.0
+    r = np.linspace(6.0e6, 6.4e6, n + 1)  # faces
+    faces = np.zeros((k.N_F, n + 1))
+    faces[k.F_R] = r
+    faces[k.F_DR] = 4.0e4
+    temp = np.linspace(2000.0, 500.0, n)
+    par = np.zeros(k.N_PAR)
+    par[k.P_K] = k_th
+    cond = -k_th * (temp[1] - temp[0]) / 4.0e4
+    for a, b in ((2.0, 3.0), (0.5, 20.0)):
+        flux = np.full(n + 1, cond)
+        j = 6
+        flux[j] = cond * (1.0 + math.exp(a))
+        flux[j + 1] = cond * (1.0 + math.exp(-b))
+        want = r[j] + (r[j + 1] - r[j]) * a / (a + b)
+        assert lid_base(temp, flux, faces, par, j) == pytest.approx(want, rel=1e-9)  # flux - cond cancels
+    assert lid_base(temp, flux, faces, par, n) == r[n]

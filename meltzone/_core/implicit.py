@@ -257,6 +257,30 @@ def upper_cell(temp, flux, faces, par):
 
 
 @njit
+def lid_base(temp, flux, faces, par, top_face):
+    """Radius [m] of the stagnant lid's base: where the convective share of the face flux equals the conductive
+    one, ln(convective / conductive) interpolated linearly in radius between the top convecting cell's upper face
+    (``top_face``, convection above conduction) and the face above it (the ratio falls about exponentially
+    through the lid's base, with the viscosity), so that the thickness is not a cell-face depth."""
+    n = temp.shape[0]
+    j = top_face
+    if j >= n or j < 1:
+        return faces[F_R, min(max(j, 0), n)]
+    y = np.empty(2)
+    for a in range(2):
+        f = j + a
+        if f >= n:  # the surface face: no convection above the top cell's centroid
+            y[a] = -700.0
+            continue
+        cond = -par[P_K] * (temp[f] - temp[f - 1]) / faces[F_DR, f]
+        conv = flux[f] - cond
+        y[a] = math.log(max(conv / cond, 1e-300)) if cond > 0.0 else -700.0
+    if y[0] <= 0.0 or y[1] >= 0.0:
+        return faces[F_R, j]
+    return faces[F_R, j] + (faces[F_R, j + 1] - faces[F_R, j]) * y[0] / (y[0] - y[1])
+
+
+@njit
 def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, rad, wat, out,
            newton_its, hist, temps, phis, n_h):
     """Store accepted step ``n_h``: history row (MH_*) and T, phi on every cell. ``wat`` = (vapour, CO2, ocean,
@@ -287,7 +311,7 @@ def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, 
     hist[n_h, MH_QC] = flux[0] * faces[F_A, 0] if has_core else 0.0
     hist[n_h, MH_H] = radiogenic_power(t, iso, par)
     stagnant = par[P_STAGNANT] > 0.5
-    hist[n_h, MH_LID] = par[P_RADIUS] - faces[F_R, top_face] if stagnant else 0.0
+    hist[n_h, MH_LID] = par[P_RADIUS] - lid_base(temp, flux, faces, par, top_face) if stagnant else 0.0
     hist[n_h, MH_RIC] = inner_core(tc, core)[0] if has_core else 0.0
     hist[n_h, MH_MELT] = melt
     # the regime's melt fraction: the isentrope of the top convecting cell at the surface (the top cell's own

@@ -109,8 +109,11 @@ limit), and the mixing length at its lower face is a quarter of a cell, so the c
 layer outgrows it; measured, the top cell leaving phi_c at 256, 512 and 1024 nodes: 1 M_E 0.96, 0.37, 0.17 Myr,
 5 M_E 3.8, 3.2, 1.5 Myr, 10 M_E 5.2, 5.2, 3.5 Myr (with the node distances at the outer faces 1 M_E 1.55, 0.89,
 0.68 Myr). ``upper_temperature`` = potential temperature T / f of the top convecting cell, counting the top cell
-when its boundary layer is thinner than the half cell; ``lid_thickness`` (stagnant lid) = depth of that cell's
-upper face; ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
+when its boundary layer is thinner than the half cell; ``lid_thickness`` (stagnant lid) = depth of the lid's
+base, where the convective share of the face flux equals the conductive one, ln(convective / conductive)
+interpolated in radius between that cell's upper face and the face above
+(:func:`meltzone._core.implicit.lid_base`; as the upper face's depth, 1 M_E at 4.5 Gyr gave 207, 199, 190 km at
+64, 256, 512 nodes, now 199, 190, 190 km); ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
 
 Grid convergence (measured with ``benchmarks/convergence_mlt.py``, mobile lid; the numbers before the surface
 refinement at 64, 128, 256, 512, 1024 nodes unless said, with it at 256, 512, 1024). The bulk of the magma ocean
