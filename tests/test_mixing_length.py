@@ -225,8 +225,8 @@ def test_grid_convergence_of_the_surface_magma_ocean_end():
     assert fine == pytest.approx(coarse, rel=0.02)
 
 
-@pytest.mark.xfail(strict=True, reason="measured 20.6 and 16.6 Myr (19%) at 256 and 512 nodes (22.3, 17.0 and 7.8 Myr at "
-                                       "256, 512 and 1024 before the liquid-iron core profile): "
+@pytest.mark.xfail(strict=True, reason="measured 20.6 and 16.6 Myr (19%) at 256 and 512 nodes (22.3, 17.0 and "
+                                       "7.8 Myr at 256, 512 and 1024 before the liquid-iron core profile): "
                                        "the 5 M_E regime melt fraction drifts along phi_c for ~10 Myr; cause: the "
                                        "conductive lid under the surface lies inside the top half cell (with the "
                                        "experimental surface refinement TOP_LEVELS = 4: 8.18 and 7.90 Myr, 3.5%)")

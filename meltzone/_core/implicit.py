@@ -257,27 +257,31 @@ def upper_cell(temp, flux, faces, par):
 
 
 @njit
+def _log_convective_ratio(f, temp, flux, faces, par):
+    """ln(convective / conductive flux) at interior face f; -700 at the surface face or where conduction does
+    not carry heat upward."""
+    if f >= temp.shape[0]:
+        return -700.0
+    cond = -par[P_K] * (temp[f] - temp[f - 1]) / faces[F_DR, f]
+    if cond <= 0.0:
+        return -700.0
+    return math.log(max((flux[f] - cond) / cond, 1e-300))
+
+
+@njit
 def lid_base(temp, flux, faces, par, top_face):
     """Radius [m] of the stagnant lid's base: where the convective share of the face flux equals the conductive
     one, ln(convective / conductive) interpolated linearly in radius between the top convecting cell's upper face
-    (``top_face``, convection above conduction) and the face above it (the ratio falls about exponentially
+    (``top_face``, 1 .. n, convection above conduction) and the face above it (the ratio falls about exponentially
     through the lid's base, with the viscosity), so that the thickness is not a cell-face depth."""
-    n = temp.shape[0]
     j = top_face
-    if j >= n or j < 1:
-        return faces[F_R, min(max(j, 0), n)]
-    y = np.empty(2)
-    for a in range(2):
-        f = j + a
-        if f >= n:  # the surface face: no convection above the top cell's centroid
-            y[a] = -700.0
-            continue
-        cond = -par[P_K] * (temp[f] - temp[f - 1]) / faces[F_DR, f]
-        conv = flux[f] - cond
-        y[a] = math.log(max(conv / cond, 1e-300)) if cond > 0.0 else -700.0
-    if y[0] <= 0.0 or y[1] >= 0.0:
+    if j >= temp.shape[0]:
         return faces[F_R, j]
-    return faces[F_R, j] + (faces[F_R, j + 1] - faces[F_R, j]) * y[0] / (y[0] - y[1])
+    y0 = _log_convective_ratio(j, temp, flux, faces, par)
+    y1 = _log_convective_ratio(j + 1, temp, flux, faces, par)
+    if y0 <= 0.0 or y1 >= 0.0:
+        return faces[F_R, j]
+    return faces[F_R, j] + (faces[F_R, j + 1] - faces[F_R, j]) * y0 / (y0 - y1)
 
 
 @njit

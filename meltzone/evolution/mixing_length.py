@@ -55,13 +55,12 @@ Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltz
   the bound 1.8-2.1 times (tests/test_mixing_length_numerics.py); 1 M_E at 4.5 Gyr lost 33.5 TW through a
   stagnant lid against 31.0 TW through a mobile one (64 nodes), now 26.3 TW (26.3 at 256 and 512 nodes);
 * heat pipe (stagnant lid, volcanism.enabled = "on", under a solid top cell): melt above 1% in a cell no deeper
-  than volcanism.max_extraction_pressure_gpa leaves at the rate m (phi - 0.01) w / 10 kyr (w falls from 1 to
-  0 across the rheological transition: a magma ocean convects instead) and erupts, each kg taking L + c_p (T -
-  T_s) out of the cell (Moore & Webb 2013, Nature 501:501; from memory); this heat is part of the surface heat
-  flow. Without
-  it, the stagnant mantle that the bound keeps hot held 30% melt under a 27 km lid at 5 M_E. The extraction
-  time is short against the thermal evolution: 1 and 100 kyr give the same heat flow at 4.5 Gyr within 0.1%
-  (1 and 5 M_E, 64 nodes). Intrusions, crust, outgassing and the melt's depletion are not followed in this
+  than volcanism.max_extraction_pressure_gpa leaves at the rate m (phi - 0.01) w / 10 kyr (w falls from 1 to 0
+  across the rheological transition: a magma ocean convects instead) and erupts, each kg taking L + c_p (T - T_s)
+  out of the cell (Moore & Webb 2013, Nature 501:501; from memory); this heat is part of the surface heat flow.
+  Without it, the stagnant mantle that the bound keeps hot held 30% melt under a 27 km lid at 5 M_E. The
+  extraction time is short against the thermal evolution: 1 and 100 kyr give the same heat flow at 4.5 Gyr within
+  0.1% (1 and 5 M_E, 64 nodes). Intrusions, crust, outgassing and the melt's depletion are not followed in this
   scheme (all extracted melt counts as erupted for its heat: an upper bound of the pipe);
 * radiogenic heating per cell by mass (the same isotope table).
 
@@ -113,7 +112,8 @@ when its boundary layer is thinner than the half cell; ``lid_thickness`` (stagna
 base, where the convective share of the face flux equals the conductive one, ln(convective / conductive)
 interpolated in radius between that cell's upper face and the face above
 (:func:`meltzone._core.implicit.lid_base`; as the upper face's depth, 1 M_E at 4.5 Gyr gave 207, 199, 190 km at
-64, 256, 512 nodes, now 199, 190, 190 km); ``switch_times["rheological_switch"]`` = first recorded time at which no cell is above phi_c.
+64, 256, 512 nodes, now 199, 190, 190 km); ``switch_times["rheological_switch"]`` = first recorded time at
+which no cell is above phi_c.
 
 Grid convergence (measured with ``benchmarks/convergence_mlt.py``, mobile lid; the numbers before the surface
 refinement at 64, 128, 256, 512, 1024 nodes unless said, with it at 256, 512, 1024). The bulk of the magma ocean
