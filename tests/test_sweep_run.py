@@ -236,6 +236,34 @@ def _assert_checkpoint_kept(out, rows):
             assert np.array_equal(c[k][i], v, equal_nan=True), (i, k)
 
 
+@pytest.mark.parametrize("after_rename", [True, False])
+def test_interrupt_inside_a_batch_write_neither_repeats_nor_drops_a_case(tmp_path, monkeypatch, after_rename):
+    """Ctrl-C can land while a batch is being written: just after its rename (the batch is on disk) or just
+    before it (it is not). The flush on the way out then writes each case exactly once."""
+    from meltzone.sweep import checkpoint as ck
+
+    ckpt = ck.Checkpoint(tmp_path / "p", "id", 10, every=100, seconds=1e9)
+    ckpt.open(resume=False)
+    real = os.replace
+
+    def interrupted(src, dst):
+        if after_rename:
+            real(src, dst)
+        raise KeyboardInterrupt
+
+    ckpt.add([{"case": 0}])  # the first task is written at once
+    ckpt.add([{"case": 1}, {"case": 2}])
+    monkeypatch.setattr(ck.os, "replace", interrupted)
+    with pytest.raises(KeyboardInterrupt):
+        ckpt.flush()
+    monkeypatch.setattr(ck.os, "replace", real)
+    ckpt.add([{"case": 3}])
+    ckpt.flush()  # as on the way out of an interrupted sweep
+    rows = [r["case"] for part in sorted(ckpt.folder.glob("part-*.json"))
+            for r in json.loads(part.read_text())["results"]]
+    assert rows == [0, 1, 2, 3]
+
+
 def test_ctrl_c_then_resume_runs_only_missing_cases(serial_file, tmp_path):
     out = tmp_path / "int.h5"
 

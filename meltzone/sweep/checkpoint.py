@@ -156,13 +156,28 @@ class Checkpoint:
             self.flush()
 
     def flush(self) -> None:
-        """Write the gathered rows as one batch (nothing when there are none)."""
+        """Write the gathered rows as one batch (nothing when there are none).
+
+        Safe against an interrupt (Ctrl-C) at any point of the write: whether the rows count as written is
+        decided by the batch file itself, so the flush on the way out neither repeats a batch whose rename
+        finished just before the interrupt nor drops one whose rename never happened."""
         if self.buffer:
-            self.seq += 1
-            self._atomic_write(f"part-{self.seq:06d}.json", {"results": self.buffer})
-            self.buffer = []
-            self.written += 1
+            rows, name = self.buffer, f"part-{self.seq + 1:06d}.json"
+            try:
+                self.buffer = []
+                self._atomic_write(name, {"results": rows})
+            except BaseException:
+                if not (self.folder / name).exists():
+                    self.buffer = rows + self.buffer  # not on disk: the next flush writes them
+                    raise
+                self._written()
+                raise
+            self._written()
         self.last = time.monotonic()
+
+    def _written(self) -> None:
+        self.seq += 1
+        self.written += 1
 
     def close(self) -> None:
         """Release the lock (the folder stays for --resume)."""
