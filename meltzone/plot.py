@@ -567,6 +567,10 @@ def build_history(result):
             if (values[0] > 0 or scale != "log") and h["time"][0] == 0.0:
                 ax.plot([t_zero], [values[0]], ls="none", marker="o", mfc="none", mec=colour, ms=5, clip_on=False)
         ax.set_yscale(scale)
+        low, high = ax.get_ylim()
+        if scale == "log" and high > 10.0 * low:  # decades are labelled: minor labels (2, 3, 4 x 10^n) collide
+            from matplotlib.ticker import NullFormatter
+            ax.yaxis.set_minor_formatter(NullFormatter())
         ax.set_ylabel(ylabel)
         ax.legend(fontsize=7, loc="center left", bbox_to_anchor=(1.01, 0.5), frameon=False)
         ax.grid(alpha=0.3, which="major")
