@@ -49,6 +49,12 @@ REGISTRY = {
                                         "(pressure dependence discussed by Stamenkovic et al. 2012, ApJ 748:41 and "
                                         "Tackley et al. 2013, Icarus 225:50; abstracts checked)",
                                         "exponential form and P_d", CHOICE),
+    "homologous_activation_volume": Citation("high-pressure activation volume V_inf, V(P) = V_inf + (V0 - V_inf) "
+                                             "exp(-P/P_d), so that H(P) keeps following the solidus (homologous "
+                                             "temperature scaling, H ~ g R T_m: Weertman 1970, Rev. Geophys. Space "
+                                             "Phys. 8:145, memory; post-perovskite DFT activation volumes stay above "
+                                             "zero to 1 TPa: Tackley et al. 2013, Icarus 225:50, abstract checked)",
+                                             "V_inf = 1 cm^3/mol", CHOICE),
     "mei2002": Citation("melt weakening of the solid viscosity, exp(-26 phi)", "Mei et al. 2002, EPSL 201:491",
                         MEMORY),
     "abe1997": Citation("rheological transition at a critical melt fraction ~0.4", "Abe 1997, PEPI 100:27", MEMORY),
@@ -291,6 +297,8 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
             "alfe2003", "latent_scaling", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
     if cv.activation_volume_decay_pa > 0.0:
         keys.append("activation_volume_decay")
+        if cv.high_pressure_activation_volume_m3_mol > 0.0:
+            keys.append("homologous_activation_volume")
     if cv.beta != 1.0 / 3.0 or cv.nusselt_prefactor != 1.0:
         keys += ["korenaga2008", "christensen1985"]
     if cv.regime == "stagnant-lid":
@@ -344,6 +352,8 @@ def mixing_length_keys(spec) -> tuple[str, ...]:
             "mcdonough2020"]
     if spec.convection.activation_volume_decay_pa > 0.0:
         keys.append("activation_volume_decay")
+        if spec.convection.high_pressure_activation_volume_m3_mol > 0.0:
+            keys.append("homologous_activation_volume")
     if spec.convection.regime == "mobile-lid":
         keys.append("mlt_mobile_lid")
     if spec.surface.atmosphere == "grey":

@@ -359,6 +359,10 @@ def _check_together(values: Mapping[str, Mapping[str, Any]], explicit: set) -> N
     """Checks that involve more than one key (each message names every key involved); ``explicit`` holds the
     (section, key) pairs the input set (file, ``--set`` or keyword), whatever their values."""
     cv = values["convection"]
+    if (v_inf := cv["high_pressure_activation_volume_m3_mol"]) > cv["activation_volume_m3_mol"]:
+        raise ConfigError(f"convection.high_pressure_activation_volume_m3_mol = {v_inf:g} m^3/mol exceeds convection."
+                          f"activation_volume_m3_mol = {cv['activation_volume_m3_mol']:g} m^3/mol: the activation "
+                          "volume decays with pressure towards it, so it must not be larger")
     if cv["critical_melt_fraction"] + cv["rheology_blend_width"] >= 1.0:
         raise ConfigError(f"convection.critical_melt_fraction + convection.rheology_blend_width = "
                           f"{cv['critical_melt_fraction']:g} + {cv['rheology_blend_width']:g}: must be < 1, so "

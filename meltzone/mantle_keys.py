@@ -10,8 +10,17 @@ from __future__ import annotations
 
 
 def convection_keys(key) -> dict:
-    """Keys of [convection]: the stagnant-lid growth law."""
+    """Keys of [convection]: the deep mantle's activation volume, the stagnant-lid growth law."""
     return {
+        "high_pressure_activation_volume_m3_mol": key(1.0e-6, "m^3/mol", "activation volume V_inf that V(P) "
+                                                      "decays to at high pressure, V(P) = V_inf + (V0 - V_inf) "
+                                                      "exp(-P / P_d); at most activation_volume_m3_mol",
+                                                      lo=0.0, hi=3.0e-5,
+            source="this model's choice, set by homologous-temperature scaling (Weertman 1970, Rev. Geophys. Space "
+                   "Phys. 8:145, from memory): with it the solid's viscosity at the default solidus stays within a "
+                   "factor ~4 of 1e20 Pa s from 25 GPa to 1.5 TPa (H / (R T_sol) 21-22), where V_inf = 0 lets it fall "
+                   "to 2e15 Pa s; DFT activation volumes of post-perovskite stay above zero to 1 TPa (Tackley et al. "
+                   "2013, Icarus 225:50, abstract checked)"),
         "lid_growth_law": key(
             "base-flux", "", "growth of the stagnant lid: 'base-flux', rho c (T_u - T_l) dD/dt = q_lid - q_u with "
             "T_l the lid's base temperature; or 'heat-balance-integral', rho c (T_u - T_lm) dD/dt = q_lid - q_u with "

@@ -100,6 +100,7 @@ class Physics:
     activation_energy: float
     activation_volume: float
     activation_volume_decay: float
+    high_pressure_activation_volume: float
     critical_rayleigh: float
     beta: float
     nusselt_prefactor: float
@@ -230,6 +231,7 @@ def build_inputs(spec, interior=None):
         expansivity=cv.thermal_expansivity, heat_capacity=cv.mantle_heat_capacity, latent_heat=cv.latent_heat,
         viscosity_prefactor=cv.viscosity_prefactor_pa_s, activation_energy=cv.activation_energy_j_mol,
         activation_volume=cv.activation_volume_m3_mol, activation_volume_decay=cv.activation_volume_decay_pa,
+        high_pressure_activation_volume=cv.high_pressure_activation_volume_m3_mol,
         critical_rayleigh=cv.critical_rayleigh, beta=cv.beta, nusselt_prefactor=cv.nusselt_prefactor,
         rheology_a=cv.rheology_a, melt_weakening=cv.melt_weakening, liquid_viscosity=cv.liquid_viscosity_pa_s,
         critical_melt_fraction=cv.critical_melt_fraction, blend_width=cv.rheology_blend_width,
@@ -343,7 +345,8 @@ def activation_enthalpy(p, ph):
     pd = ph.activation_volume_decay
     if pd <= 0.0:
         return ph.activation_energy + p * ph.activation_volume
-    return ph.activation_energy + ph.activation_volume * pd * (1.0 - math.exp(-p / pd))
+    v_inf = ph.high_pressure_activation_volume
+    return ph.activation_energy + v_inf * p + (ph.activation_volume - v_inf) * pd * (1.0 - math.exp(-p / pd))
 
 
 def viscosity(t, p, phi, ph):

@@ -88,8 +88,10 @@ class Reference:
         ph = self.ph
         p = self.mantle.pressure
         pd = ph.activation_volume_decay
+        v_inf = ph.high_pressure_activation_volume
         h_act = ph.activation_energy + (p * ph.activation_volume if pd <= 0.0
-                                        else ph.activation_volume * pd * (1.0 - np.exp(-p / pd)))
+                                        else v_inf * p + (ph.activation_volume - v_inf) * pd
+                                        * (1.0 - np.exp(-p / pd)))
         log_solid = (math.log(ph.viscosity_prefactor) + h_act / (ref.R_GAS * np.maximum(t, floors))
                      - ph.melt_weakening * phi)
         x = np.clip((phi - ph.critical_melt_fraction) / ph.blend_width, 0.0, 1.0)

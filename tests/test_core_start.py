@@ -76,52 +76,55 @@ STARTS = {"rheological-transition": {}, "adiabat": {"core_start": "adiabat"}, "h
 
 @pytest.fixture(scope="module")
 def lifetimes():
-    """core_solid_yr [yr] by (mass [M_E], start): defaults (mobile lid, boundary-layer scheme), 10 Gyr; None (the
-    core still has liquid at the end) counts as longer than the run."""
+    """(core_solid_yr [yr], core temperature at the end [K]) by (mass [M_E], start): defaults (mobile lid,
+    boundary-layer scheme), 10 Gyr; a core_solid_yr of None (the core still has liquid at the end) counts as
+    longer than the run (inf)."""
     out = {}
     for m in (3.0, 5.0, 8.0):
         for label, kw in STARTS.items():
-            t = evolve(PlanetSpec(mass_earth=m, end_time_gyr=10.0, **kw)).summary()["core_solid_yr"]
-            out[m, label] = np.inf if t is None else t
+            r = evolve(PlanetSpec(mass_earth=m, end_time_gyr=10.0, **kw))
+            t = r.summary()["core_solid_yr"]
+            out[m, label] = (np.inf if t is None else t, float(r.history["core_temperature"][-1]))
     return out
 
 
 def test_magma_ocean_erases_the_core_start(lifetimes):
     """"The magma ocean phase effectively erases any signs of the initial core thermodynamic state" (Vazan, Ormel,
-    Noack & Dominik 2018, rocky cores of sub-Neptunes; abstract checked): the time at which the core is fully solid
-    moves by less than 10% between the two rules and the 30000 K start, at 3, 5 and 8 M_E (measured: at most 4%,
-    3 M_E 4.26 -> 4.43 Gyr with the 30000 K start; the magma ocean drains the excess within a few kyr)."""
+    Noack & Dominik 2018, rocky cores of sub-Neptunes; abstract checked): the core temperature after 10 Gyr moves by
+    less than 1% between the two rules and the 30000 K start, at 3, 5 and 8 M_E (measured: at most 0.7%, 3 M_E
+    6613 -> 6658 K with the 30000 K start; the magma ocean drains the excess within a few kyr)."""
     for m in (3.0, 5.0, 8.0):
-        ref = lifetimes[m, "rheological-transition"]
-        assert np.isfinite(ref)
+        ref = lifetimes[m, "rheological-transition"][1]
         for label in ("adiabat", "hot"):
-            assert lifetimes[m, label] == pytest.approx(ref, rel=0.10), (m, label)
+            assert lifetimes[m, label][1] == pytest.approx(ref, rel=0.01), (m, label)
 
 
+@pytest.mark.xfail(strict=True, reason="measured: no 3-8 M_E core is fully solid within 10 Gyr with any start (inner "
+                   "cores 0.76-0.78, 0.87-0.88, 0.95 of the core radius at 3, 5, 8 M_E); with V_inf = 0 (the "
+                   "activation enthalpy saturating at E + V0 P_d) they were solid at 4.3, 0.85, 0.13 Gyr")
 def test_massive_cores_solid(lifetimes):
     """Cores of planets heavier than 2 M_E are solid (Morard et al. 2011, iron melting from first principles compared
     with super-Earth thermal profiles; abstract checked): with every start, the 3-8 M_E cores are fully solid within
-    the 10 Gyr run (measured: 4.3, 0.85, 0.13 Gyr at 3, 5, 8 M_E)."""
-    assert all(np.isfinite(t) and t < 10e9 for t in lifetimes.values())
+    the 10 Gyr run."""
+    assert all(t < 10e9 for t, _ in lifetimes.values())
 
 
-@pytest.mark.xfail(strict=True, reason="measured the opposite trend with every start: fully solid at 4.26-4.43, "
-                   "0.85-0.86, 0.13 Gyr at 3, 5, 8 M_E. Not the start (test_magma_ocean_erases_the_core_start): after "
-                   "the magma ocean the single mantle adiabat is held near the rheological transition at the top "
-                   "(T_u ~1670 K), so its base lies thousands of kelvin below its own solidus (10 M_E: ~3900 K against "
-                   "12,700 K) and the lower boundary layer drains the core; no hot, sluggish deep mantle insulates it")
+@pytest.mark.xfail(strict=True, reason="measured: every 3-8 M_E core keeps liquid through the 10 Gyr run with every "
+                   "start, so the run does not order them (the fraction of the core radius that is solid at 10 Gyr "
+                   "rises with mass, 0.78, 0.88, 0.95); with V_inf = 0 the opposite order: fully solid at 4.26-4.43, "
+                   "0.85-0.86, 0.13 Gyr at 3, 5, 8 M_E")
 def test_liquid_core_lasts_longer_with_planet_mass(lifetimes):
     """"The liquid core last[s] longer with increasing planet mass" (Zhang & Rogers 2022, ApJ, thermal evolution with
     mixing-length convection in mantle and core; abstract checked, which names the mantle's mass, through its thermal
     isolation of the core, as the control): 3 < 5 < 8 M_E for every start."""
     for label in STARTS:
-        assert lifetimes[3.0, label] < lifetimes[5.0, label] < lifetimes[8.0, label], label
+        assert lifetimes[3.0, label][0] < lifetimes[5.0, label][0] < lifetimes[8.0, label][0], label
 
 
-@pytest.mark.xfail(strict=True, reason="measured: the 5 M_E core is solid at 0.85 Gyr, the 3 M_E core at 4.3 Gyr, with "
-                   "every start; same cause as test_liquid_core_lasts_longer_with_planet_mass")
+@pytest.mark.xfail(strict=True, reason="measured: the 3, 5 and 8 M_E cores all keep liquid through 10 Gyr with every "
+                   "start; see test_liquid_core_lasts_longer_with_planet_mass")
 def test_liquid_core_lasts_longest_at_four_to_six_earth_masses(lifetimes):
     """"The liquid metal core lasted the longest for Earth-like planets four to six times larger in mass than the
     Earth" (Kraus et al. 2022, Science 375:202; journal summary checked): 5 M_E outlasts 3 and 8 M_E."""
     for label in STARTS:
-        assert lifetimes[5.0, label] > max(lifetimes[3.0, label], lifetimes[8.0, label]), label
+        assert lifetimes[5.0, label][0] > max(lifetimes[3.0, label][0], lifetimes[8.0, label][0]), label

@@ -123,6 +123,10 @@ P_BMO_TREF, = range(N_PAR, N_PAR := len(PARAMETERS))
 # min(phi, retained) (physics.solid_viscosity); 0, the switch of files written before it existed, takes phi
 PARAMETERS += ("retained_melt", "retained_melt_fraction")
 P_RETAIN, P_PHI_RETAIN = range(N_PAR, N_PAR := len(PARAMETERS))
+# viscosity, continued: the activation volume V_inf [m^3/mol] approached at high pressure (physics.activation_enthalpy);
+# 0, the value of files written before it existed, lets V(P) decay to zero
+PARAMETERS += ("high_pressure_activation_volume",)
+P_V_INF, = range(N_PAR, N_PAR := len(PARAMETERS))
 
 # ------------------------------------------------------------ diagnostics of physics.diagnose
 DIAGNOSTICS = ("surface_flux", "upper_flux", "cmb_flux", "surface_temperature", "upper_boundary_layer",

@@ -22,8 +22,8 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
                      P_ETA_LIQ, P_G_CMB, P_G_SURF, P_K, P_KAPPA, P_LATENT, P_LID_MIN,
                      P_MANTLE_MASS, P_MELT_WEAK, P_NU_A, P_P_CMB, P_P_EXTRACT, P_P_TOP, P_PHI_C, P_PHI_RETAIN,
                      P_RA_CR, P_RADIUS, P_RETAIN, P_RHO_MANTLE, P_RHO_TOP, P_VOLC,
-                     P_STAGNANT, P_START_AGE, P_T_EQ, P_V_ACT, P_V_DECAY, REGIME_MAGMA_OCEAN, REGIME_MOBILE_LID,
-                     REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
+                     P_STAGNANT, P_START_AGE, P_T_EQ, P_V_ACT, P_V_DECAY, P_V_INF, REGIME_MAGMA_OCEAN,
+                     REGIME_MOBILE_LID, REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
 from .basal import basal_ocean, basal_top_energy
 from .inner_core import inner_core_heat
 from .lid import lid_growth, lid_heat_temperature, smoothstep
@@ -54,16 +54,20 @@ LID_RELAX_TIME = 1.0e3 * YEAR
 
 @njit
 def activation_enthalpy(p, par):
-    """E + integral of V(P) dP with V(P) = V0 exp(-P / P_d) [J/mol]; E + P V0 when P_d = 0.
+    """E + integral of V(P) dP with V(P) = V_inf + (V0 - V_inf) exp(-P / P_d) [J/mol]; E + P V0 when P_d = 0.
 
     A decaying activation volume keeps the deep mantles of super-Earths from the astronomically
     high viscosities of a constant V (Stamenkovic et al. 2012, ApJ 748:41; Tackley et al. 2013,
     Icarus 225:50 discuss the pressure dependence; the exponential form and P_d here are this
-    model's choice, not fitted to those papers)."""
+    model's choice, not fitted to those papers). Its high-pressure limit V_inf keeps the activation
+    enthalpy rising with the melting temperature (homologous scaling, H ~ g R T_sol with g ~ 21-22
+    from 25 GPa to 1.5 TPa on the default solidus; Weertman 1970, from memory): with V_inf = 0, H
+    saturates at E + V0 P_d and the solid at its solidus would soften ~1e5 times from 0.1 to 1.5 TPa."""
     pd = par[P_V_DECAY]
     if pd <= 0.0:
         return par[P_E_ACT] + p * par[P_V_ACT]
-    return par[P_E_ACT] + par[P_V_ACT] * pd * (1.0 - math.exp(-p / pd))
+    v_inf = par[P_V_INF]
+    return par[P_E_ACT] + v_inf * p + (par[P_V_ACT] - v_inf) * pd * (1.0 - math.exp(-p / pd))
 
 
 @njit

@@ -300,6 +300,7 @@ def build_inputs(spec, interior, curves):
     par[k.P_E_ACT] = cv.activation_energy_j_mol
     par[k.P_V_ACT] = cv.activation_volume_m3_mol
     par[k.P_V_DECAY] = cv.activation_volume_decay_pa
+    par[k.P_V_INF] = cv.high_pressure_activation_volume_m3_mol
     par[k.P_RA_CR] = cv.critical_rayleigh
     par[k.P_BETA] = cv.beta
     par[k.P_NU_A] = cv.nusselt_prefactor
@@ -515,6 +516,14 @@ def _quadratic(t, t0, t1, y0, y1, d0):
     return y0 + d0 * h * s + (y1 - y0 - d0 * h) * s * s
 
 
+def padded_parameters(par: np.ndarray) -> np.ndarray:
+    """The parameters of a file written before the later ones existed, completed with zeros: each later
+    parameter's 0 is the law of the files written before it (meltzone._core.layout)."""
+    if len(par) < k.N_PAR:
+        par = np.concatenate([par, np.zeros(k.N_PAR - len(par))])
+    return par
+
+
 class Evaluator:
     """The state inside a step: T_u, T_c and the lid by cubic Hermite interpolation (values and rates at both
     ends of the step), then the core's diagnostics and profile at that state and time. The step that ends on the
@@ -527,8 +536,7 @@ class Evaluator:
         d = history.scheme_data
         grid, core, iso, par = (np.ascontiguousarray(d[name], dtype=np.float64) for name in ("grid", "core", "iso",
                                                                                               "par"))
-        if len(par) < k.N_PAR:  # a file written before the basal-ocean parameters: zeros, i.e. no basal ocean
-            par = np.concatenate([par, np.zeros(k.N_PAR - len(par))])
+        par = padded_parameters(par)
         core = complete_core(core, par)
         if grid.shape[0] < k.N_G:  # a file written before the density row (read only with P_PROPS on)
             grid = np.concatenate([grid, np.zeros((k.N_G - grid.shape[0], grid.shape[1]))])

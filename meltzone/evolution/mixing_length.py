@@ -151,7 +151,7 @@ import numpy as np
 from .._core import layout as k
 from ..constants import GYR, YEAR
 from ..errors import ConfigError, ConvergenceError
-from .boundary_layer import build_inputs, complete_core, initial_temperatures
+from .boundary_layer import build_inputs, complete_core, initial_temperatures, padded_parameters
 from .contract import INTEGER_INTERVAL_FIELDS, INTERVAL_FIELDS, SERIES, History, InStep, MantleGrid
 from .schemes import KERNEL_ERRORS, Scheme, kernel_failure
 
@@ -395,7 +395,7 @@ class Evaluator:
     def __init__(self, history: History):
         d = history.scheme_data
         self.grid = np.ascontiguousarray(d["grid"], dtype=np.float64)
-        self.par = np.ascontiguousarray(d["par"], dtype=np.float64)
+        self.par = padded_parameters(np.ascontiguousarray(d["par"], dtype=np.float64))
         self.core = complete_core(np.ascontiguousarray(d["core"], dtype=np.float64), self.par)
         self.law = int(d["law"])
         self.ec = np.asarray(d["core_energy"], dtype=np.float64)
