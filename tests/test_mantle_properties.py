@@ -149,7 +149,7 @@ def test_activation_enthalpy_follows_the_solidus():
     in mantle rheology): the activation enthalpy grows with the melting temperature, H ~ g R T_m with g roughly
     constant, so the solid at its solidus has about the same viscosity at every pressure. With the default
     high-pressure activation volume (1 cm^3/mol) g stays within 21-23 on the default solidus from 25 GPa to
-    1.5 TPa (measured 20.7-22.2) and the viscosity at the solidus within one order of magnitude; without it
+    1.5 TPa (measured 20.8-22.2) and the viscosity at the solidus within one order of magnitude; without it
     (V_inf = 0) H saturates at E + V0 P_d, g falls to ~10 and the solidus viscosity by > 4 orders of magnitude."""
     log_eta, g = _solidus_log10_viscosity()
     assert 20.0 < g.min() and g.max() < 23.0
