@@ -109,19 +109,15 @@ Hernlund & Coltice
   are at T_c with the mantle's melt law of T_c (that law does not know the enrichment). ``"off"`` (the default)
   gives the scheme without it (the lower boundary layer on the core). Off by default: its melting-curve form
   and its three parameters are this model's choice; at 0.5-2 M_E it stays at its cap for > 10 Gyr while the
-  mixing-length scheme's basal layer ends at 1.0-1.6 Gyr; and it moves Earth's inner core further from PREM
-  (1943 against 1769 km without it at 4.5 Gyr, measured). Its lifetime falls with planet mass above 2 M_E (1.77 Gyr at
-  5 M_E, 170 Myr at 10, 46 Myr at 15; 0.95 Gyr, 75 and 18 Myr with constant depressions), as the
-  mixing-length scheme's does, against the published rise (Lherm, Nakajima & Blackman 2026, JGR Planets 131;
-  abstract checked). Measured cause: the reservoir's heat loss, ~1800x larger at 10 M_E than at 1 M_E at the
-  start (5.3e16 against 3.0e13 W) for ~30x the heat to lose (core c_p x the cooling to the ocean's end). Its
-  factors: the jump T_c - T_b (10,080 against 1,890 K: T_c starts near the mantle's melting range at the CMB,
-  which rises 3x from 1 to 10 M_E, while the solid adiabat from T_u ~ 1660 K reaches only 3990 K there), the
-  boundary layer's viscosity at its mean temperature (2e17 against 1.4e21 Pa s; H / (R T) = 15 against 24) and
-  the density-dependent conductivity (k = 46 against 12 W/m/K). With a constant activation volume both schemes
-  keep it > 10 Gyr at 5-15 M_E; at P_d = 260 GPa it lives 6.5 Gyr, 0.64 Gyr and 0.15 Gyr at 5, 10 and 15 M_E;
-  with constant mantle properties 4.8, 0.67 and 0.23 Gyr; the core's start rule does not matter (the adiabat
-  rule: 1.79 Gyr at 5 M_E);
+  mixing-length scheme's basal layer ends at 1.3-2.0 Gyr; and it moves Earth's inner core from PREM (1447
+  against 1191 km without it at 4.5 Gyr, measured). With the default high-pressure activation volume (V_inf =
+  1 cm^3/mol, physics.activation_enthalpy) it outlives 10 Gyr at 0.5-15 M_E (77-161 km), as published studies
+  expect basal oceans to last longer in more massive planets (Lherm, Nakajima & Blackman 2026, JGR Planets 131;
+  abstract checked). With V_inf = 0 its lifetime fell with mass above 2 M_E (1.77 Gyr at 5 M_E, 170 Myr at 10,
+  46 Myr at 15): its heat loss at the start was ~1800x larger at 10 M_E than at 1 M_E (5.3e16 against 3.0e13 W)
+  for ~30x the heat to lose, through the jump T_c - T_b (10,080 against 1,890 K), the boundary layer's
+  viscosity at its mean temperature (2e17 against 1.4e21 Pa s; H / (R T) = 15 against 24, the activation
+  enthalpy saturating at E + V0 P_d) and the density-dependent conductivity (k = 46 against 12 W/m/K);
 * energy: the stored heat (sensible heat on the adiabat, latent heat of the
   melt, the lid's conductive profile, core sensible heat less the inner core's
   latent and gravitational energy) is one function of (T_u, lid) for the mantle
