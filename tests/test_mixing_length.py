@@ -292,7 +292,8 @@ def test_stagnant_lid_loses_heat_more_slowly_than_a_mobile_lid():
     (temperature scale ~ R T_i^2 / E), so at a similar interior temperature it carries a fraction of what a mobile
     lid carries (Solomatov & Moresi 2000, JGR 105, doi:10.1029/2000JB900197; abstract checked: "the low heat
     transport efficiency of stagnant lid convection"; the scaling from memory). The boundary-layer scheme
-    gives 0.63 of the mobile lid's loss at 1 M_E at 4.5 Gyr (15.9 against 25.1 TW; 0.34 before the high-pressure activation volume). Asserted: the mixing-length scheme's stagnant
+    gives 0.63 of the mobile lid's loss at 1 M_E at 4.5 Gyr (15.9 against 25.1 TW; 0.34 before the
+    high-pressure activation volume). Asserted: the mixing-length scheme's stagnant
     lid loses at most 0.7 of what its mobile lid loses (this project's tolerance, generous for the hotter
     interior a stagnant lid keeps)."""
     stagnant = evolve(spec_of(1.0, 64, 4.5, convection={"scheme": "mixing-length", "regime": "stagnant-lid"}))
