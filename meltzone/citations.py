@@ -288,6 +288,14 @@ REGISTRY.update({
 CHECKED_MELTING_MODELS = ("peridotite-lowp", "katz2003")
 
 
+def _activation_volume_keys(cv) -> list[str]:
+    """Registry keys of the activation volume's pressure law (both schemes share it)."""
+    if cv.activation_volume_decay_pa <= 0.0:
+        return []
+    return ["activation_volume_decay"] + (["homologous_activation_volume"]
+                                          if cv.high_pressure_activation_volume_m3_mol > 0.0 else [])
+
+
 def boundary_layer_keys(spec) -> tuple[str, ...]:
     """Registry keys of the laws a boundary-layer run of ``spec`` uses."""
     cv = spec.convection
@@ -295,10 +303,7 @@ def boundary_layer_keys(spec) -> tuple[str, ...]:
             "mei2002", "abe1997", "solomatov2015", "roscoe1952",
             "lejeune1995", "karki2010", "rheology_blend", "mckenzie1988", "labrosse2015", "anzellini2013",
             "alfe2003", "latent_scaling", "turcotte_schubert", "mcdonough1995", "mcdonough2020"]
-    if cv.activation_volume_decay_pa > 0.0:
-        keys.append("activation_volume_decay")
-        if cv.high_pressure_activation_volume_m3_mol > 0.0:
-            keys.append("homologous_activation_volume")
+    keys += _activation_volume_keys(cv)
     if cv.beta != 1.0 / 3.0 or cv.nusselt_prefactor != 1.0:
         keys += ["korenaga2008", "christensen1985"]
     if cv.regime == "stagnant-lid":
@@ -350,10 +355,7 @@ def mixing_length_keys(spec) -> tuple[str, ...]:
             "mei2002", "abe1997", "solomatov2015", "roscoe1952", "lejeune1995", "karki2010", "rheology_blend",
             "labrosse2015", "anzellini2013", "alfe2003", "latent_scaling", "turcotte_schubert", "mcdonough1995",
             "mcdonough2020"]
-    if spec.convection.activation_volume_decay_pa > 0.0:
-        keys.append("activation_volume_decay")
-        if spec.convection.high_pressure_activation_volume_m3_mol > 0.0:
-            keys.append("homologous_activation_volume")
+    keys += _activation_volume_keys(spec.convection)
     if spec.convection.regime == "mobile-lid":
         keys.append("mlt_mobile_lid")
     if spec.surface.atmosphere == "grey":

@@ -39,6 +39,8 @@ class Reference:
         ph, self.mantle, self.core = ref.build_inputs(spec, interior)
         # the scheme widens the rheological transition to at least MIN_BLEND (its docstring)
         self.ph = replace(ph, blend_width=max(ph.blend_width, MIN_BLEND))
+        # the activation enthalpy of every cell (its pressure is fixed): reference_evolution.activation_enthalpy
+        self.h_act = np.array([ref.activation_enthalpy(p, self.ph) for p in self.mantle.pressure])
         it = interior
         nc = it.cmb_index
         r = self.mantle.r
@@ -84,15 +86,9 @@ class Reference:
 
     def log_eta(self, t, phi, floors):
         """ln eta of every cell at its own T (at least its floor), phi and pressure: the law of
-        reference_evolution.viscosity written again for arrays."""
+        reference_evolution.viscosity written again for arrays, with the cells' activation enthalpies."""
         ph = self.ph
-        p = self.mantle.pressure
-        pd = ph.activation_volume_decay
-        v_inf = ph.high_pressure_activation_volume
-        h_act = ph.activation_energy + (p * ph.activation_volume if pd <= 0.0
-                                        else v_inf * p + (ph.activation_volume - v_inf) * pd
-                                        * (1.0 - np.exp(-p / pd)))
-        log_solid = (math.log(ph.viscosity_prefactor) + h_act / (ref.R_GAS * np.maximum(t, floors))
+        log_solid = (math.log(ph.viscosity_prefactor) + self.h_act / (ref.R_GAS * np.maximum(t, floors))
                      - ph.melt_weakening * phi)
         x = np.clip((phi - ph.critical_melt_fraction) / ph.blend_width, 0.0, 1.0)
         w = x * x * (3.0 - 2.0 * x)

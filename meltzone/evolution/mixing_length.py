@@ -49,11 +49,13 @@ Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltz
   the state at the start of each step, :func:`meltzone._core.mlt_physics.rigid_mixing_length`), at the faces
   nearer the surface than the core only (bounding the hot lower boundary layer too, whose viscosity also rises
   upward, let it grow conductively to ~500 km at 5 M_E and overturn at a grid-dependent time: the heat flow at
-  4.5 Gyr was 294 and 192 TW at 256 and 512 nodes, now 163 and 161 TW, tested). With l tapering
+  4.5 Gyr was 294 and 192 TW at 256 and 512 nodes, then 163 and 161 TW, measured before the high-pressure
+  activation volume; the grid test holds). With l tapering
   only to the surface the ~100 km conductive top carried the same flux whatever the rheology: a steadily
   convecting layer with an Arrhenius viscosity carried 8-14 times the stagnant-lid boundary-layer scaling, with
   the bound 1.8-2.1 times (tests/test_mixing_length_numerics.py); 1 M_E at 4.5 Gyr lost 33.5 TW through a
-  stagnant lid against 31.0 TW through a mobile one (64 nodes), now 26.3 TW (26.3 at 256 and 512 nodes);
+  stagnant lid against 31.0 TW through a mobile one (64 nodes), then 26.3 TW (26.3 at 256 and 512 nodes; 25.1
+  TW against 29.7 mobile with the high-pressure activation volume);
 * heat pipe (stagnant lid, volcanism.enabled = "on", under a solid top cell): melt above 1% in a cell no deeper
   than volcanism.max_extraction_pressure_gpa leaves at the rate m (phi - 0.01) w / 10 kyr (w falls from 1 to 0
   across the rheological transition: a magma ocean convects instead) and erupts, each kg taking L + c_p (T - T_s)

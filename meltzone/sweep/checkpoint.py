@@ -166,18 +166,13 @@ class Checkpoint:
             try:
                 self.buffer = []
                 self._atomic_write(name, {"results": rows})
-            except BaseException:
-                if not (self.folder / name).exists():
-                    self.buffer = rows + self.buffer  # not on disk: the next flush writes them
-                    raise
-                self._written()
-                raise
-            self._written()
+            finally:
+                if (self.folder / name).exists():
+                    self.seq += 1
+                    self.written += 1
+                else:  # not on disk: the next flush writes them
+                    self.buffer = rows + self.buffer
         self.last = time.monotonic()
-
-    def _written(self) -> None:
-        self.seq += 1
-        self.written += 1
 
     def close(self) -> None:
         """Release the lock (the folder stays for --resume)."""
