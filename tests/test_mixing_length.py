@@ -107,6 +107,25 @@ def test_energy_closes(which):
     assert r.history.n_steps > 100
 
 
+def test_steam_lava_world_keeps_its_ocean_finishes_and_closes_its_energy():
+    """A lava world under steam (invented: 0.82 M_E, core fraction 0.17, stagnant lid, 8.2e21 kg of water and
+    1.8e20 kg of CO2, a 0.80 M_sun star at 0.072 AU, 4.5 Gyr, 64 nodes). Hamano, Abe & Genda 2013 (Nature
+    497:607, abstract checked): inside the critical distance the magma ocean lasts until escape has desiccated the
+    planet (type II). Checked: the surface magma ocean is there at the end, the water is lost to space, and the
+    run reaches its end within 20,000 steps with its energy budget closed to 1e-8 (issue criteria; the lagged
+    volatiles left 5.8e-7 at 256 nodes; measured now at 64 nodes: see the assertion values in the note)."""
+    spec = as_spec({"convection": {"scheme": "mixing-length", "regime": "stagnant-lid"},
+                    "interior": {"mantle_nodes": 64},
+                    "run": {"end_time_gyr": 4.5, "max_steps": 20000},
+                    "planet": {"mass_earth": 0.8167, "core_mass_fraction": 0.1707},
+                    "surface": {"atmosphere": "steam", "water_inventory_kg": 8.16e21, "co2_inventory_kg": 1.81e20},
+                    "star": {"mass_msun": 0.8028}, "orbit": {"semi_major_axis_au": 0.07193}})
+    s = evolve(spec).summary()
+    assert s["magma_ocean_at_end"] and s["magma_ocean_end_yr"] is None
+    assert s["water_lost_kg"] == pytest.approx(8.16e21, rel=1e-3)
+    assert s["energy_closure"] <= 1e-8
+
+
 def test_grid_convergence_of_the_basal_layer():
     """Doubling the cells (256 -> 512 nodes, 1 M_E, 2 Gyr): the basal layer freezes (last melt) and separates from
     the surface magma ocean within 2% (issue #12's criterion for event times) and reaches its largest thickness
