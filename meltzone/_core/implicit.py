@@ -5,7 +5,8 @@ Unknowns x = (E_core, h_0 .. h_{n-1}) (core first, so that the core-CMB-cell cou
 Residual of row 0: (E_c - E_c^old) / dt + A_0 F_0; of row i + 1 (cell i): M_i (h_i - h_i^old) / dt
 - A_i F_i + A_{i+1} F_{i+1} - H_i, with face fluxes F_j (positive upward) at the end of the step. The sum of
 the rows is the global energy balance, so the scheme conserves energy to the Newton tolerance (Patankar 1980,
-Numerical Heat Transfer and Fluid Flow, finite volumes; common practice). Jacobian entries of the internal
+Numerical Heat Transfer and Fluid Flow, finite volumes; common practice); Newton stops only once that sum
+holds to CLOSE_K of the mantle's heat content. Jacobian entries of the internal
 faces in closed form, of the outer faces by one-sided differences (the surface's through the implicit function
 theorem on its radiative balance); the Thomas solve of :mod:`meltzone._core.tridiag`.
 
