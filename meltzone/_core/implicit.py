@@ -31,7 +31,7 @@ from .layout import (C_W, F_A, F_DR, F_R, G_F, G_P, G_W, M_DPHI, M_DT_CELL, M_ER
                      MS_EPS, MS_H, MS_H_PREV, MS_N_H, MS_N_NEWTON, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_A_RH, P_ATMOSPHERE,
                      P_BLEND, P_CC, P_CM, P_H_MAX, P_K, P_LATENT, P_P_EXTRACT, P_PHI_C, P_RADIUS, P_STAGNANT, P_T_END,
                      P_VOLC, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL)
-from .lid import smoothstep
+from .lid import smoothstep, smoothstep_slope
 from .mlt_physics import (CW_DLN_ETA, CW_DTDH, CW_H_ACT, CW_LN_ETA, N_CW, adiabat_floor, cell_activation,
                           cell_log_viscosity, cell_slope, cell_state, cmb_flux, interior_flux, rigid_mixing_length,
                           surface_adiabat_state, surface_flux, surface_flux_slope)
@@ -188,7 +188,7 @@ def heat_pipe(i, h, temp, phi, grid, law, par, ts):
     if xb >= 1.0:
         return 0.0, 0.0
     w = 1.0 - smoothstep(xb)
-    dw = -6.0 * xb * (1.0 - xb) / par[P_BLEND] if xb > 0.0 else 0.0
+    dw = -smoothstep_slope(xb) / par[P_BLEND]
     rate = grid[G_W, i] / PIPE_TIME
     per_kg = par[P_LATENT] + par[P_CM] * (temp[i] - ts)
     dt_dh, dphi_dh = cell_slope(h[i], temp[i], grid, i, law, par)
@@ -202,8 +202,8 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
            has_core, temp, phi, cells, flux, d_lo, d_hi, lower, diag, upper, rhs, dx, work, vvec, zvec):
     """Solve the backward-Euler step from x_old over dt in place of x (which holds the start guess); x[0] is
     the core's stored heat, x[1:] the cells' enthalpies. ``tc`` starts the core inversion. Returns
-    (converged, iterations, T_c, T_s, radiation state, volatiles); on success temp, phi and flux hold the end
-    state's.
+    (converged, iterations, iterations until the updates converged, T_c, T_s, radiation state, volatiles, the
+    heat pipe's power [W]); on success temp, phi and flux hold the end state's.
 
     With an atmosphere that exchanges volatiles with the melt, the radiation state is the end state's, too (the
     melt in contact, :func:`_melt_in_contact`, sets the dissolved and the airborne gases): the surface row then
@@ -232,7 +232,7 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
         _states(h, grid, law, par, temp, phi)
         for i in range(n):
             if not temp[i] > 0.0:  # a diverging iterate: the caller shortens the step
-                return False, it + 1, it + 1, tc, ts, rad, vol
+                return False, it + 1, it + 1, tc, ts, rad, vol, 0.0
         m_melt, low, cw = 0.0, n, 0.0
         if coupled:
             m_melt, low, cw = _melt_in_contact(phi, grid, par)
@@ -258,34 +258,33 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
             diag[i + 1] = m / dt - a_lo * d_hi[i] + a_hi * d_lo[i + 1] + d_pipe
             upper[i + 1] = a_hi * d_hi[i + 1]
         if not solve(lower, diag, upper, rhs, dx, work):
-            return False, it + 1, it + 1, tc, ts, rad, vol
+            return False, it + 1, it + 1, tc, ts, rad, vol, 0.0
         if coupled and m_melt > 0.0 and cw > 0.0:
             dm = VOL_FD * m_melt
             rad2, _ = _surface_from_melt(t_new, m_melt + dm, lost, par)
             q2, _ = surface_flux(temp[n - 1], phi[n - 1], faces, n, floors[n - 1], rad2, par)
             g = faces[F_A, n] * (q2 - flux[n]) / dm
-            vy = 0.0
-            for i in range(n + 1):
-                vvec[i] = 0.0
-                zvec[i] = 0.0
+            dphi_dh = 0.0
             for i in range(low, n):
-                vvec[i + 1] = g * cw * grid[G_W, i] * cell_slope(h[i], temp[i], grid, i, law, par)[1]
-            # the contact weight's own slope in the top cell's melt fraction
+                dphi_dh = cell_slope(h[i], temp[i], grid, i, law, par)[1]
+                vvec[i + 1] = g * cw * grid[G_W, i] * dphi_dh
+            # the contact weight's own slope in the top cell's melt fraction (dphi_dh is the top cell's now)
             xb = (phi[n - 1] - par[P_PHI_C]) / par[P_BLEND]
-            if 0.0 < xb < 1.0:
-                vvec[n] += g * m_melt / cw * 6.0 * xb * (1.0 - xb) / par[P_BLEND] \
-                    * cell_slope(h[n - 1], temp[n - 1], grid, n - 1, law, par)[1]
+            vvec[n] += g * m_melt / cw * smoothstep_slope(xb) / par[P_BLEND] * dphi_dh
+            vy = 0.0
             for i in range(low, n):
                 vy += vvec[i + 1] * dx[i + 1]
             if vy != 0.0:
+                for i in range(n + 1):
+                    zvec[i] = 0.0
                 zvec[n] = 1.0
                 if not solve(lower, diag, upper, zvec, rhs, work):
-                    return False, it + 1, it + 1, tc, ts, rad, vol
+                    return False, it + 1, it + 1, tc, ts, rad, vol, 0.0
                 vz = 0.0
                 for i in range(low, n):
                     vz += vvec[i + 1] * rhs[i + 1]
                 if not abs(1.0 + vz) > 1e-12:
-                    return False, it + 1, it + 1, tc, ts, rad, vol
+                    return False, it + 1, it + 1, tc, ts, rad, vol, 0.0
                 for i in range(n + 1):
                     dx[i] -= rhs[i] * vy / (1.0 + vz)
         big = 0.0
@@ -296,7 +295,7 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
             x[0] -= dx[0]
             big = max(big, abs(dx[0]) / c_core * par[P_CM])
         if not (big < 1e300):
-            return False, it + 1, it + 1, tc, ts, rad, vol
+            return False, it + 1, it + 1, tc, ts, rad, vol, 0.0
         # converged when the update, or the error left after it estimated from the contraction rate
         # theta = |dx_k| / |dx_k-1| as theta / (1 - theta) |dx_k|, is below the tolerance (Hairer & Wanner 1996,
         # Solving ODEs II, sec. IV.8; checked: no)
@@ -317,16 +316,18 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
             # (or to CLOSE_REL of the stored heat and the step's flows, the rounding of their sum)
             gap = (x[0] - x_old[0]) + dt * (faces[F_A, n] * flux[n] - heat)
             size = abs(x[0]) + dt * (abs(faces[F_A, n] * flux[n]) + heat)
+            pipe_total = 0.0
             for i in range(n):
                 gap += grid[G_W, i] * (h[i] - x_old[i + 1])
                 size += grid[G_W, i] * abs(h[i])
                 if ts_pipe > 0.0:
-                    pipe = dt * heat_pipe(i, h, temp, phi, grid, law, par, ts_pipe)[0]
-                    gap += pipe
-                    size += abs(pipe)
+                    pipe = heat_pipe(i, h, temp, phi, grid, law, par, ts_pipe)[0]
+                    pipe_total += pipe
+                    gap += dt * pipe
+                    size += dt * abs(pipe)
             if abs(gap) <= max(CLOSE_K * par[P_CM] * m_total, CLOSE_REL * size):
-                return True, it + 1, n_upd, tc, ts, rad, vol
-    return False, max_it, max_it, tc, ts, rad, vol
+                return True, it + 1, n_upd, tc, ts, rad, vol, pipe_total
+    return False, max_it, max_it, tc, ts, rad, vol, 0.0
 
 
 @njit
@@ -543,10 +544,9 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
         if dt_prev > 0.0:  # Newton starts from the linear predictor (the error estimate's)
             for i in range(n + 1):
                 x[i] = x_old[i] + dt * (x_old[i] - x_prev[i]) / dt_prev
-        ok, its, its_upd, tc_new, ts, rad_new, vol_new = newton(t + dt, dt, x_old, x, tc, grid, faces, core, iso,
-                                                                par, law, mset, floors, rad, vol, lost, ts_pipe,
-                                                                has_core, temp, phi, cells, flux, d_lo, d_hi, lower,
-                                                                diag, upper, rhs, dx, work, vvec, zvec)
+        ok, its, its_upd, tc_new, ts, rad_new, vol_new, pipe = newton(
+            t + dt, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors, rad, vol, lost, ts_pipe,
+            has_core, temp, phi, cells, flux, d_lo, d_hi, lower, diag, upper, rhs, dx, work, vvec, zvec)
         n_newton += its
         err = 0.0
         big_t = 0.0
@@ -567,10 +567,6 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
                 err /= mset[M_ERR]
         if ok and err <= 1.0 and big_t <= mset[M_DT_CELL] and big_phi <= mset[M_DPHI]:
             heat = radiogenic_power(t + dt, iso, par)
-            pipe = 0.0
-            if ts_pipe > 0.0:
-                for i in range(n):
-                    pipe += heat_pipe(i, x[1:], temp, phi, grid, law, par, ts_pipe)[0]
             out += dt * (flux[n] * faces[F_A, n] + pipe - heat)
             rad = rad_new
             vol = vol_new

@@ -77,6 +77,12 @@ def smoothstep(x):
 
 
 @njit
+def smoothstep_slope(x):
+    """d smoothstep / dx: 6 x (1 - x) between 0 and 1, else 0."""
+    return 6.0 * x * (1.0 - x) if 0.0 < x < 1.0 else 0.0
+
+
+@njit
 def floored_rate(rate, d, par):
     """dD/dt [m/s] with the floor of the module: ``rate`` times s_D + (1 - s_D) smoothstep(rate / r_w), s_D =
     smoothstep((D - D_min) / D_min), r_w = kappa / D_min; ``rate`` itself for D >= 2 D_min. A thinning

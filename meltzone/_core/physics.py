@@ -26,7 +26,7 @@ from .layout import (C_F, C_MCUM, C_R, C_TMELT, C_W, D_ATM_CO2, D_ATM_H2O, D_DEL
                      REGIME_MOBILE_LID, REGIME_STAGNANT_LID, Y_EC, Y_EM, Y_LID, Y_OUT)
 from .basal import basal_ocean, basal_top_energy
 from .inner_core import inner_core_heat
-from .lid import lid_growth, lid_heat_temperature, smoothstep
+from .lid import lid_growth, lid_heat_temperature, smoothstep, smoothstep_slope
 from .properties import at_depth, depth_index, property_factors
 from .layout import D_MB, D_RB, G_P, G_RHO, P_BMO, P_BMO_MREF, P_RA_VISC, RA_VISC_MID, RA_VISC_SURFACE
 from .layout import Y_OG_CO2, Y_OG_H2O
@@ -90,7 +90,7 @@ def log_viscosity_grad(t, h_act, phi, par):
     value = w * susp + (1.0 - w) * solid
     if value > 700.0:
         return 700.0, 0.0, 0.0
-    dw = 6.0 * xb * (1.0 - xb) / par[P_BLEND] if xb < 1.0 else 0.0
+    dw = smoothstep_slope(xb) / par[P_BLEND]
     dsusp = -2.5 / (phi_m * (1.0 - x)) if (1.0 - phi) / phi_m < 0.999 else 0.0
     return value, (1.0 - w) * ds_dt, dw * (susp - solid) + w * dsusp - (1.0 - w) * par[P_MELT_WEAK]
 
