@@ -179,10 +179,11 @@ def test_steady_convection_follows_boundary_layer_scaling():
     assert bal1 == pytest.approx(1.0, abs=0.01) and bal2 == pytest.approx(1.0, abs=0.01)
 
 
-def test_surface_refinement_keeps_the_mantle():
-    """The experimental surface refinement (meltzone.evolution.mixing_length.refined_interior, off by default):
-    four more nodes between the last two, radii strictly increasing, the top spacing halved four times, and the
-    cells' masses (midpoint rule on the enclosed mass) still summing to the mantle's mass to 1e-12 (common
+def test_boundary_refinement_keeps_the_mantle():
+    """The scheme's refinement at the boundaries (meltzone.evolution.mixing_length.refined_interior: the
+    experimental surface levels, off by default, and the CMB levels): four more nodes between the last two and
+    four between the first two mantle nodes, radii strictly increasing, the outer spacings halved four times, and
+    the cells' masses (midpoint rule on the enclosed mass) still summing to the mantle's mass to 1e-12 (common
     practice: a refinement that adds nodes keeps the total)."""
     from meltzone.config import as_spec
     from meltzone.evolution.boundary_layer import _node_weights
@@ -190,14 +191,17 @@ def test_surface_refinement_keeps_the_mantle():
     from meltzone.interior import build_interior
 
     it = build_interior(as_spec({"planet": {"mass_earth": 1.0}, "interior": {"mantle_nodes": 64}}))
-    fine = refined_interior(it, 4)
+    fine = refined_interior(it, 4, 4)
     r, rf = it.r[it.mantle], fine.r[fine.mantle]
-    assert rf.size == r.size + 4
+    assert rf.size == r.size + 8
     assert np.all(np.diff(rf) > 0.0)
+    assert rf[0] == r[0] and rf[-1] == r[-1]
     assert rf[-1] - rf[-2] == pytest.approx((r[-1] - r[-2]) / 16.0, rel=1e-9)
+    assert rf[1] - rf[0] == pytest.approx((r[1] - r[0]) / 16.0, rel=1e-9)
+    assert np.array_equal(fine.r[fine.core], it.r[it.core])
     w = _node_weights(rf, fine.m[fine.mantle], it.core_mass, it.mass)
     assert w.sum() == pytest.approx(it.mass - it.core_mass, rel=1e-12)
-    assert refined_interior(it, 0) is it
+    assert refined_interior(it, 0, 0) is it
 
 
 def test_rigid_mixing_length_on_an_exponential_viscosity_profile():

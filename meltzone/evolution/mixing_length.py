@@ -99,6 +99,20 @@ of 5 M_E moves 2.2% from 256 to 512 nodes (1.2% without), 10 M_E does not conver
 the kernel departs from the plain reference by 7.9e-3 in the lid's cells (2 M_E, 100 kyr) and the 5 M_E, 10 Gyr
 run takes 1.6 times as long.
 
+Lower boundary layer (on, ``BOTTOM_LEVELS`` = 4): BOTTOM_LEVELS nodes between the interior's first two mantle
+nodes, at heights d/16, d/8, d/4 and d/2 above the CMB of that bottom spacing d (which the interior already makes
+1/8 of its body's), so that the CMB half cell is 1/128 of the body's spacing (0.14 km at 256 nodes for 5 M_E) and
+the hot lower boundary layer, in which the basal melt layer freezes last, is resolved by the cells rather than
+by the CMB face's boundary-layer law. Measured, the end of the basal layer (defaults, 10 Gyr) at 128, 256, 512
+and 1024 nodes: 5 M_E 2.234, 2.257, 2.283, 2.309 Gyr; 10 M_E 2.194, 2.216, 2.240, 2.267 Gyr; 1 M_E 1.451, 1.464,
+1.470, 1.475 Gyr, i.e. 1.0-1.2% per doubling at 5 and 10 M_E (a drift that does not yet shrink with the cells,
+not diagnosed) and 0.4% at 1 M_E; without the levels 2.04, 2.16, 2.23 Gyr (6.0%, 3.2%), 1.85, 2.10, 2.17 Gyr
+(13.4%, 3.5%) and 1.425, 1.448, 1.461 Gyr (1.7%, 0.9%), first order in the bottom spacing. Two levels gave 2.0%
+and 1.5% (5 M_E). The cost: the 5 M_E, 10 Gyr benchmark takes 2259 accepted and 506 rejected steps against 2163
+and 323 (about 5% more wall time); counting the bottom cells' step bounds by their mass (as the top refinement's)
+took more steps (2344 and 631), so they count in full. Halving run.max_temperature_step_k moves the 5 M_E end by
+0.1% (256 and 512 nodes).
+
 History: regime 0 (magma ocean) while the top of the convecting mantle is above phi_c, else the configured solid
 regime. ``top_melt_fraction`` (the regime's melt fraction) is the melt fraction at the surface of the two-phase
 isentrope through the top convecting cell (the highest cell whose upper face carries more heat by convection than
@@ -134,10 +148,13 @@ to 1 Myr: within 3 km from 256 to 1024 nodes, cells of 11 to 3 km; the core's he
 3.6e14 W), but its separation is a tangency of T - T_sol with zero: 1 M_E 33.9, 33.5, 32.9, 30.0, 31.2 kyr, its
 largest thickness (reached then) 965, 960, 963, 1063, 1006 km; 5 M_E 530 kyr within 0.2% and 438, 439, 423, 427,
 425 km (with the refinement 534, 534, 536 kyr and 425, 452, 436 km). The last melt (the basal layer's freezing)
-moves by 4.7% and 2.4% (1 M_E, 128-512 nodes), 4.0% and 2.8% (5 M_E), 7.6% and 5.9% (10 M_E); with the node
+moved by 4.7% and 2.4% (1 M_E, 128-512 nodes), 4.0% and 2.8% (5 M_E), 7.6% and 5.9% (10 M_E) in an earlier version
+without the CMB refinement (see "Lower boundary layer" for the current numbers); with the node
 distances at the outer faces and the cell's melt fraction at the CMB 13.9% and 11.3% (5 M_E), 13.6% and 10.7%
-(10 M_E). The last cell above phi_c (``rheological_transition_yr``) is one cell on a plateau at phi_c (1 M_E 8.0,
-7.8, 5.7, 22.2, 29.5 Myr; 5 M_E 4.7, 7.4, 20.2, 15.9, 12.2 Myr; with the refinement 5 M_E 13.7, 12.9, 12.2 Myr,
+(10 M_E). The last cell above phi_c (``rheological_transition_yr``) is, with the CMB refinement, the CMB half cell: a
+film of tens of metres that the core keeps above phi_c (1 M_E 47.9, 48.9, 49.3 Myr and 5 M_E 85.1, 100.4, 106.2
+Myr at 128, 256, 512 nodes); without it, one cell on a plateau at phi_c under the surface (1 M_E 8.0, 7.8, 5.7,
+22.2, 29.5 Myr; 5 M_E 4.7, 7.4, 20.2, 15.9, 12.2 Myr; with the surface refinement 5 M_E 13.7, 12.9, 12.2 Myr,
 6% per doubling). Halving the step tolerance (run.max_temperature_step_k) moved every event by < 1% except the
 basal layer's largest thickness (1-6%) before the refinement. Tried without effect on the top cell's freezing:
 mixing lengths at the geometric mean of the two nodes' distances to the boundary, and the node distance at the
@@ -196,32 +213,38 @@ SWITCH = "rheological_switch"
 #: levels agree within 0.1%, but the regime flips 11 times at 256 nodes, the 5 M_E mass-criterion end moves 2.2%
 #: from 256 to 512 nodes and the 5 M_E, 10 Gyr run costs 1.6 times as much; experimental until those are solved)
 TOP_LEVELS = 0
+#: extra halvings of the bottom node spacing (module docstring, "Lower boundary layer"; this model's choice)
+BOTTOM_LEVELS = 4
 
 
-def refined_interior(interior, levels=TOP_LEVELS):
+def refined_interior(interior, levels=TOP_LEVELS, bottom=BOTTOM_LEVELS):
     """The interior with ``levels`` more mantle nodes between the last two, at depths d/2 .. d/2^levels of their
-    spacing d (the interior's top spacing, 1/8 of its body's), every node array interpolated linearly in radius
-    (phase: the top node's)."""
+    spacing d (the interior's top spacing, 1/8 of its body's), and ``bottom`` more between the first two, at
+    heights d/2^bottom .. d/2 above the CMB of their spacing d (also 1/8 of the body's); every node array
+    interpolated linearly in radius (phase: the outer node's)."""
     import dataclasses
 
-    if levels <= 0:
+    if levels <= 0 and bottom <= 0:
         return interior
     r = interior.r
-    d0 = r[-1] - r[-2]
-    new_r = r[-1] - d0 * 0.5 ** np.arange(1, levels + 1)
+    c = interior.cmb_index
+    top_r = r[-1] - (r[-1] - r[-2]) * 0.5 ** np.arange(1, levels + 1)
+    bottom_r = r[c] + (r[c + 1] - r[c]) * 0.5 ** np.arange(bottom, 0, -1)
     out = {}
     for name in ("r", "m", "P", "rho", "g", "T_ref", "adiabat"):
         a = getattr(interior, name)
-        out[name] = np.concatenate([a[:-1], np.interp(new_r, r[-2:], a[-2:]), a[-1:]])
-    out["r"] = np.concatenate([r[:-1], new_r, r[-1:]])
-    out["phase"] = np.concatenate([interior.phase[:-1], np.repeat(interior.phase[-1], levels), interior.phase[-1:]])
+        out[name] = np.concatenate([a[:c + 1], np.interp(bottom_r, r[c:c + 2], a[c:c + 2]), a[c + 1:-1],
+                                    np.interp(top_r, r[-2:], a[-2:]), a[-1:]])
+    phase = interior.phase
+    out["phase"] = np.concatenate([phase[:c + 1], np.repeat(phase[c], bottom), phase[c + 1:-1],
+                                   np.repeat(phase[-1], levels), phase[-1:]])
     return dataclasses.replace(interior, **out)
 
 
 def refined_curves(curves, interior, fine) -> dict:
     """The melting curves (:func:`meltzone.melting.node_curves` on the interior's mantle nodes) on the refined
-    nodes: linear in radius between the last two nodes (the added nodes lie within 1/8 of a node spacing of the
-    surface, where the curves are smooth in pressure)."""
+    nodes: linear in radius between the interior's nodes (the added nodes lie within 1/8 of a node spacing of the
+    surface or of the CMB, where the curves are smooth in pressure)."""
     r = interior.r[interior.mantle]
     rf = fine.r[fine.mantle]
     out = dict(curves)
