@@ -81,3 +81,45 @@ def test_cache_folder_changes_with_the_core_sources(tmp_path, monkeypatch):
     (fake / "physics.py").write_bytes((fake / "physics.py").read_bytes() + b"\n# edited\n")
     monkeypatch.setattr(_jit, "__file__", str(fake / "_jit.py"))
     assert _jit._sources_hash() != before
+
+
+
+def _array_like(fn, name):
+    """Whether parameter ``name`` of the function node ``fn`` is used as an array: indexed by something other
+    than a literal (a tuple of floats is indexed by literals), or asked for its shape."""
+    import ast
+
+    for node in ast.walk(fn):
+        if isinstance(node, ast.Subscript) and isinstance(node.value, ast.Name) and node.value.id == name \
+                and not isinstance(node.slice, ast.Constant):
+            return True
+        if isinstance(node, ast.Attribute) and isinstance(node.value, ast.Name) and node.value.id == name \
+                and node.attr in ("shape", "size", "ndim", "sum"):
+            return True
+    return False
+
+
+def test_leaf_kernels_return_no_array_argument():
+    """A kernel compiled without reference counting (meltzone._core._jit, ``leaf=True``) must not hand back one
+    of its array arguments: the caller would then hold a reference it did not count (numba's memory model; common
+    practice). Numba itself refuses an allocation or a returned slice in such a kernel (checked by hand); this
+    checks the source of every leaf kernel: no return value (or element of a returned tuple) is a parameter used
+    as an array. An alias (b = a; return b) is not caught."""
+    import ast
+
+    core = Path(meltzone.__file__).parent / "_core"
+    leaves = 0
+    for path in sorted(core.glob("*.py")):
+        for fn in ast.parse(path.read_text()).body:
+            if not isinstance(fn, ast.FunctionDef) or not any(
+                    isinstance(d, ast.Call) and any(k.arg == "leaf" for k in d.keywords) for d in fn.decorator_list):
+                continue
+            leaves += 1
+            params = {a.arg for a in fn.args.args}
+            for node in ast.walk(fn):
+                if isinstance(node, ast.Return) and node.value is not None:
+                    values = node.value.elts if isinstance(node.value, ast.Tuple) else [node.value]
+                    for v in values:
+                        bad = isinstance(v, ast.Name) and v.id in params and _array_like(fn, v.id)
+                        assert not bad, f"{path.name}:{node.lineno} {fn.name} returns its array {v.id}"
+    assert leaves >= 100

@@ -12,7 +12,7 @@ from .layout import (G_AUX1, G_AUX2, G_F, G_R, G_TLIQ, G_TSOL, G_W, P_BMO, P_BMO
 from .melt import melt_fraction
 
 
-@njit
+@njit(leaf=True)
 def _depression_scale(t_sol, t_ref):
     """Factor on the basal melt's depression at a node of solidus t_sol [K]: t_sol / t_ref, or 1 when t_ref <= 0
     (constant depression; see :func:`basal_ocean`)."""
@@ -21,7 +21,7 @@ def _depression_scale(t_sol, t_ref):
     return t_sol / t_ref
 
 
-@njit
+@njit(leaf=True)
 def _ocean_melting_point(t_sol, m, par):
     """Melting point [K] of the basal ocean's melt of mass m (composition: the crystallised fraction 1 - m / M_ref)
     where the mantle solidus is t_sol: t_sol - (dT0 + dT_fe (1 - m / M_ref)) x the depression's scale."""
@@ -29,7 +29,7 @@ def _ocean_melting_point(t_sol, m, par):
         t_sol, par[P_BMO_TREF])
 
 
-@njit
+@njit(leaf=True)
 def _segment_bisection(tc, t_max, t_a, t_b, m0, m1, lo, hi, par):
     """Root in [lo, hi] of the curve at the hottest point minus tc on one segment, by bisection (the fallback of
     :func:`_segment_root`)."""
@@ -44,7 +44,7 @@ def _segment_bisection(tc, t_max, t_a, t_b, m0, m1, lo, hi, par):
     return 0.5 * (lo + hi)
 
 
-@njit
+@njit(leaf=True)
 def _segment_root(tc, t_max, t_a, t_b, m0, m1, s_end, par):
     """Position s in [0, s_end] between two nodes (solidus t_a -> t_b, mass below m0 -> m1, both linear in s) where
     the ocean's curve at its hottest point, _ocean_melting_point(max(t_max, t_a + s (t_b - t_a)), m0 + s (m1 -
@@ -98,7 +98,7 @@ def _segment_root(tc, t_max, t_a, t_b, m0, m1, s_end, par):
     return _segment_bisection(tc, t_max, t_a, t_b, m0, m1, lo, hi, par)
 
 
-@njit
+@njit(leaf=True)
 def basal_ocean(tc, grid, par):
     """Basal magma ocean at core temperature tc: (r_b, M_b, x_b) = radius of its top [m], mass [kg] and position
     of its top in node units (j + s between nodes j and j + 1).
@@ -158,7 +158,7 @@ def basal_ocean(tc, grid, par):
     return grid[G_R, n - 1], m_prev, float(n - 1)
 
 
-@njit
+@njit(leaf=True)
 def basal_top_energy(tu, mb, grid, par, law):
     """Stored heat per kg [J/kg] the mantle function counts for mass at the top of a basal ocean of mass mb:
     adiabatic sensible + latent heat of the node whose shell holds that mass (what crystallised basal-ocean

@@ -36,7 +36,7 @@ ACCEPT_EXPONENT = -0.2
 REJECT_EXPONENT = -0.25
 
 
-@njit
+@njit(leaf=True)
 def accepted_factor(err):
     """Step growth after an accepted step with error norm ``err`` (<= 1)."""
     if err == 0.0:
@@ -44,7 +44,7 @@ def accepted_factor(err):
     return min(MAX_FACTOR, max(MIN_FACTOR, SAFETY * err ** ACCEPT_EXPONENT))
 
 
-@njit
+@njit(leaf=True)
 def rejected_factor(err):
     """Step shrink after a step rejected with error norm ``err`` (> 1)."""
     return max(MIN_REJECT_FACTOR, SAFETY * err ** REJECT_EXPONENT)

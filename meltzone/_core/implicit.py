@@ -77,13 +77,13 @@ SLOW_NEWTON, SLOW_FACTOR = 4, 0.8
 CONVECTING = 1.01
 
 
-@njit
+@njit(leaf=True)
 def _states(h, grid, law, par, temp, phi):
     for i in range(h.shape[0]):
         temp[i], phi[i] = cell_state(h[i], grid, i, law, par)
 
 
-@njit
+@njit(leaf=True)
 def _melt_in_contact(phi, grid, par):
     """(melt mass [kg] the atmosphere's volatiles dissolve in, lowest cell of it, contact weight): the cells
     molten from the top cell down without a gap, while the top cell is above the rheological transition (the
@@ -101,7 +101,7 @@ def _melt_in_contact(phi, grid, par):
     return m_melt * cw, low, cw
 
 
-@njit
+@njit(leaf=True)
 def _surface_from_melt(t, m_melt, lost, par):
     """(radiation state, (M_H2O vapour, M_CO2, M_H2O dissolved, M_H2O left, melt mass)) of the surface at time
     t, with the volatiles in solubility equilibrium with m_melt [kg] of melt (the boundary-layer scheme's laws,
@@ -116,14 +116,14 @@ def _surface_from_melt(t, m_melt, lost, par):
     return radiation_state(t, eps, steam, par, thin_weight(m_h2o, par)), (m_h2o, m_co2, dissolved, water, m_melt)
 
 
-@njit
+@njit(leaf=True)
 def _surface_state(t, phi, grid, lost, par):
     """The surface's radiation state and volatiles (:func:`_surface_from_melt`) with the melt of
     :func:`_melt_in_contact` at the melt fractions phi."""
     return _surface_from_melt(t, _melt_in_contact(phi, grid, par)[0], lost, par)
 
 
-@njit
+@njit(leaf=True)
 def _water_after(t, ts, vol, par):
     """(vapour, ocean, dissolved, escape rate [kg/s]) at the surface temperature a step ended with."""
     m_h2o, m_co2, dissolved, water, m_melt = vol
@@ -133,7 +133,7 @@ def _water_after(t, ts, vol, par):
     return m_h2o, ocean, dissolved, escape_rate(t, m_h2o, ocean, par) if water > 0.0 else 0.0
 
 
-@njit
+@njit(leaf=True)
 def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core, cells, flux, d_lo, d_hi, dh_jac):
     """Face fluxes F_j [W/m^2] at the state (E_c, h) and their derivatives in the unknown below (d_lo: E_c for
     the CMB face, h_{j-1} otherwise) and above (d_hi: h_j); ``cells`` (CW_* rows) is filled on the way;
@@ -173,7 +173,7 @@ def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core,
     return ts
 
 
-@njit
+@njit(leaf=True)
 def heat_pipe(i, h, temp, phi, grid, law, par, ts):
     """(S [W], dS/dh [W kg/J]) of the heat pipe out of cell i: melt above PIPE_MELT in a partly molten cell no
     deeper than volcanism.max_extraction_pressure_gpa leaves at the rate m (phi - PIPE_MELT) w / PIPE_TIME and
@@ -197,7 +197,7 @@ def heat_pipe(i, h, temp, phi, grid, law, par, ts):
     return rate * excess * w * per_kg, rate * (d_excess * per_kg + excess * w * par[P_CM] * dt_dh)
 
 
-@njit
+@njit(leaf=True)
 def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floors, rad, vol, lost, ts_pipe,
            has_core, temp, phi, cells, flux, d_lo, d_hi, lower, diag, upper, rhs, dx, work, vvec, zvec):
     """Solve the backward-Euler step from x_old over dt in place of x (which holds the start guess); x[0] is
@@ -330,7 +330,7 @@ def newton(t_new, dt, x_old, x, tc, grid, faces, core, iso, par, law, mset, floo
     return False, max_it, max_it, tc, ts, rad, vol, 0.0
 
 
-@njit
+@njit(leaf=True)
 def upper_cell(temp, flux, faces, par):
     """Index of the top convecting cell: the highest cell whose upper face carries more heat by convection
     than by conduction (the top face: a boundary layer thinner than the half cell); 0 if none."""
@@ -342,7 +342,7 @@ def upper_cell(temp, flux, faces, par):
     return 0
 
 
-@njit
+@njit(leaf=True)
 def _log_convective_ratio(f, temp, flux, faces, par):
     """ln(convective / conductive flux) at interior face f; -700 at the surface face or where conduction does
     not carry heat upward."""
@@ -354,7 +354,7 @@ def _log_convective_ratio(f, temp, flux, faces, par):
     return math.log(max((flux[f] - cond) / cond, 1e-300))
 
 
-@njit
+@njit(leaf=True)
 def lid_base(temp, flux, faces, par, top_face):
     """Radius [m] of the stagnant lid's base: where the convective share of the face flux equals the conductive
     one, ln(convective / conductive) interpolated linearly in radius between the top convecting cell's upper face
@@ -370,7 +370,7 @@ def lid_base(temp, flux, faces, par, top_face):
     return faces[F_R, j] + (faces[F_R, j + 1] - faces[F_R, j]) * y0 / (y0 - y1)
 
 
-@njit
+@njit(leaf=True)
 def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, rad, wat, out,
            newton_its, hist, temps, phis, n_h):
     """Store accepted step ``n_h``: history row (MH_*) and T, phi on every cell. ``wat`` = (vapour, CO2, ocean,
@@ -428,7 +428,7 @@ def record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, 
     hist[n_h, MH_DT] = dt
 
 
-@njit
+@njit(leaf=True)
 def _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps, lost, n_newton):
     state[MS_LOST] = lost
     state[MS_T] = t
@@ -442,7 +442,7 @@ def _save(state, t, dt, dt_prev, n_h, n_rej, tc, out, eps, lost, n_newton):
     state[MS_N_NEWTON] = n_newton
 
 
-@njit
+@njit(leaf=True)
 def _pipe_surface(phi_top, ts_last, par):
     """The surface temperature [K] the heat pipe's eruptions cool to this step (the last accepted step's), or 0
     when the pipe does not run: volcanism off, a mobile lid, or a top cell that is not solid (lagged by one
@@ -608,7 +608,7 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
     return STATUS_DONE
 
 
-@njit
+@njit(leaf=True)
 def all_intervals(phis, grid, iv):
     """Melt intervals of every recorded step (:func:`meltzone._core.record.find_intervals`) into ``iv``;
     returns the count, or -1 if ``iv`` is too small."""
@@ -620,7 +620,7 @@ def all_intervals(phis, grid, iv):
     return n_iv
 
 
-@njit
+@njit(leaf=True)
 def states_at(h, grid, law, par, temp, phi):
     """T and phi of every cell from the enthalpies h (the evaluator's inversion)."""
     _states(h, grid, law, par, temp, phi)

@@ -12,7 +12,7 @@ from ._jit import njit
 from .layout import C_EIC, C_F, C_TMELT
 
 
-@njit
+@njit(leaf=True)
 def inner_core_heat(tc, core):
     """Latent + gravitational energy [J] released by the inner core at core temperature tc (0 without one)."""
     n = core.shape[1]

@@ -17,18 +17,18 @@ from .roots import bisect_known
 PHI_XTOL = 1e-13
 
 
-@njit
+@njit(leaf=True)
 def node_melt(t, grid, i, law):
     return melt_fraction(t, grid[G_TSOL, i], grid[G_TLIQ, i], grid[G_AUX1, i], grid[G_AUX2, i], law)
 
 
-@njit
+@njit(leaf=True)
 def _isentropic_residual(x, args):
     t, lc, tsol, tliq, aux1, aux2, law = args
     return x - melt_fraction(t - lc * x, tsol, tliq, aux1, aux2, law)
 
 
-@njit
+@njit(leaf=True)
 def isentropic_melt(t, grid, i, law, par):
     """Melt fraction phi = phi_eq(t - (L / c_p) phi) at node i: the batch melt of a parcel that rose
     adiabatically from below its solidus and paid the latent heat of its melt (the batch limit of
@@ -74,7 +74,7 @@ UNIT_ROUNDOFF = 2.0 ** -53
 NEWTON_ITERATIONS = 6
 
 
-@njit
+@njit(leaf=True)
 def _melt_slope(u, tsol, tliq, aux1, aux2, law):
     """d phi_eq / dT [1/K] of :func:`meltzone._core.melt.melt_fraction` at u (0 outside the melting range;
     for the estimate only: its rounding does not reach the result)."""
@@ -89,7 +89,7 @@ def _melt_slope(u, tsol, tliq, aux1, aux2, law):
     return math.nan
 
 
-@njit
+@njit(leaf=True)
 def residual_noise(args):
     """Bound of the rounding error of :func:`_isentropic_residual` [melt fraction]: the melt law's largest slope
     times the rounding of its argument t - L x / c_p (x <= 1; two roundings of at most u (t + L / c_p) each, u
@@ -105,7 +105,7 @@ def residual_noise(args):
     return slope * 2.0 * UNIT_ROUNDOFF * (abs(t) + lc) + 8.0 * UNIT_ROUNDOFF
 
 
-@njit
+@njit(leaf=True)
 def _newton_root(args, hi):
     """Estimate of the root of :func:`_isentropic_residual` in [0, hi]: Newton's method from the root of the
     residual linearised at x = 0, kept inside the bracket that the residual's signs maintain (bisection where a
@@ -130,7 +130,7 @@ def _newton_root(args, hi):
     return x
 
 
-@njit
+@njit(leaf=True)
 def isentropic_top_melt(tu, d_lid, grid, par, law):
     """Isentropic melt fraction of the adiabat at the top of a solidified convecting mantle: the surface
     (mobile lid), or the stagnant lid's base, depth max(D_lid, D_min) (linear between the nodes there). Judged

@@ -51,14 +51,14 @@ from ._jit import njit
 from .layout import P_CM, P_KAPPA, P_LID_LAW, P_LID_MIN, P_RHO_TOP, P_T_EQ
 
 
-@njit
+@njit(leaf=True)
 def lid_heat_temperature(tl, par):
     """Temperature [K] at which the stored heat counts the lid's rock: T_l (base flux) or the mean of the linear
     profile, (T_eq + T_l) / 2 (heat-balance integral)."""
     return tl if par[P_LID_LAW] > 0.5 else 0.5 * (par[P_T_EQ] + tl)
 
 
-@njit
+@njit(leaf=True)
 def lid_growth(q_lid, q_u, tu, tl, par):
     """dD/dt [m/s] of a stagnant lid with conductive flux q_lid at its base, q_u from the convecting mantle below,
     mantle temperature tu and lid-base temperature tl [K]: q_lid - q_u over rho c (tu - the temperature of
@@ -66,7 +66,7 @@ def lid_growth(q_lid, q_u, tu, tl, par):
     return (q_lid - q_u) / (par[P_RHO_TOP] * par[P_CM] * max(tu - lid_heat_temperature(tl, par), 1.0))
 
 
-@njit
+@njit(leaf=True)
 def smoothstep(x):
     """0 for x <= 0, 3 x^2 - 2 x^3 between, 1 for x >= 1 (C1; common practice)."""
     if x <= 0.0:
@@ -76,13 +76,13 @@ def smoothstep(x):
     return x * x * (3.0 - 2.0 * x)
 
 
-@njit
+@njit(leaf=True)
 def smoothstep_slope(x):
     """d smoothstep / dx: 6 x (1 - x) between 0 and 1, else 0."""
     return 6.0 * x * (1.0 - x) if 0.0 < x < 1.0 else 0.0
 
 
-@njit
+@njit(leaf=True)
 def floored_rate(rate, d, par):
     """dD/dt [m/s] with the floor of the module: ``rate`` times s_D + (1 - s_D) smoothstep(rate / r_w), s_D =
     smoothstep((D - D_min) / D_min), r_w = kappa / D_min; ``rate`` itself for D >= 2 D_min. A thinning

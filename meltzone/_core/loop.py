@@ -71,7 +71,7 @@ FD_RELS[Y_EM] = rosenbrock.FD_REL
 FD_RELS_MOLTEN = np.full(N_DEP + 1, FD_REL_ENERGY)
 
 
-@njit
+@njit(leaf=True)
 def adiabat_melt_count(tu, grid):
     """Number of mantle nodes whose adiabatic temperature T_u f(r) is above the solidus."""
     n = 0
@@ -81,7 +81,7 @@ def adiabat_melt_count(tu, grid):
     return n
 
 
-@njit
+@njit(leaf=True)
 def hermite_extremum(y0, y1, d0, d1, h):
     """Value of the cubic Hermite interpolant's interior extremum on a step, and whether there is one."""
     a = 2.0 * (y0 - y1) + h * (d0 + d1)
@@ -107,7 +107,7 @@ def hermite_extremum(y0, y1, d0, d1, h):
     return best, found
 
 
-@njit
+@njit(leaf=True)
 def _unseen_extremum(tu, tc, tu_new, tc_new, dtu, dtc, dtu1, dtc1, h, grid):
     """True when a temperature maximum or minimum inside the step would change which nodes are above the
     solidus while neither end shows it (a melt layer could open and close unseen): the adiabat's melt count at
@@ -127,19 +127,19 @@ def _unseen_extremum(tu, tc, tu_new, tc_new, dtu, dtc, dtu1, dtc1, h, grid):
     return False
 
 
-@njit
+@njit(leaf=True)
 def y_slot(j):
     """Index in the integrator state of y[j] (the energy block at S_Y, the rest at S_YV)."""
     return S_Y + j if j < N_Y_ENERGY else S_YV + j - N_Y_ENERGY
 
 
-@njit
+@njit(leaf=True)
 def dy_slot(j):
     """Index in the integrator state of the last slope of y[j]."""
     return S_DY + j if j < N_Y_ENERGY else S_DYV + j - N_Y_ENERGY
 
 
-@njit
+@njit(leaf=True)
 def _implicit_step(args, t, y, h, k1, fresh, ws, ynew, yerr, k7, tmp):
     """One Rodas3 step of the boundary-layer right-hand side (the Jacobian first unless ``fresh``, i.e. already
     at (t, y)); False when the step's matrix is singular. A function of its own, so that the Rosenbrock stages
@@ -217,7 +217,7 @@ def _count_stiffness(mode, implicit, h, jac, k, ysti, ynew, sc, rtol, decay):
         mode[2] = 0.0
 
 
-@njit
+@njit(leaf=True)
 def _save(state, t, y, h, n_h, n_iv, n_rej, tu, tc, work, k1, t_switch, mode):
     state[S_T] = t
     for j in range(N_Y):

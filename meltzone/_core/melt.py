@@ -17,7 +17,7 @@ from ._jit import njit
 from ..melting import KATZ_BETA1, KATZ_BETA2, LAW_KATZ2003, LAW_LINEAR
 
 
-@njit
+@njit(leaf=True)
 def melt_fraction(t, tsol, tliq, aux1, aux2, law_code):
     """Melt fraction phi in [0, 1] at temperature ``t`` [K] for one node.
 

@@ -27,7 +27,7 @@ DT_MIN = 1.0e-12
 CW_DTDH, CW_LN_ETA, CW_DLN_ETA, CW_H_ACT = range(N_CW := 4)
 
 
-@njit
+@njit(leaf=True)
 def cell_state(h, grid, i, law, par):
     """(T [K], phi) of cell i from its specific enthalpy h = c_p T + L phi(T, P_i) [J/kg].
 
@@ -64,14 +64,14 @@ def cell_state(h, grid, i, law, par):
     return t, melt_fraction(t, tsol, tliq, a1, a2, law)
 
 
-@njit
+@njit(leaf=True)
 def cell_activation(grid, par, cells):
     """Fill the row CW_H_ACT of ``cells`` with each cell's activation enthalpy [J/mol] at its pressure."""
     for i in range(grid.shape[1]):
         cells[CW_H_ACT, i] = activation_enthalpy(grid[G_P, i], par)
 
 
-@njit
+@njit(leaf=True)
 def cell_log_viscosity(t, phi, h_act, t_floor, par):
     """(ln eta, d ln eta / dT, d ln eta / dphi) of a cell [Pa s] at its own T, phi and pressure (activation
     enthalpy h_act [J/mol]; the boundary-layer scheme's law, :func:`meltzone._core.physics.log_viscosity_grad`);
@@ -81,7 +81,7 @@ def cell_log_viscosity(t, phi, h_act, t_floor, par):
     return ln_eta, d_t if t >= t_floor else 0.0, d_phi
 
 
-@njit
+@njit(leaf=True)
 def cell_slope(h, t, grid, i, law, par):
     """(dT/dh, dphi/dh) of cell i at enthalpy h (temperature t): 1 / c_p and 0 outside the melting interval,
     1 / (c_p + L dphi/dT) inside it (the derivative of the law by a centred difference of 1e-6 K)."""
@@ -104,7 +104,7 @@ def cell_slope(h, t, grid, i, law, par):
     return dt_dh, dphi_dt * dt_dh
 
 
-@njit
+@njit(leaf=True)
 def interior_flux(ha, hb, ta, tb, cells, a, b, faces, j, dh_jac, par):
     """(F, dF/dh_a, dF/dh_b): heat flux [W/m^2] up through internal face j between cell a = j-1 (below) and
     b = j (above), and its derivatives in the two cells' enthalpies. ``cells`` holds per cell the rows CW_*
@@ -158,7 +158,7 @@ def interior_flux(ha, hb, ta, tb, cells, a, b, faces, j, dh_jac, par):
     return q, d_a, d_b
 
 
-@njit
+@njit(leaf=True)
 def boundary_flux(dt, t_visc, phi, faces, j, t_floor, par):
     """Flux [W/m^2] across a thermal boundary layer at an outer face (CMB j = 0, surface j = n) driven by the
     temperature difference dt [K]: k dt / delta with delta = (kappa eta Ra_cr / (alpha rho g |dt|))^(1/3)
@@ -173,13 +173,13 @@ def boundary_flux(dt, t_visc, phi, faces, j, t_floor, par):
     return par[P_K] * dt / min(delta, half)
 
 
-@njit
+@njit(leaf=True)
 def _surface_residual(ts, args):
     t_top, phi_top, faces, j, t_floor, rad, par = args
     return boundary_flux(t_top - ts, t_top, phi_top, faces, j, t_floor, par) - net_radiation(ts, rad)
 
 
-@njit
+@njit(leaf=True)
 def surface_flux(t_top, phi_top, faces, j, t_floor, rad, par):
     """(q [W/m^2], T_s [K]) at the surface: T_s balances the top boundary layer's flux with the net radiation
     of ``rad`` (:func:`meltzone._core.radiation.radiation_state`: the boundary-layer scheme's laws;
@@ -192,7 +192,7 @@ def surface_flux(t_top, phi_top, faces, j, t_floor, rad, par):
     return net_radiation(ts, rad), ts
 
 
-@njit
+@njit(leaf=True)
 def surface_flux_slope(ts, t_top, phi_top, t1, phi1, dh, faces, j, t_floor, rad, par):
     """dq/dh [W/m^2 / (J/kg)] of :func:`surface_flux` in the top cell's enthalpy, without a second root solve:
     dq/dh = dR/dT_s dT_s/dh with dT_s/dh = -(dg/dh) / (dg/dT_s) on the balance g(T_s, h) = 0 (implicit function
@@ -207,7 +207,7 @@ def surface_flux_slope(ts, t_top, phi_top, t1, phi1, dh, faces, j, t_floor, rad,
     return -d_rad * dg_dh / dg_dts
 
 
-@njit
+@njit(leaf=True)
 def surface_adiabat_state(h_u, t_u, iu, grid, law, par):
     """(T [K], phi) at the surface (the top cell's pressure and curves) of the two-phase adiabat through cell
     ``iu`` (enthalpy h_u, temperature t_u): h_s = h_u + c_p T_u (f_top / f_u - 1), the discrete isentrope of
@@ -220,7 +220,7 @@ def surface_adiabat_state(h_u, t_u, iu, grid, law, par):
     return cell_state(h_s, grid, top, law, par)
 
 
-@njit
+@njit(leaf=True)
 def cmb_flux(tc, t0, grid, law, faces, t_floor, par):
     """Flux [W/m^2] out of the core into the lowest cell: boundary layer on the temperature difference
     T_c - T_0 (the boundary-layer scheme's lower layer), viscosity of the layer's material at its mean temperature
@@ -233,7 +233,7 @@ def cmb_flux(tc, t0, grid, law, faces, t_floor, par):
     return boundary_flux(tc - t0, tm, phi_m, faces, 0, t_floor, par)
 
 
-@njit
+@njit(leaf=True)
 def adiabat_floor(h_mid, mid, grid, law, par, floors):
     """Temperature floors [K] of the cell viscosities in mobile-lid mode: the adiabat through cell ``mid``,
     T_mid f(r_i) / f(r_mid)."""

@@ -52,7 +52,7 @@ T_MIN, T_MAX = 10.0, 2.0e5
 LID_RELAX_TIME = 1.0e3 * YEAR
 
 
-@njit
+@njit(leaf=True)
 def activation_enthalpy(p, par):
     """E + integral of V(P) dP with V(P) = V_inf + (V0 - V_inf) exp(-P / P_d) [J/mol]; E + P V0 when P_d = 0.
 
@@ -70,7 +70,7 @@ def activation_enthalpy(p, par):
     return par[P_E_ACT] + v_inf * p + (par[P_V_ACT] - v_inf) * pd * (1.0 - math.exp(-p / pd))
 
 
-@njit
+@njit(leaf=True)
 def log_viscosity_grad(t, h_act, phi, par):
     """(ln eta, d ln eta / dT [1/K], d ln eta / dphi) of the effective viscosity [Pa s] at temperature t [K],
     activation enthalpy h_act [J/mol] (of the pressure: :func:`activation_enthalpy`) and melt fraction phi:
@@ -95,26 +95,26 @@ def log_viscosity_grad(t, h_act, phi, par):
     return value, (1.0 - w) * ds_dt, dw * (susp - solid) + w * dsusp - (1.0 - w) * par[P_MELT_WEAK]
 
 
-@njit
+@njit(leaf=True)
 def log_viscosity(t, h_act, phi, par):
     """ln of the effective viscosity [Pa s] (:func:`log_viscosity_grad` without the derivatives)."""
     return log_viscosity_grad(t, h_act, phi, par)[0]
 
 
-@njit
+@njit(leaf=True)
 def viscosity(t, p, phi, par):
     """Effective viscosity [Pa s] at temperature t [K], pressure p [Pa] and melt fraction phi."""
     return math.exp(log_viscosity(t, activation_enthalpy(p, par), phi, par))
 
 
-@njit
+@njit(leaf=True)
 def lid_mass(d, par):
     r = par[P_RADIUS]
     ri = max(r - d, 0.0)
     return par[P_RHO_TOP] * (4.0 * math.pi / 3.0) * (r ** 3 - ri ** 3)
 
 
-@njit
+@njit(leaf=True)
 def lid_base_temperature(tu, par):
     """T_l = T_u - a_rh R T_u^2 / E (stagnant lid), at least 1 K above the equilibrium temperature (with a star,
     the run's lowest: meltzone.star.lowest_luminosity) and never above T_u: the lid's base is never hotter than
@@ -122,7 +122,7 @@ def lid_base_temperature(tu, par):
     return min(max(tu - par[P_A_RH] * GAS_CONSTANT * tu * tu / par[P_E_ACT], par[P_T_EQ] + 1.0), tu)
 
 
-@njit
+@njit(leaf=True)
 def mantle_energy(tu, d, mb, grid, par, law):
     """Stored heat of the mantle [J] relative to 0 K: adiabat sensible + latent, lid corrected. The lowest
     ``mb`` kg (the basal magma ocean, counted with the core) are left out, node by node from the CMB."""
@@ -148,7 +148,7 @@ def mantle_energy(tu, d, mb, grid, par, law):
     return e
 
 
-@njit
+@njit(leaf=True)
 def inner_core(tc, core):
     """Inner-core radius [m] and mass [kg]: where the core adiabat T_c f(r) falls below the melting curve."""
     n = core.shape[1]
@@ -166,7 +166,7 @@ def inner_core(tc, core):
     return core[C_R, n - 1], core[C_MCUM, n - 1]
 
 
-@njit
+@njit(leaf=True)
 def core_energy(tc, grid, core, par):
     """Stored heat of the core [J]: sensible heat on the core adiabat minus latent + gravitational
     energy already released by the inner core (its integral over the inner core's mass, tabulated on the core
@@ -182,7 +182,7 @@ def core_energy(tc, grid, core, par):
     return e
 
 
-@njit
+@njit(leaf=True)
 def radiogenic_power(t, iso, par):
     """Radiogenic heating of the mantle [W] at model time t [s]: sum_i H_i,today exp(lambda_i (age0 - t))."""
     h = 0.0
@@ -191,7 +191,7 @@ def radiogenic_power(t, iso, par):
     return h * par[P_MANTLE_MASS]
 
 
-@njit
+@njit(leaf=True)
 def contact_weight(phi_top, par):
     """Share [0-1] of the adiabat's melt that the atmosphere's volatiles dissolve in: 1 while the top of the
     mantle is above the rheological transition (a surface magma ocean), 0 once it is below (the melt of a
@@ -204,7 +204,7 @@ def contact_weight(phi_top, par):
     return smoothstep((phi_top - par[P_PHI_C]) / par[P_BLEND])
 
 
-@njit
+@njit(leaf=True)
 def melt_mass_adiabat(tu, grid, law):
     m = 0.0
     for i in range(grid.shape[1]):
@@ -212,13 +212,13 @@ def melt_mass_adiabat(tu, grid, law):
     return m
 
 
-@njit
+@njit(leaf=True)
 def _stored_heat_residual(t, args):
     kind, e, d, mb, grid, core, par, law = args
     return (mantle_energy(t, d, mb, grid, par, law) if kind == 0 else core_energy(t, grid, core, par)) - e
 
 
-@njit
+@njit(leaf=True)
 def _invert(kind, e, d, mb, grid, core, par, law, guess, slope):
     """Temperature [K] whose stored heat is ``e``, and the last slope dE/dT: mantle (kind 0, lid d) or
     core (kind 1).
@@ -258,7 +258,7 @@ def _invert(kind, e, d, mb, grid, core, par, law, guess, slope):
                   200), 0.0
 
 
-@njit
+@njit(leaf=True)
 def temperatures(y, grid, core, par, law, work):
     """(T_u, T_c) of the energy state y; ``work`` = (T_u, T_c, dE_m/dT_u, dE_c/dT_c) of the last solution,
     the starting point of the next (a slope <= 0 asks for a fresh centred difference)."""
@@ -275,7 +275,7 @@ def temperatures(y, grid, core, par, law, work):
     return tu, tc
 
 
-@njit
+@njit(leaf=True)
 def energy_state(tu, tc, d_lid, out, grid, core, par, law, y):
     """Fill y from temperatures (the inverse of :func:`temperatures`); ``out`` is Y_OUT."""
     mb = basal_ocean(tc, grid, par)[1]
@@ -285,7 +285,7 @@ def energy_state(tu, tc, d_lid, out, grid, core, par, law, y):
     y[Y_OUT] = out
 
 
-@njit
+@njit(leaf=True)
 def temperature_rates(tu, tc, d_lid, dy, grid, core, par, law):
     """(dT_u/dt, dT_c/dt) from the energy rates dy (for the step control, history and interpolation)."""
     d = max(d_lid, 0.0) if par[P_STAGNANT] > 0.5 else 0.0
@@ -308,7 +308,7 @@ def temperature_rates(tu, tc, d_lid, dy, grid, core, par, law):
     return dtu, dtc
 
 
-@njit
+@njit(leaf=True)
 def top_layer_thickness(d_conv, ra, solid, par):
     """Upper thermal boundary layer [m]: delta = D (Ra_cr / Ra)^beta / a, i.e. Nu = a (Ra / Ra_cr)^beta,
     capped at the convecting depth D. ``solid``: the configured (a, beta) of the solid mantle, which
@@ -324,7 +324,7 @@ def top_layer_thickness(d_conv, ra, solid, par):
 RA_POINT_PASSES = 3
 
 
-@njit
+@njit(leaf=True)
 def weakening_melt(phi, p, par):
     """Melt fraction that weakens the solid mantle at batch melt fraction phi and pressure p [Pa]: at most phi_c;
     where melt is extracted (volcanism on, no deeper than P_P_EXTRACT; the caller is past the rheological switch)
@@ -337,7 +337,7 @@ def weakening_melt(phi, p, par):
     return min(phi, cap)
 
 
-@njit
+@njit(leaf=True)
 def solid_viscosity(tu, d_lid, phi_surf, grid, par, law):
     """Viscosity [Pa s] of the solidified mantle's upper boundary layer, with alpha / kappa at the same point folded
     in (Ra ~ alpha / (kappa eta)); where, by P_RA_VISC (properties.py): the surface at T_u with the surface melt
@@ -367,7 +367,7 @@ def solid_viscosity(tu, d_lid, phi_surf, grid, par, law):
     return eta
 
 
-@njit
+@njit(leaf=True)
 def _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, rad, par):
     """Conductive flux through the top layer minus net radiated flux at surface temperature ts [W/m^2]
     (``rad``: the radiation state of :func:`meltzone._core.radiation.radiation_state`)."""
@@ -380,13 +380,13 @@ def _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, rad,
     return q_cond - net_radiation(ts, rad)
 
 
-@njit
+@njit(leaf=True)
 def _surface_balance_at(ts, args):
     stagnant, solid, tu, tl, d_lid, d_conv, dtc, base, rad, par = args
     return _surface_balance(stagnant, solid, ts, tu, tl, d_lid, d_conv, dtc, base, rad, par)
 
 
-@njit
+@njit(leaf=True)
 def _top_boundary(stagnant, solid, tu, tl, d_lid, d_conv, dtc, eta_u, rad, par):
     """(T_s, q_surface, q_u, delta_u) at the top: the surface temperature balances the conductive flux through
     the top layer (boundary layer, or lid over the boundary layer) with the net radiation of ``rad``
@@ -415,7 +415,7 @@ def _top_boundary(stagnant, solid, tu, tl, d_lid, d_conv, dtc, eta_u, rad, par):
     return ts, q, q, delta_u
 
 
-@njit
+@njit(leaf=True)
 def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag, added_h2o, added_co2):
     """Fluxes, boundary layers, surface temperature and regime at (T_u, T_c, lid) and time t; fills ``diag``
     (D_*). ``t_switch``: when the top of the mantle first reached the rheological transition (NOT_YET before);
@@ -551,7 +551,7 @@ def diagnose(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, diag, 
     diag[D_ESCAPE] = escape_rate(t, m_h2o, ocean, par) if water > 0.0 else 0.0
 
 
-@njit
+@njit(leaf=True)
 def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     """dy/dt at (t, y); also fills ``diag`` and leaves (T_u, T_c) in ``work``."""
     tu, tc = temperatures(y, grid, core, par, law, work)
@@ -587,7 +587,7 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     dy[Y_WATER] = diag[D_ESCAPE]
 
 
-@njit
+@njit(leaf=True)
 def profile(tu, tc, d_lid, diag, grid, par, law, temp, phi):
     """Temperature T(r) and melt fraction on the mantle nodes (CMB -> surface).
 
@@ -623,7 +623,7 @@ def profile(tu, tc, d_lid, diag, grid, par, law, temp, phi):
         phi[i] = node_melt(t, grid, i, law)
 
 
-@njit
+@njit(leaf=True)
 def profile_at(t, tu, tc, d_lid, t_switch, lost, grid, core, iso, par, law, temp, phi, diag, added_h2o, added_co2):
     """T(r), phi(r) and diagnostics at given temperatures, water lost and outgassed masses [kg] (snapshots and
     event refinement; see :func:`diagnose`)."""

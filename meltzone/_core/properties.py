@@ -28,7 +28,7 @@ from ._jit import njit
 from .layout import G_R, P_ALPHA_EXP, P_K_EXP, P_PROPS, P_RHO_REF
 
 
-@njit
+@njit(leaf=True)
 def property_factors(rho, par):
     """(alpha / alpha0, k / k0, kappa / kappa0) at density rho [kg/m^3] (module docstring); 1 when off."""
     if par[P_PROPS] < 0.5 or rho <= 0.0:
@@ -38,7 +38,7 @@ def property_factors(rho, par):
     return x ** (-par[P_ALPHA_EXP]), fk, fk / x
 
 
-@njit
+@njit(leaf=True)
 def depth_index(z, grid):
     """(j, s): depth z [m] below the surface lies between nodes j and j + 1 at fraction s (clamped to the mantle)."""
     n = grid.shape[1]
@@ -51,7 +51,7 @@ def depth_index(z, grid):
     return 0, 0.0
 
 
-@njit
+@njit(leaf=True)
 def at_depth(z, grid, row):
     """Value of grid row ``row`` at depth z [m] below the surface (linear between nodes)."""
     j, s = depth_index(z, grid)

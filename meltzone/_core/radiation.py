@@ -75,14 +75,14 @@ T_RAD_LO, T_RAD_HI = 1.0, 1.0e5
 LAW_GREY, LAW_STEAM = 0.0, 1.0
 
 
-@njit
+@njit(leaf=True)
 def _dissolved_residual(m_atm, args):
     total, melt_mass, coeff, expo, g, area = args
     p = m_atm * g / area
     return m_atm + coeff * p ** expo * melt_mass - total
 
 
-@njit
+@njit(leaf=True)
 def atmosphere_mass(total, melt_mass, par, coeff, expo):
     """Atmospheric mass [kg] of a volatile in solubility equilibrium with the melt.
 
@@ -97,7 +97,7 @@ def atmosphere_mass(total, melt_mass, par, coeff, expo):
     return bisect(_dissolved_residual, args, 0.0, total, 1e-12 * total, 0.0, 60)
 
 
-@njit
+@njit(leaf=True)
 def optical_depth(mass, kappa, par):
     """Grey optical depth of a gas column of ``mass`` [kg] with absorption coefficient kappa [m^2/kg] at 1 atm
     (see the module): 3 M / (8 pi R^2) sqrt(kappa g / (3 P0))."""
@@ -105,19 +105,19 @@ def optical_depth(mass, kappa, par):
     return 3.0 * mass / (2.0 * area) * math.sqrt(kappa * par[P_G_SURF] / (3.0 * STANDARD_ATMOSPHERE))
 
 
-@njit
+@njit(leaf=True)
 def emissivity_of(m_h2o, m_co2, par):
     """Grey emissivity eps = 2 / (tau + 2) of an atmosphere holding m_h2o and m_co2 [kg] (see the module)."""
     return 2.0 / (optical_depth(m_h2o, KAPPA_H2O, par) + optical_depth(m_co2, KAPPA_CO2, par) + 2.0)
 
 
-@njit
+@njit(leaf=True)
 def thin_weight(m_h2o, par):
     """Weight w = exp(-tau_H2O) of the grey law in the steam law (1 without water, ~0 under thick steam)."""
     return math.exp(-optical_depth(m_h2o, KAPPA_H2O, par))
 
 
-@njit
+@njit(leaf=True)
 def olr_steam(ts):
     """Outgoing longwave radiation [W/m^2] of a thick steam atmosphere over a surface at ts [K] (the module)."""
     bb = STEFAN_BOLTZMANN * ts ** 4
@@ -125,7 +125,7 @@ def olr_steam(ts):
     return min(joined * (1.0 + (ts / WINDOW_TEMPERATURE) ** WINDOW_EXPONENT), bb)
 
 
-@njit
+@njit(leaf=True)
 def outgoing(ts, rad):
     """The radiation law's emitted part [W/m^2] at surface temperature ts (law 0: eps sigma T_s^4; law 1 the
     steam law blended with the grey one by the weight rad[4], see the module)."""
@@ -135,7 +135,7 @@ def outgoing(ts, rad):
     return grey
 
 
-@njit
+@njit(leaf=True)
 def net_radiation(ts, rad):
     """Net radiation [W/m^2] leaving a surface at ts [K]: emitted minus absorbed (the module's laws)."""
     if rad[0] > 0.5:
@@ -143,12 +143,12 @@ def net_radiation(ts, rad):
     return rad[1] * STEFAN_BOLTZMANN * (ts ** 4 - rad[2])
 
 
-@njit
+@njit(leaf=True)
 def _net_at(ts, rad):
     return net_radiation(ts, rad)
 
 
-@njit
+@njit(leaf=True)
 def radiation_state(t, eps, steam, par, thin):
     """(law, eps, absorbed flux / sigma [K^4], radiating temperature [K], weight of the grey law in the steam
     law ``thin``, :func:`thin_weight`) at model time t: the radiating temperature is where the net radiation
@@ -162,7 +162,7 @@ def radiation_state(t, eps, steam, par, thin):
     return (LAW_GREY, eps, f4, par[P_T_EQ], thin)
 
 
-@njit
+@njit(leaf=True)
 def saturation_pressure(t):
     """Saturation vapour pressure of water [Pa] at t [K] (Wagner & Pruss 1993; 273.16-647.096 K; the critical
     pressure above the critical temperature)."""
@@ -176,12 +176,12 @@ def saturation_pressure(t):
     return WATER_CRITICAL_PRESSURE * math.exp(tc / t * s)
 
 
-@njit
+@njit(leaf=True)
 def _sat_residual(t, p):
     return saturation_pressure(t) - p
 
 
-@njit
+@njit(leaf=True)
 def saturation_temperature(p):
     """Temperature [K] at which water's vapour pressure is p [Pa] (the critical temperature at or above the
     critical pressure); bisection, saturation_pressure rises with t."""
@@ -190,7 +190,7 @@ def saturation_temperature(p):
     return bisect(_sat_residual, p, 150.0, WATER_CRITICAL_TEMPERATURE, 1e-9, 0.0, 100)
 
 
-@njit
+@njit(leaf=True)
 def volatiles(m_melt, lost, coeff, expo, par, added_h2o, added_co2):
     """(eps, M_H2O vapour, M_CO2, M_H2O dissolved, M_H2O left) [kg] before condensation: the water left
     (inventory plus the volcanically outgassed ``added_h2o``, less the escaped) in solubility equilibrium with
@@ -202,7 +202,7 @@ def volatiles(m_melt, lost, coeff, expo, par, added_h2o, added_co2):
     return emissivity_of(m_h2o, m_co2, par), m_h2o, m_co2, water - m_h2o, water
 
 
-@njit
+@njit(leaf=True)
 def condense(ts, water, m_melt, m_h2o, dissolved, par):
     """(vapour, ocean, dissolved) [kg] at surface temperature ts: where ts is below the saturation temperature
     of the vapour's pressure, the vapour falls to p_sat(ts) and the melt holds the solubility at that pressure;
@@ -218,7 +218,7 @@ def condense(ts, water, m_melt, m_h2o, dissolved, par):
     return vapour, max(water - vapour - melt_part, 0.0), melt_part
 
 
-@njit
+@njit(leaf=True)
 def escape_rate(t, m_h2o, ocean, par):
     """Water lost to space [kg/s] at model time t (energy-limited escape of its hydrogen; 0 without a star,
     without vapour or under an ocean)."""

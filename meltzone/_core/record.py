@@ -23,7 +23,7 @@ from .layout import (D_MPROD, D_OG_CO2, D_OG_H2O, D_QCRUST, D_QVOLC, H_CRUST, H_
 from .physics import basal_ocean, core_energy, mantle_energy, profile, temperature_rates
 
 
-@njit
+@njit(leaf=True)
 def find_intervals(phi, grid, step, iv, n_iv, cap):
     """Append the contiguous melt intervals (phi > 0) of one step to ``iv``; return the new count or -1 if full.
 
@@ -64,7 +64,7 @@ def find_intervals(phi, grid, step, iv, n_iv, cap):
     return n_iv
 
 
-@njit
+@njit(leaf=True)
 def record(t, y, tu, tc, dy, diag, grid, core, par, law, hist, temps, phis, n_h, iv, n_iv):
     """Store accepted step ``n_h``: history row, T(r) and phi(r) on the mantle nodes (rows of ``temps`` and
     ``phis``) and the melt intervals (appended to ``iv`` from row ``n_iv``). Returns the new interval count,

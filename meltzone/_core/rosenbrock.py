@@ -79,7 +79,7 @@ def workspace(n):
             np.empty(n))
 
 
-@njit
+@njit(leaf=True)
 def accepted_factor(err):
     """Step growth after an accepted step with error norm ``err`` (<= 1)."""
     if err == 0.0:
@@ -87,13 +87,13 @@ def accepted_factor(err):
     return min(MAX_FACTOR, max(MIN_FACTOR, SAFETY * err ** (-1.0 / ERROR_ORDER)))
 
 
-@njit
+@njit(leaf=True)
 def rejected_factor(err):
     """Step shrink after a step rejected with error norm ``err`` (> 1)."""
     return max(MIN_REJECT_FACTOR, SAFETY * err ** (-1.0 / ERROR_ORDER))
 
 
-@njit
+@njit(leaf=True)
 def explicit_stiffness(h, f6, f7, y6, y7, scale):
     """h |lambda| estimate of an explicit step from its two stages at t + h (Hairer et al. 1993, II.6): the
     stage values y6, y7 and their slopes f6, f7, each component divided by ``scale`` (0 when they agree)."""
@@ -107,7 +107,7 @@ def explicit_stiffness(h, f6, f7, y6, y7, scale):
     return h * math.sqrt(num / den)
 
 
-@njit
+@njit(leaf=True)
 def spectral_bound(jac, scale):
     """Upper bound on the spectral radius of ``jac`` (n x n): the largest Gershgorin row sum of
     D^-1 J D with D = diag(scale) (similar to J, so the same eigenvalues)."""
@@ -122,7 +122,7 @@ def spectral_bound(jac, scale):
     return best
 
 
-@njit
+@njit(leaf=True)
 def _perturb(y, tmp, j, sign, rel):
     """tmp = y with component j moved by sign rel max(|y_j|, 1); returns the move actually represented."""
     for i in range(y.shape[0]):
@@ -131,7 +131,7 @@ def _perturb(y, tmp, j, sign, rel):
     return abs(tmp[j] - y[j])
 
 
-@njit
+@njit(leaf=True)
 def _difference(out, f1, f0, d):
     for i in range(out.shape[0]):
         out[i] = (f1[i] - f0[i]) / d
@@ -157,7 +157,7 @@ def jacobian(fun, args, t, y, f0, n_dep, jac, ft, tmp, fwork, kscr, h, rel):
     _difference(ft, fwork, f0, dt)
 
 
-@njit
+@njit(leaf=True)
 def factor(jac, h, lu, piv):
     """LU factors (partial pivoting) of I / (h GAMMA) - jac into ``lu`` and ``piv``; False when singular."""
     n = jac.shape[0]
@@ -185,7 +185,7 @@ def factor(jac, h, lu, piv):
     return True
 
 
-@njit
+@njit(leaf=True)
 def solve(lu, piv, b):
     """Solve in place with the factors of :func:`factor`."""
     n = b.shape[0]
@@ -203,7 +203,7 @@ def solve(lu, piv, b):
         b[c] = s / lu[c, c]
 
 
-@njit
+@njit(leaf=True)
 def _stages_one_two(y, h, f0, ft, lu, piv, kst, tmp):
     """Stages 1 and 2 (alpha2 = 0, A2j = 0: stage 2 reuses f0); ``tmp`` = stage 3's argument."""
     k1, k2 = kst[0], kst[1]
@@ -217,7 +217,7 @@ def _stages_one_two(y, h, f0, ft, lu, piv, kst, tmp):
         tmp[j] = y[j] + A31 * k1[j]
 
 
-@njit
+@njit(leaf=True)
 def _stage_three(y, h, f3, lu, piv, kst, tmp):
     """Stage 3 from f3 = f(t + h, y + A31 K1); ``tmp`` = stage 4's argument."""
     k1, k2, k3 = kst[0], kst[1], kst[2]
@@ -228,7 +228,7 @@ def _stage_three(y, h, f3, lu, piv, kst, tmp):
         tmp[j] = y[j] + A41 * k1[j] + A43 * k3[j]
 
 
-@njit
+@njit(leaf=True)
 def _stage_four(y, h, f4, lu, piv, kst, ynew, yerr):
     """Stage 4 from f4, the new solution and the error estimate."""
     k1, k2, k3, k4 = kst[0], kst[1], kst[2], kst[3]

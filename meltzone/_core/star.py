@@ -19,7 +19,7 @@ from .layout import (N_LUM, P_FLUX_FACTOR, P_LUM, P_LUM_AGE0, P_LUM_DAGE, P_STAR
                      P_XUV_EXP, P_XUV_SAT, P_XUV_T_SAT)
 
 
-@njit
+@njit(leaf=True)
 def luminosity_at_age(age, par):
     """Bolometric luminosity [W] of the star at its age ``age`` [s] (the table of the parameters)."""
     x = (math.log10(max(age, YEAR) / YEAR) - par[P_LUM_AGE0]) / par[P_LUM_DAGE]
@@ -32,13 +32,13 @@ def luminosity_at_age(age, par):
     return 10.0 ** ((1.0 - s) * par[P_LUM + i] + s * par[P_LUM + i + 1])
 
 
-@njit
+@njit(leaf=True)
 def star_luminosity(t, par):
     """Bolometric luminosity [W] at model time t [s] (the star is P_STAR_AGE0 old at t = 0)."""
     return luminosity_at_age(par[P_STAR_AGE0] + t, par)
 
 
-@njit
+@njit(leaf=True)
 def xuv_luminosity(t, par):
     """XUV luminosity [W] at model time t [s]: saturated, then a power law in age (see the module)."""
     age = par[P_STAR_AGE0] + t
@@ -48,7 +48,7 @@ def xuv_luminosity(t, par):
     return par[P_XUV_SAT] * luminosity_at_age(t_sat, par) * (age / t_sat) ** (-par[P_XUV_EXP])
 
 
-@njit
+@njit(leaf=True)
 def absorbed_flux_t4(t, par):
     """The absorbed stellar flux divided by sigma [K^4] at model time t: (1 - A) L(t) / (16 pi a^2 sigma) with a
     star, T_eq^4 without one. The one way the star reaches the surface balance of both schemes (a constant
@@ -58,7 +58,7 @@ def absorbed_flux_t4(t, par):
     return par[P_T_EQ] ** 4
 
 
-@njit
+@njit(leaf=True)
 def absorbed_flux(t, par):
     """Absorbed stellar flux per unit surface [W/m^2] at model time t (sigma x :func:`absorbed_flux_t4`)."""
     return STEFAN_BOLTZMANN * absorbed_flux_t4(t, par)

@@ -34,7 +34,7 @@ EIGHT_PI_THIRD = 8.0 * math.pi / 3.0
 T_COLD = 300.0
 
 
-@njit
+@njit(leaf=True)
 def cold_pressure(rho, mat):
     """Pressure of the 300 K compression curve [Pa]."""
     form = int(mat[MAT_FORM])
@@ -52,7 +52,7 @@ def cold_pressure(rho, mat):
     return 1.5 * k0 * (y5 * y2 - y5) * (1.0 + 0.75 * (kp - 4.0) * (y2 - 1.0))
 
 
-@njit
+@njit(leaf=True)
 def cold_bulk_modulus(rho, mat):
     """Isothermal bulk modulus K = rho dP/drho [Pa] of the 300 K curve."""
     form = int(mat[MAT_FORM])
@@ -72,7 +72,7 @@ def cold_bulk_modulus(rho, mat):
     return 0.5 * k0 * y * ((7.0 * y4 * y2 - 5.0 * y4) * (1.0 + c * (y2 - 1.0)) + 2.0 * c * y * (y4 * y2 * y - y4 * y))
 
 
-@njit
+@njit(leaf=True)
 def thermal_pressure(rho, t, mat):
     """High-temperature (Dulong-Petit) limit of the Mie-Grueneisen-Debye thermal pressure [Pa].
 
@@ -82,18 +82,18 @@ def thermal_pressure(rho, t, mat):
     return grueneisen(rho, mat) * rho * mat[MAT_CV] * (t - T_COLD)
 
 
-@njit
+@njit(leaf=True)
 def eos_pressure(rho, t, mat):
     return cold_pressure(rho, mat) + thermal_pressure(rho, t, mat)
 
 
-@njit
+@njit(leaf=True)
 def eos_bulk_modulus(rho, t, mat):
     """Isothermal bulk modulus [Pa] at (rho, T): cold part plus (1 - q) P_th."""
     return cold_bulk_modulus(rho, mat) + (1.0 - mat[MAT_Q]) * thermal_pressure(rho, t, mat)
 
 
-@njit
+@njit(leaf=True)
 def adiabatic_bulk_modulus(rho, t, gamma, mat):
     """Adiabatic bulk modulus K_S = K_T (1 + alpha gamma T) [Pa] (thermodynamic identity; Poirier 2000,
     Introduction to the Physics of the Earth's Interior, from memory). For this Mie-Grueneisen form
@@ -101,7 +101,7 @@ def adiabatic_bulk_modulus(rho, t, gamma, mat):
     return eos_bulk_modulus(rho, t, mat) + gamma * gamma * rho * mat[MAT_CV] * t
 
 
-@njit
+@njit(leaf=True)
 def eos_density(p, t, mat, guess):
     """Density [kg/m^3] at (P, T): safeguarded Newton inside a bracket on the rising branch.
 
@@ -155,12 +155,12 @@ def eos_density(p, t, mat, guess):
     return rho
 
 
-@njit
+@njit(leaf=True)
 def grueneisen(rho, mat):
     return mat[MAT_GAMMA0] * (mat[MAT_RHO0] / rho) ** mat[MAT_Q]
 
 
-@njit
+@njit(leaf=True)
 def mantle_phase(p, t, bounds):
     """Number of boundaries whose Clapeyron line lies below (P, T)."""
     n = 0
@@ -170,7 +170,7 @@ def mantle_phase(p, t, bounds):
     return n
 
 
-@njit
+@njit(leaf=True)
 def _rhs(r, m, p, t, mat, guess, dy):
     rho = eos_density(p, t, mat, guess)
     if r > 0.0:
@@ -185,7 +185,7 @@ def _rhs(r, m, p, t, mat, guess, dy):
     return rho
 
 
-@njit
+@njit(leaf=True)
 def _rk4(r, y, h, mat, guess, out, k1, k2, k3, k4, tmp):
     """One classical RK4 step of size h (negative: inward) from (r, y) into out; returns rho at r."""
     rho = _rhs(r, y[0], y[1], y[2], mat, guess, k1)
@@ -203,7 +203,7 @@ def _rk4(r, y, h, mat, guess, out, k1, k2, k3, k4, tmp):
     return rho
 
 
-@njit
+@njit(leaf=True)
 def _event_value(kind, y, m_core, bounds, idx):
     # kind 0: mass empties; 1: core-mantle boundary; 2: phase boundary idx
     if kind == 0:
@@ -213,7 +213,7 @@ def _event_value(kind, y, m_core, bounds, idx):
     return bounds[idx, 0] + bounds[idx, 2] * (y[2] - bounds[idx, 1]) - y[1]
 
 
-@njit
+@njit(leaf=True)
 def _store(path, n, r, y, rho, region):
     """Row n of the stored path (columns PATH_*): radius, the state y = (m, P, T, I), density and region."""
     path[n, PATH_R] = r

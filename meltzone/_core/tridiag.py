@@ -8,7 +8,7 @@ from __future__ import annotations
 from ._jit import njit
 
 
-@njit
+@njit(leaf=True)
 def solve(lower, diag, upper, rhs, out, work):
     """Solve A x = rhs for tridiagonal A: ``lower[i]`` = A[i, i-1] (lower[0] unused), ``diag[i]`` = A[i, i],
     ``upper[i]`` = A[i, i+1] (upper[n-1] unused). Writes x into ``out``; ``work`` (n) is scratch. Returns

@@ -41,7 +41,7 @@ OUTPUTS = (D_MPROD, D_QVOLC, D_DCRUST, D_XH2O, D_XCO2, D_UCONV, D_OG_H2O, D_OG_C
            D_DLID_CRUST)
 
 
-@njit
+@njit(leaf=True)
 def convective_velocity(d, delta, par):
     """Convective (plate) velocity [m/s] u = (pi / 4) kappa d / delta^2 of a cell of depth (plate length) d
     whose upper thermal boundary layer is delta.
@@ -58,7 +58,7 @@ def convective_velocity(d, delta, par):
     return 0.25 * math.pi * par[P_KAPPA] * d / (delta * delta)
 
 
-@njit
+@njit(leaf=True)
 def volcanism(tu, y, diag, grid, par, law, solidified=True):
     """Melt extraction and its consequences at upper-mantle potential temperature ``tu`` and state ``y``,
     after :func:`meltzone._core.physics.diagnose` has filled ``diag`` (``solidified``: the time is at or after
@@ -262,7 +262,7 @@ def volcanism(tu, y, diag, grid, par, law, solidified=True):
                                                                         else 0.0)
 
 
-@njit
+@njit(leaf=True)
 def recycling_rate(diag, par):
     """Rate 1 / tau [1/s] at which a mobile lid's plates carry the crust and its share of the heat sources to
     the trenches (see :func:`volcanism`: dD/dt = -D u / d_conv, d_conv = R / P_RIDGE), with ``diag`` of an
@@ -274,7 +274,7 @@ def recycling_rate(diag, par):
     return diag[D_UCONV] * par[P_RIDGE] / par[P_RADIUS]
 
 
-@njit
+@njit(leaf=True)
 def vent_solubility(y, diag, par):
     """(X_H2O, X_CO2): mass fractions that stay dissolved in the erupted melt at the partial pressures of the
     gases at the surface (their column weights; see :func:`volcanism`); zero without P_VENT."""
@@ -291,7 +291,7 @@ def vent_solubility(y, diag, par):
             VENT_CO2_COEFF * max(m_co2, 0.0) * load)
 
 
-@njit
+@njit(leaf=True)
 def crust_heat(tu, share, crust, d_lid, stagnant, diag, par):
     """The crust's heat sources (see :func:`volcanism`): D_QCRUST [W], the surface flux they add [W/m^2]
     and the lid rate they add [m/s] (zero without a stagnant lid)."""
@@ -308,7 +308,7 @@ def crust_heat(tu, share, crust, d_lid, stagnant, diag, par):
                                                                           1.0))
 
 
-@njit
+@njit(leaf=True)
 def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
     """dy/dt with volcanism: :func:`meltzone._core.physics.rhs`, less the heat the erupted melt carries to the
     surface and the crust's heat that leaves through it (both added to the heat out, so the budget still
@@ -336,7 +336,7 @@ def rhs(t, y, t_switch, grid, core, iso, par, law, work, diag, dy):
             dy[Y_WATER] = dry
 
 
-@njit
+@njit(leaf=True)
 def dry_escape(t, y, par, supply):
     """Water lost to space [kg/s] by a planet whose water is all lost (water left w = inventory + outgassed - lost
     <= 0) while the volcanoes outgas ``supply`` [kg/s] of it: energy-limited escape removes the vapour as fast as
