@@ -286,7 +286,8 @@ def test_grid_convergence_of_the_surface_magma_ocean_end():
                                        "256, 512 and 1024 before the liquid-iron core profile): "
                                        "the 5 M_E regime melt fraction drifts along phi_c for ~10 Myr; cause: the "
                                        "conductive lid under the surface lies inside the top half cell (with the "
-                                       "experimental surface refinement TOP_LEVELS = 4: 8.18 and 7.90 Myr, 3.5%)")
+                                       "experimental surface refinement TOP_LEVELS = 4, re-measured: 8.40 and 8.20 Myr, 2.4%; it "
+                                       "stays off, see the scheme's docstring)")
 def test_grid_convergence_of_the_surface_magma_ocean_end_at_five_earth_masses():
     """Issue #12's criterion "doubling the cells moves event times by <= 2%" on the end of the surface magma ocean
     of 5 M_E, 256 -> 512 nodes (strict xfail: the measured state is in the reason)."""

@@ -97,7 +97,12 @@ near phi_c in bursts, and with the full bounds the 5 M_E, 10 Gyr run took 3.5 ti
 those bursts make the regime flip (11 times for 5 M_E at 256 nodes, against once without), the mass-criterion end
 of 5 M_E moves 2.2% from 256 to 512 nodes (1.2% without), 10 M_E does not converge with it (43.0 and 75.3 Myr),
 the kernel departs from the plain reference by 7.9e-3 in the lid's cells (2 M_E, 100 kyr) and the 5 M_E, 10 Gyr
-run takes 1.6 times as long.
+run takes 1.6 times as long. Re-measured with the CMB refinement and the current Newton solver: the 5 M_E
+surface end 8.85, 8.40, 8.20, 8.08 Myr at 128-1024 nodes (2.4% from 256 to 512), 10 M_E 8.57 and 8.42 Myr (1.7%),
+1 M_E 4.91 and 4.89 Myr, the regime flipping 3 times for 5 M_E at 256 nodes (once at 512); but the light cells'
+mass-weighted bounds let the kernel depart from the plain reference by up to 1.9 (relative) in the top cells of
+a 1 M_E stagnant lid within 100 kyr, and with the full bounds the 5 M_E, 10 Gyr run takes 10,644 accepted and
+5,233 rejected steps (5 times as many, 2.5 s). Still off.
 
 Lower boundary layer (on, ``BOTTOM_LEVELS`` = 4): BOTTOM_LEVELS nodes between the interior's first two mantle
 nodes, at heights d/16, d/8, d/4 and d/2 above the CMB of that bottom spacing d (which the interior already makes
