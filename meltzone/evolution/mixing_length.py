@@ -385,7 +385,7 @@ def intervals_of(phis, grid) -> dict:
 
 def run(spec, interior, curves, progress=None, *, history_rows=2048) -> History:
     """Evolve one planet with the mixing-length scheme and return its :class:`History`."""
-    n = interior.r.size - interior.cmb_index
+    n = interior.r.size - interior.cmb_index + TOP_LEVELS + BOTTOM_LEVELS  # the cells with the refinement
     if n > MAX_CELLS:
         raise ConfigError(f"interior.mantle_nodes = {spec.interior.mantle_nodes} gives {n} mantle cells, more than "
                           f"the mixing-length scheme takes ({MAX_CELLS}); lower interior.mantle_nodes")
