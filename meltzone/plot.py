@@ -544,9 +544,11 @@ def build_history(result):
          + ([("crust_thickness", "crust", "-")] if "crust_thickness" in h else [])),
     ]
     if "melt_production" in h:  # volcanism: melt extraction and the outgassing of its erupted part
-        for ylabel, series in (("melt production [km^3/yr]", [("melt_production", "extracted melt", "-")]),
-                               ("outgassing [kg/yr]", [("outgassing_h2o_rate", "H2O", "-"),
-                                                       ("outgassing_co2_rate", "CO2", "-")])):
+        volcanic = [("melt production [km^3/yr]", [("melt_production", "extracted melt", "-")])]
+        if "outgassing_h2o_rate" in h:  # not followed by the mixing-length scheme
+            volcanic.append(("outgassing [kg/yr]", [("outgassing_h2o_rate", "H2O", "-"),
+                                                    ("outgassing_co2_rate", "CO2", "-")]))
+        for ylabel, series in volcanic:
             some = any(np.any(h[name] > 0.0) for name, _, _ in series)
             panels.append((ylabel, "log" if some else "linear", series))
     if _has_atmosphere(result):
@@ -555,6 +557,8 @@ def build_history(result):
                        [("atmosphere_h2o", "H2O in the atmosphere", "-"),
                         ("atmosphere_co2", "CO2 in the atmosphere", "-")]))
         panels += _surface_panels(h)
+    # the series a scheme does not record are left out (the mixing-length scheme has no lid-base temperature)
+    panels = [(ylabel, scale, [item for item in series if item[0] in h]) for ylabel, scale, series in panels]
     fig = new_figure((9.0, 2.1 * len(panels) + 1.4))
     axes = fig.subplots(len(panels), 1, sharex=True)
     for ax, (ylabel, scale, series) in zip(axes, panels):

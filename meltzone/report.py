@@ -236,7 +236,7 @@ def _water_text(s: dict) -> str:
 
 
 def _volcanism_text(s: dict) -> str:
-    if s.get("crust_thickness_m") is None:
+    if s.get("final_melt_production_km3_yr") is None:
         return "not modelled (volcanism.enabled = \"off\", or a scheme without melt extraction)"
     if s["volcanism_at_end"]:
         when = f"active at the end ({s['final_melt_production_km3_yr']:.3g} km^3/yr)"
@@ -248,6 +248,9 @@ def _volcanism_text(s: dict) -> str:
     if n:
         when += (f" ({n} episode{'s' if n > 1 else ''}, active {format_years(s['volcanism_active_yr'])} in "
                  f"total)")
+    if s.get("crust_thickness_m") is None:
+        return (f"{when}, peak {s['peak_melt_production_km3_yr']:.3g} km^3/yr (the heat pipe's extraction; crust "
+                f"and outgassing not followed by this scheme)")
     return (f"{when}, peak {s['peak_melt_production_km3_yr']:.3g} km^3/yr; crust "
             f"{s['crust_thickness_m'] / 1e3:,.3g} km; outgassed H2O {s['outgassed_h2o_kg']:.3g} kg, CO2 "
             f"{s['outgassed_co2_kg']:.3g} kg")

@@ -1,7 +1,8 @@
 """Volcanism outcomes of a run: when volcanism ended, the crust, the outgassed H2O and CO2.
 
 Reads only the History's volcanism series (:data:`meltzone.evolution.contract.VOLCANISM_SERIES`, SI); a run
-without them (volcanism off, or a scheme that does not extract melt) gives None everywhere.
+without them (volcanism off, or a scheme that does not extract melt) gives None everywhere, and a run with only
+the melt production and the heat pipe (the mixing-length scheme) None for the crust and the outgassing.
 """
 
 from __future__ import annotations
@@ -67,18 +68,22 @@ def volcanism_outcomes(result) -> dict:
         end = float(h.time[s] / YEAR)
     time = np.asarray(h.time, dtype=float)
     episodes, active_yr, t90 = _episodes(time, prod)
-    gas = np.asarray(h["outgassed_h2o"], dtype=float) + np.asarray(h["outgassed_co2"], dtype=float)
-    return {
+    out = {
         "volcanism_end_yr": end,
         "volcanism_at_end": bool(active[-1]),
-        "crust_thickness_m": float(h["crust_thickness"][-1]),
-        "outgassed_h2o_kg": float(h["outgassed_h2o"][-1]),
-        "outgassed_co2_kg": float(h["outgassed_co2"][-1]),
+        "crust_thickness_m": None,
+        "outgassed_h2o_kg": None,
+        "outgassed_co2_kg": None,
         "final_melt_production_km3_yr": float(prod[-1] * KM3_PER_YR),
         "peak_melt_production_km3_yr": float(prod.max() * KM3_PER_YR),
         "volcanic_episodes": episodes,
         "volcanism_active_yr": active_yr,
         "melt_extracted_90pct_yr": t90,
-        "outgassed_90pct_yr": _outgassed_90pct(time, gas),
+        "outgassed_90pct_yr": None,
     }
+    if "crust_thickness" in h:  # the crust and the outgassing (not followed by the mixing-length scheme)
+        gas = np.asarray(h["outgassed_h2o"], dtype=float) + np.asarray(h["outgassed_co2"], dtype=float)
+        out.update(crust_thickness_m=float(h["crust_thickness"][-1]), outgassed_h2o_kg=float(h["outgassed_h2o"][-1]),
+                   outgassed_co2_kg=float(h["outgassed_co2"][-1]), outgassed_90pct_yr=_outgassed_90pct(time, gas))
+    return out
 

@@ -302,6 +302,33 @@ def _heat_loss_tw(result):
     return (h["surface_heat_flow"][-1] + pipe) / 1e12
 
 
+def test_heat_pipe_records_its_volcanism():
+    """The stagnant lid's heat pipe (1 M_E, 64 nodes, 4.5 Gyr): the history records its power and its melt
+    production, and the summary the volcanism's timing and rates, with the crust and the outgassing null (this
+    scheme does not follow them). Each erupted kg takes out L + c_p (T - T_s) (Moore & Webb 2013's heat pipe; from
+    memory), so the power per extracted kg lies between L and L + c_p (T_max - T_s) with T_max the hottest cell;
+    the energy closure holds with the pipe in the budget (1e-8). A mobile lid runs no pipe: no volcanism series,
+    its volcanism keys null."""
+    r = evolve(spec_of(1.0, 64, 4.5, convection={"scheme": "mixing-length", "regime": "stagnant-lid"}))
+    h, s = r.history, r.summary()
+    par = h.scheme_data["par"]
+    from meltzone._core import layout as k
+
+    rate = h["melt_production"] * par[k.P_RHO_CRUST]  # kg/s
+    on = rate > 0.0
+    assert on.any() and s["volcanism_at_end"] and s["final_melt_production_km3_yr"] > 0.0
+    per_kg = h["volcanic_heat_flow"][on] / rate[on]
+    hottest = h.temperature[on].max(axis=1)
+    assert np.all(per_kg >= par[k.P_LATENT] * (1 - 1e-9))
+    assert np.all(per_kg <= par[k.P_LATENT] + par[k.P_CM] * (hottest - h["surface_temperature"][on]))
+    assert np.all(h["volcanic_heat_flow"][~on] == 0.0)
+    assert s["crust_thickness_m"] is None and s["outgassed_h2o_kg"] is None and s["outgassed_90pct_yr"] is None
+    assert s["energy_closure"] <= 1e-8
+    mobile = evolve(spec_of(1.0, 64, 0.1, convection={"scheme": "mixing-length", "regime": "mobile-lid"}))
+    assert "melt_production" not in mobile.history and mobile.summary()["volcanism_end_yr"] is None
+    assert mobile.summary()["final_melt_production_km3_yr"] is None
+
+
 @pytest.mark.xfail(strict=True, raises=AssertionError, reason="measured at 1 M_E, 64 nodes, 4.5 Gyr, with the mixing "
                    "length bounded under the rigid lid and the heat pipe: stagnant 25.1 TW against mobile 29.7 TW, "
                    "ratio 0.85 (0.84 at 256 nodes; before the bound 1.08; the boundary-layer scheme ~0.6). The "

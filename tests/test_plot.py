@@ -65,6 +65,19 @@ def test_stagnant_lid_figures(stagnant, tmp_path):
         assert path.read_bytes()[:8] == PNG_SIGNATURE
 
 
+@pytest.mark.parametrize("regime", ["mobile-lid", "stagnant-lid"])
+def test_mixing_length_figures(tmp_path, regime):
+    """Every run figure of the mixing-length scheme, whose history lacks some of the boundary-layer scheme's series
+    (the lid base's temperature; the crust and the outgassing under a stagnant lid), from its file."""
+    r = meltzone.evolve({"planet": {"mass_earth": 1.0, "name": "Test-5 b (invented)"}, "run": {"end_time_gyr": 0.5},
+                         "interior": {"mantle_nodes": 32},
+                         "convection": {"scheme": "mixing-length", "regime": regime}})
+    loaded = meltzone.load(results.write(r, tmp_path / "mlt.h5"))
+    for figure in plot.RUN_FIGURES:
+        path = plot.plot_run(loaded, figure, tmp_path / f"{figure}.png")
+        assert path.read_bytes()[:8] == PNG_SIGNATURE
+
+
 def test_profiles_at_chosen_times(run, tmp_path):
     path = plot.profiles(run, tmp_path / "p.png", times_yr=[0.0, 1e4, 1e8])
     assert path.read_bytes()[:8] == PNG_SIGNATURE

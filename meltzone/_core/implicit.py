@@ -27,7 +27,8 @@ from ..constants import STEFAN_BOLTZMANN, YEAR
 from ._jit import njit
 from .layout import (C_W, F_A, F_DR, F_R, G_F, G_P, G_W, M_DPHI, M_DT_CELL, M_ERR, M_MAX_NEWTON, M_MIN_STEP,
                      M_MOBILE, M_TOP_CELLS, M_NEWTON_TOL, MH_ATM_CO2, MH_ATM_H2O, MH_DT, MH_E_STORED, MH_EC, MH_H,
-                     MH_LID, MH_MELT, MH_NEWTON, MH_OUT, MH_PHI_TOP, MH_QC, MH_QS, MH_RIC, MH_T, MH_TC, MH_TS, MH_TU,
+                     MH_EXTRACT, MH_LID, MH_MELT, MH_NEWTON, MH_OUT, MH_PHI_TOP, MH_PIPE, MH_QC, MH_QS, MH_RIC, MH_T,
+                     MH_TC, MH_TS, MH_TU,
                      MS_EPS, MS_H, MS_H_PREV, MS_N_H, MS_N_NEWTON, MS_N_REJ, MS_OUT, MS_T, MS_TC, P_A_RH, P_ATMOSPHERE,
                      P_BLEND, P_CC, P_CM, P_H_MAX, P_K, P_LATENT, P_P_EXTRACT, P_PHI_C, P_RADIUS, P_STAGNANT, P_T_END,
                      P_VOLC, STATUS_DONE, STATUS_HISTORY_FULL, STATUS_MAX_STEPS, STATUS_STEP_TOO_SMALL)
@@ -174,14 +175,11 @@ def fluxes(tc, h, temp, phi, grid, faces, core, par, law, floors, rad, has_core,
 
 
 @njit(leaf=True)
-def heat_pipe(i, h, temp, phi, grid, law, par, ts):
-    """(S [W], dS/dh [W kg/J]) of the heat pipe out of cell i: melt above PIPE_MELT in a partly molten cell no
-    deeper than volcanism.max_extraction_pressure_gpa leaves at the rate m (phi - PIPE_MELT) w / PIPE_TIME and
-    erupts; the cell loses the melt's enthalpy and gains that of the same mass of cold surface material sinking
-    in its place, L + c_p (T - T_s) per kg (the heat pipe of Moore & Webb 2013, Nature 501:501; from memory).
-    w = 1 below the rheological transition, falling to 0 across it with the viscosity's smoothstep (a magma
-    ocean convects its heat instead). Whether the pipe runs at all (volcanism on, stagnant lid, a solid top) is
-    :func:`_pipe_surface`'s decision, once per step."""
+def pipe_extraction(i, phi, grid, par):
+    """(M [kg/s], dM/dphi [kg/s]) of the heat pipe's melt extraction out of cell i: melt above PIPE_MELT in a
+    partly molten cell no deeper than volcanism.max_extraction_pressure_gpa leaves at the rate
+    M = m (phi - PIPE_MELT) w / PIPE_TIME, w = 1 below the rheological transition, falling to 0 across it with the
+    viscosity's smoothstep (a magma ocean convects its heat instead); see :func:`heat_pipe`."""
     if grid[G_P, i] > par[P_P_EXTRACT] or phi[i] <= PIPE_MELT:
         return 0.0, 0.0
     xb = (phi[i] - par[P_PHI_C]) / par[P_BLEND]
@@ -190,11 +188,22 @@ def heat_pipe(i, h, temp, phi, grid, law, par, ts):
     w = 1.0 - smoothstep(xb)
     dw = -smoothstep_slope(xb) / par[P_BLEND]
     rate = grid[G_W, i] / PIPE_TIME
+    excess = phi[i] - PIPE_MELT
+    return rate * excess * w, rate * (w + excess * dw)
+
+
+@njit(leaf=True)
+def heat_pipe(i, h, temp, phi, grid, law, par, ts):
+    """(S [W], dS/dh [W kg/J]) of the heat pipe out of cell i: the melt of :func:`pipe_extraction` erupts; the
+    cell loses the melt's enthalpy and gains that of the same mass of cold surface material sinking in its place,
+    L + c_p (T - T_s) per kg (the heat pipe of Moore & Webb 2013, Nature 501:501; from memory). Whether the pipe
+    runs at all (volcanism on, stagnant lid, a solid top) is :func:`_pipe_surface`'s decision, once per step."""
+    mass, d_mass = pipe_extraction(i, phi, grid, par)
+    if mass == 0.0 and d_mass == 0.0:
+        return 0.0, 0.0
     per_kg = par[P_LATENT] + par[P_CM] * (temp[i] - ts)
     dt_dh, dphi_dh = cell_slope(h[i], temp[i], grid, i, law, par)
-    excess = phi[i] - PIPE_MELT
-    d_excess = dphi_dh * (w + excess * dw)
-    return rate * excess * w * per_kg, rate * (d_excess * per_kg + excess * w * par[P_CM] * dt_dh)
+    return mass * per_kg, d_mass * dphi_dh * per_kg + mass * par[P_CM] * dt_dh
 
 
 @njit(leaf=True)
@@ -579,7 +588,12 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
                 x_prev[i] = x_old[i]
             record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, rad,
                    (vap, vol[1], ocean, dissolved, lost), out, its, hist, temps, phis, n_h)
-            hist[n_h, MH_QS] += pipe  # the heat pipe's eruptions leave through the surface
+            hist[n_h, MH_PIPE] = pipe  # the heat pipe's eruptions leave through the surface
+            extracted = 0.0
+            if ts_pipe > 0.0:
+                for i in range(n):
+                    extracted += pipe_extraction(i, phi, grid, par)[0]
+            hist[n_h, MH_EXTRACT] = extracted
             n_h += 1
             steps += 1
             dt_prev = dt

@@ -222,6 +222,10 @@ MLT_HISTORY_COLUMNS = ("time", "upper_temperature", "core_temperature", "surface
 MLT_HISTORY_COLUMNS += ("absorbed_flux", "outgoing_radiation", "water_ocean", "water_dissolved", "water_lost",
                         "pressure_h2o", "pressure_co2")
 MH_ABS, MH_OLR, MH_OCEAN, MH_DISSOLVED, MH_LOST, MH_P_H2O, MH_P_CO2 = range(N_MH, N_MH := len(MLT_HISTORY_COLUMNS))
+#: the stagnant lid's heat pipe: its power [W] (not in surface_heat_flow) and the mass rate of melt it extracts
+#: [kg/s]
+MLT_HISTORY_COLUMNS += ("pipe_power", "pipe_extraction")
+MH_PIPE, MH_EXTRACT = range(N_MH, N_MH := len(MLT_HISTORY_COLUMNS))
 #: index of the top convecting cell (the regime's melt fraction is its isentrope's at the surface)
 MLT_HISTORY_COLUMNS += ("upper_cell",)
 MH_UPPER_CELL, = range(N_MH, N_MH := len(MLT_HISTORY_COLUMNS))

@@ -55,7 +55,8 @@ SERIES = {
     "water_lost": ("kg", "water lost to space (escape of its hydrogen)", False),
     "pressure_h2o": ("Pa", "partial pressure of H2O at the surface (its column weight)", False),
     "pressure_co2": ("Pa", "partial pressure of CO2 at the surface (its column weight)", False),
-    # volcanism (melt extraction; the boundary-layer scheme with volcanism.enabled = "on")
+    # volcanism (melt extraction; volcanism.enabled = "on": the boundary-layer scheme, and the mixing-length
+    # scheme's heat pipe under a stagnant lid, which records only melt_production and volcanic_heat_flow)
     "melt_production": ("m^3/s", "volume rate of melt extracted from the mantle (as crust)", False),
     "volcanic_heat_flow": ("W", "heat the extracted melt takes out of the mantle past a stagnant lid (erupted: "
                            "heat pipe; intruded: through crust and lid); not in surface_heat_flow; 0 under a "
@@ -69,7 +70,8 @@ SERIES = {
     "crust_heat_production": ("W", "radiogenic heat produced in the crust (in surface_heat_flow as it leaves)",
                               False),
 }
-#: The series of volcanism (present together or not at all).
+#: The series of volcanism (present together or not at all; the mixing-length scheme records only the first two,
+#: from its heat pipe, and follows neither crust nor outgassing).
 VOLCANISM_SERIES = ("melt_production", "volcanic_heat_flow", "crust_thickness", "outgassing_h2o_rate",
                     "outgassing_co2_rate", "outgassed_h2o", "outgassed_co2", "crust_heat_share",
                     "crust_heat_production")

@@ -59,11 +59,14 @@ Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltz
 * heat pipe (stagnant lid, volcanism.enabled = "on", under a solid top cell): melt above 1% in a cell no deeper
   than volcanism.max_extraction_pressure_gpa leaves at the rate m (phi - 0.01) w / 10 kyr (w falls from 1 to 0
   across the rheological transition: a magma ocean convects instead) and erupts, each kg taking L + c_p (T - T_s)
-  out of the cell (Moore & Webb 2013, Nature 501:501; from memory); this heat is part of the surface heat flow.
-  Without it, the stagnant mantle that the bound keeps hot held 30% melt under a 27 km lid at 5 M_E. The
-  extraction time is short against the thermal evolution: 1 and 100 kyr give the same heat flow at 4.5 Gyr within
-  0.1% (1 and 5 M_E, 64 nodes). Intrusions, crust, outgassing and the melt's depletion are not followed in this
-  scheme (all extracted melt counts as erupted for its heat: an upper bound of the pipe);
+  out of the cell (Moore & Webb 2013, Nature 501:501; from memory); this heat leaves through the surface. Without
+  it, the stagnant mantle that the bound keeps hot held 30% melt under a 27 km lid at 5 M_E. The extraction time
+  is short against the thermal evolution: 1 and 100 kyr give the same heat flow at 4.5 Gyr within 0.1% (1 and 5
+  M_E, 64 nodes). Intrusions, crust, outgassing and the melt's depletion are not followed in this scheme (all
+  extracted melt counts as erupted for its heat: an upper bound of the pipe). The history records the pipe's power
+  (``volcanic_heat_flow``, not in ``surface_heat_flow``, as in the boundary-layer scheme) and the melt it extracts
+  as the volume of crust it would make (``melt_production``, m^3/s at volcanism.crust_density_kg_m3), from which
+  the summary takes when volcanism ends and its rates;
 * radiogenic heating per cell by mass (the same isotope table).
 
 Time stepping: backward Euler with Newton on the tridiagonal Jacobian (conservative: the energy closure is the
@@ -400,6 +403,11 @@ def run(spec, interior, curves, progress=None, *, history_rows=2048) -> History:
     phi_c = float(inputs.par[k.P_PHI_C])
     solid = k.REGIME_STAGNANT_LID if spec.convection.regime == "stagnant-lid" else k.REGIME_MOBILE_LID
     series["regime"] = np.where(series["top_melt_fraction"] > phi_c, k.REGIME_MAGMA_OCEAN, solid).astype(np.int8)
+    if inputs.par[k.P_VOLC] > 0.5 and spec.convection.regime == "stagnant-lid":
+        # the heat pipe's power and the melt it extracts, as the volume of crust it would make (the
+        # boundary-layer scheme's unit); this scheme follows neither the crust nor the outgassing
+        series["volcanic_heat_flow"] = hist[:, column["pipe_power"]].copy()
+        series["melt_production"] = hist[:, column["pipe_extraction"]] / inputs.par[k.P_RHO_CRUST]
     de = series["stored_energy"][0] - series["stored_energy"]
     scale = max(float(np.max(np.abs(de))), 1.0)
     series["closure_error"] = (de - series["heat_out_minus_radiogenic"]) / scale
