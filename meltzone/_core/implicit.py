@@ -588,7 +588,7 @@ def integrate(state, x, x_prev, grid, faces, core, iso, par, law, mset, hist, te
                 x_prev[i] = x_old[i]
             record(t, dt, x, tc, ts, temp, phi, flux, grid, faces, core, iso, par, law, floors, rad,
                    (vap, vol[1], ocean, dissolved, lost), out, its, hist, temps, phis, n_h)
-            hist[n_h, MH_PIPE] = pipe  # the heat pipe's eruptions leave through the surface
+            hist[n_h, MH_PIPE] = pipe  # the heat pipe (its eruptions leave through the surface; not in MH_QS)
             extracted = 0.0
             if ts_pipe > 0.0:
                 for i in range(n):

@@ -110,16 +110,19 @@ a 1 M_E stagnant lid within 100 kyr, and with the full bounds the 5 M_E, 10 Gyr 
 Lower boundary layer (on, ``BOTTOM_LEVELS`` = 4): BOTTOM_LEVELS nodes between the interior's first two mantle
 nodes, at heights d/16, d/8, d/4 and d/2 above the CMB of that bottom spacing d (which the interior already makes
 1/8 of its body's), so that the CMB half cell is 1/128 of the body's spacing (0.14 km at 256 nodes for 5 M_E) and
-the hot lower boundary layer, in which the basal melt layer freezes last, is resolved by the cells rather than
-by the CMB face's boundary-layer law. Measured, the end of the basal layer (defaults, 10 Gyr) at 128, 256, 512
-and 1024 nodes: 5 M_E 2.234, 2.257, 2.283, 2.309 Gyr; 10 M_E 2.194, 2.216, 2.240, 2.267 Gyr; 1 M_E 1.451, 1.464,
-1.470, 1.475 Gyr, i.e. 1.0-1.2% per doubling at 5 and 10 M_E (a drift that does not yet shrink with the cells,
-not diagnosed) and 0.4% at 1 M_E; without the levels 2.04, 2.16, 2.23 Gyr (6.0%, 3.2%), 1.85, 2.10, 2.17 Gyr
-(13.4%, 3.5%) and 1.425, 1.448, 1.461 Gyr (1.7%, 0.9%), first order in the bottom spacing. Two levels gave 2.0%
-and 1.5% (5 M_E). The cost: the 5 M_E, 10 Gyr benchmark takes 2259 accepted and 506 rejected steps against 2163
-and 323 (about 5% more wall time); counting the bottom cells' step bounds by their mass (as the top refinement's)
-took more steps (2344 and 631), so they count in full. Halving run.max_temperature_step_k moves the 5 M_E end by
-0.1% (256 and 512 nodes).
+the hot lower boundary layer, in which the basal melt layer freezes last, is resolved by the cells rather than by
+the CMB face's boundary-layer law. Measured, the end of the basal layer (defaults, 10 Gyr) at 128, 256, 512 and
+1024 nodes: 5 M_E 2.234, 2.257, 2.283, 2.309 Gyr; 10 M_E 2.194, 2.216, 2.240, 2.267 Gyr; 1 M_E 1.451, 1.464,
+1.470, 1.475 Gyr, i.e. 1.0-1.2% per doubling at 5 and 10 M_E (a drift that does not yet shrink with the cells) and
+0.4% at 1 M_E. The levels themselves are converged (5 M_E at 256 nodes with 4, 6, 8 levels: 2.257, 2.263, 2.264
+Gyr), so the drift comes from the body's spacing: the core is 2.4 and 2.9 K warmer at 2 Gyr per doubling (8877.0,
+8879.4, 8882.3 K) and the CMB heat flow at 1-2 Gyr ~1% lower (not diagnosed; a candidate: the properties
+interpolated across the mantle's phase boundaries, first order at a jump); without the levels 2.04, 2.16, 2.23 Gyr
+(6.0%, 3.2%), 1.85, 2.10, 2.17 Gyr (13.4%, 3.5%) and 1.425, 1.448, 1.461 Gyr (1.7%, 0.9%), first order in the
+bottom spacing. Two levels gave 2.0% and 1.5% (5 M_E). The cost: the 5 M_E, 10 Gyr benchmark takes 2259 accepted
+and 506 rejected steps against 2163 and 323 (about 5% more wall time); counting the bottom cells' step bounds by
+their mass (as the top refinement's) took more steps (2344 and 631), so they count in full. Halving
+run.max_temperature_step_k moves the 5 M_E end by 0.1% (256 and 512 nodes).
 
 History: regime 0 (magma ocean) while the top of the convecting mantle is above phi_c, else the configured solid
 regime. ``top_melt_fraction`` (the regime's melt fraction) is the melt fraction at the surface of the two-phase
@@ -145,28 +148,27 @@ passes the rheological transition within ~1-3 kyr and this converges: the time a
 mass is above phi_c, 5 M_E: 1.710, 1.771, 1.798, 1.819, 1.835 kyr (with the refinement 1.806, 1.844, 1.856 kyr).
 The surface magma ocean's end (the regime's isentrope leaving phi_c), 1 M_E: 9.40, 9.00, 5.43, 4.86, 4.80 Myr
 (with the refinement 4.83 and 4.80 Myr at 512 and 1024 nodes, 0.7%). 5 M_E: 8.2, 12.8, 22.3, 17.0, 7.8 Myr before
-the refinement (the conductive lid inside the top half cell, see "Upper boundary layer"); with it 8.18, 7.90,
-7.61 Myr (3.5% and 3.6% per doubling, runs to 25 Myr): still short of 2%, because the regime's melt fraction
-drifts along phi_c (~0.008 per Myr) and the upper mantle's profile still moves by ~0.005 in phi per doubling.
-10 M_E is not converged with it either (43.0 and 75.3 Myr at 256 and 512 nodes, runs to 200 Myr; not diagnosed).
-The 1 M_E time of less than 1% above phi_c falls on a plateau of ~1-1.4% of the mantle mass (1.35, 2.24, 2.98,
-2.38, 1.55 Myr), and so does the reported ``magma_ocean_end_yr`` (which needs both; with the refinement 2.26
-and 1.55 Myr at 512 and 1024 nodes). The basal layer's edges at fixed times converge (1 M_E, top at 40 kyr
-to 1 Myr: within 3 km from 256 to 1024 nodes, cells of 11 to 3 km; the core's heat flow at 1 Myr 3.3e14, 3.7e14,
-3.6e14 W), but its separation is a tangency of T - T_sol with zero: 1 M_E 33.9, 33.5, 32.9, 30.0, 31.2 kyr, its
-largest thickness (reached then) 965, 960, 963, 1063, 1006 km; 5 M_E 530 kyr within 0.2% and 438, 439, 423, 427,
-425 km (with the refinement 534, 534, 536 kyr and 425, 452, 436 km). The last melt (the basal layer's freezing)
-moved by 4.7% and 2.4% (1 M_E, 128-512 nodes), 4.0% and 2.8% (5 M_E), 7.6% and 5.9% (10 M_E) in an earlier version
-without the CMB refinement (see "Lower boundary layer" for the current numbers); with the node
-distances at the outer faces and the cell's melt fraction at the CMB 13.9% and 11.3% (5 M_E), 13.6% and 10.7%
-(10 M_E). The last cell above phi_c (``rheological_transition_yr``) is, with the CMB refinement, the CMB half cell: a
-film of tens of metres that the core keeps above phi_c (1 M_E 47.9, 48.9, 49.3 Myr and 5 M_E 85.1, 100.4, 106.2
-Myr at 128, 256, 512 nodes); without it, one cell on a plateau at phi_c under the surface (1 M_E 8.0, 7.8, 5.7,
-22.2, 29.5 Myr; 5 M_E 4.7, 7.4, 20.2, 15.9, 12.2 Myr; with the surface refinement 5 M_E 13.7, 12.9, 12.2 Myr,
-6% per doubling). Halving the step tolerance (run.max_temperature_step_k) moved every event by < 1% except the
-basal layer's largest thickness (1-6%) before the refinement. Tried without effect on the top cell's freezing:
-mixing lengths at the geometric mean of the two nodes' distances to the boundary, and the node distance at the
-faces next to the outer half cells.
+the refinement (the conductive lid inside the top half cell, see "Upper boundary layer"); with it 8.18, 7.90, 7.61
+Myr (3.5% and 3.6% per doubling, runs to 25 Myr): still short of 2%, because the regime's melt fraction drifts
+along phi_c (~0.008 per Myr) and the upper mantle's profile still moves by ~0.005 in phi per doubling. 10 M_E is
+not converged with it either (43.0 and 75.3 Myr at 256 and 512 nodes, runs to 200 Myr; not diagnosed). The 1 M_E
+time of less than 1% above phi_c falls on a plateau of ~1-1.4% of the mantle mass (1.35, 2.24, 2.98, 2.38, 1.55
+Myr), and so does the reported ``magma_ocean_end_yr`` (which needs both; with the refinement 2.26 and 1.55 Myr at
+512 and 1024 nodes). The basal layer's edges at fixed times converge (1 M_E, top at 40 kyr to 1 Myr: within 3 km
+from 256 to 1024 nodes, cells of 11 to 3 km; the core's heat flow at 1 Myr 3.3e14, 3.7e14, 3.6e14 W), but its
+separation is a tangency of T - T_sol with zero: 1 M_E 33.9, 33.5, 32.9, 30.0, 31.2 kyr, its largest thickness
+(reached then) 965, 960, 963, 1063, 1006 km; 5 M_E 530 kyr within 0.2% and 438, 439, 423, 427, 425 km (with the
+refinement 534, 534, 536 kyr and 425, 452, 436 km). The last melt (the basal layer's freezing) moved by 4.7% and
+2.4% (1 M_E, 128-512 nodes), 4.0% and 2.8% (5 M_E), 7.6% and 5.9% (10 M_E) in an earlier version without the CMB
+refinement (see "Lower boundary layer" for the current numbers); with the node distances at the outer faces and
+the cell's melt fraction at the CMB 13.9% and 11.3% (5 M_E), 13.6% and 10.7% (10 M_E). The last cell above phi_c
+(``rheological_transition_yr``) is, with the CMB refinement, the CMB half cell: a film of tens of metres that the
+core keeps above phi_c (1 M_E 47.9, 48.9, 49.3 Myr and 5 M_E 85.1, 100.4, 106.2 Myr at 128, 256, 512 nodes);
+without it, one cell on a plateau at phi_c under the surface (1 M_E 8.0, 7.8, 5.7, 22.2, 29.5 Myr; 5 M_E 4.7, 7.4,
+20.2, 15.9, 12.2 Myr; with the surface refinement 5 M_E 13.7, 12.9, 12.2 Myr, 6% per doubling). Halving the step
+tolerance (run.max_temperature_step_k) moved every event by < 1% except the basal layer's largest thickness (1-6%)
+before the refinement. Tried without effect on the top cell's freezing: mixing lengths at the geometric mean of
+the two nodes' distances to the boundary, and the node distance at the faces next to the outer half cells.
 """
 
 from __future__ import annotations
