@@ -559,6 +559,7 @@ def build_history(result):
         panels += _surface_panels(h)
     # the series a scheme does not record are left out (the mixing-length scheme has no lid-base temperature)
     panels = [(ylabel, scale, [item for item in series if item[0] in h]) for ylabel, scale, series in panels]
+    panels = [panel for panel in panels if panel[2]]
     fig = new_figure((9.0, 2.1 * len(panels) + 1.4))
     axes = fig.subplots(len(panels), 1, sharex=True)
     for ax, (ylabel, scale, series) in zip(axes, panels):
