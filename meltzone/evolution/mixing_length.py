@@ -116,13 +116,13 @@ the CMB face's boundary-layer law. Measured, the end of the basal layer (default
 1.470, 1.475 Gyr, i.e. 1.0-1.2% per doubling at 5 and 10 M_E (a drift that does not yet shrink with the cells) and
 0.4% at 1 M_E. The levels themselves are converged (5 M_E at 256 nodes with 4, 6, 8 levels: 2.257, 2.263, 2.264
 Gyr), so the drift comes from the body's spacing: the core is 2.4 and 2.9 K warmer at 2 Gyr per doubling (8877.0,
-8879.4, 8882.3 K) and the CMB heat flow at 1-2 Gyr ~1% lower (not diagnosed; a candidate: the properties
-interpolated across the mantle's phase boundaries, first order at a jump); without the levels 2.04, 2.16, 2.23 Gyr
-(6.0%, 3.2%), 1.85, 2.10, 2.17 Gyr (13.4%, 3.5%) and 1.425, 1.448, 1.461 Gyr (1.7%, 0.9%), first order in the
-bottom spacing. Two levels gave 2.0% and 1.5% (5 M_E). The cost: the 5 M_E, 10 Gyr benchmark takes 2259 accepted
-and 506 rejected steps against 2163 and 323 (about 5% more wall time); counting the bottom cells' step bounds by
-their mass (as the top refinement's) took more steps (2344 and 631), so they count in full. Halving
-run.max_temperature_step_k moves the 5 M_E end by 0.1% (256 and 512 nodes).
+8879.4, 8882.3 K) and the CMB heat flow at 1-2 Gyr ~1% lower (not diagnosed; not the face densities interpolated
+across the mantle's phase boundaries: taking the lower node's at those faces gave 2.258, 2.283, 2.310 Gyr);
+without the levels 2.04, 2.16, 2.23 Gyr (6.0%, 3.2%), 1.85, 2.10, 2.17 Gyr (13.4%, 3.5%) and 1.425, 1.448, 1.461
+Gyr (1.7%, 0.9%), first order in the bottom spacing. Two levels gave 2.0% and 1.5% (5 M_E). The cost: the 5 M_E,
+10 Gyr benchmark takes 2259 accepted and 506 rejected steps against 2163 and 323 (about 5% more wall time);
+counting the bottom cells' step bounds by their mass (as the top refinement's) took more steps (2344 and 631), so
+they count in full. Halving run.max_temperature_step_k moves the 5 M_E end by 0.1% (256 and 512 nodes).
 
 History: regime 0 (magma ocean) while the top of the convecting mantle is above phi_c, else the configured solid
 regime. ``top_melt_fraction`` (the regime's melt fraction) is the melt fraction at the surface of the two-phase
