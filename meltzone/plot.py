@@ -540,24 +540,24 @@ def build_history(result):
                                   ("radiogenic_power", "radiogenic heating", "-")]),
         ("melt mass [kg]", "log", [("melt_mass", "melt in the mantle", "-")]),
         ("thickness, radius [km]", "linear", [("lid_thickness", "stagnant lid", "-"),
-                                             ("inner_core_radius", "inner-core radius", "-")]
-         + ([("crust_thickness", "crust", "-")] if "crust_thickness" in h else [])),
+                                             ("inner_core_radius", "inner-core radius", "-"),
+                                             ("crust_thickness", "crust", "-")]),
     ]
-    if "melt_production" in h:  # volcanism: melt extraction and the outgassing of its erupted part
-        volcanic = [("melt production [km^3/yr]", [("melt_production", "extracted melt", "-")])]
-        if "outgassing_h2o_rate" in h:  # not followed by the mixing-length scheme
-            volcanic.append(("outgassing [kg/yr]", [("outgassing_h2o_rate", "H2O", "-"),
-                                                    ("outgassing_co2_rate", "CO2", "-")]))
-        for ylabel, series in volcanic:
-            some = any(np.any(h[name] > 0.0) for name, _, _ in series)
-            panels.append((ylabel, "log" if some else "linear", series))
+    # volcanism: melt extraction and the outgassing of its erupted part (the mixing-length scheme records only
+    # the extraction)
+    for ylabel, series in (("melt production [km^3/yr]", [("melt_production", "extracted melt", "-")]),
+                           ("outgassing [kg/yr]", [("outgassing_h2o_rate", "H2O", "-"),
+                                                   ("outgassing_co2_rate", "CO2", "-")])):
+        some = any(np.any(h[name] > 0.0) for name, _, _ in series if name in h)
+        panels.append((ylabel, "log" if some else "linear", series))
     if _has_atmosphere(result):
         some = any(np.any(h[k] > 0.0) for k in ("atmosphere_h2o", "atmosphere_co2"))
         panels.append(("atmosphere [kg]", "log" if some else "linear",
                        [("atmosphere_h2o", "H2O in the atmosphere", "-"),
                         ("atmosphere_co2", "CO2 in the atmosphere", "-")]))
         panels += _surface_panels(h)
-    # the series a scheme does not record are left out (the mixing-length scheme has no lid-base temperature)
+    # the series a run does not record are left out, and so are panels left empty (the mixing-length scheme has
+    # no lid-base temperature, crust or outgassing; a run without volcanism no volcanism series)
     panels = [(ylabel, scale, [item for item in series if item[0] in h]) for ylabel, scale, series in panels]
     panels = [panel for panel in panels if panel[2]]
     fig = new_figure((9.0, 2.1 * len(panels) + 1.4))
