@@ -152,3 +152,24 @@ def test_surface_melt_depths_on_a_hand_made_profile():
     assert math.isnan(d["melt_depth"][1]) and math.isnan(d["molten_depth"][1])
     s = surface_melt.summary(h)
     assert s["surface_above_solidus_at_end"] and s["max_surface_melt_depth_m"] == pytest.approx(4e6)
+
+
+def test_mixing_length_steam_lava_world_keeps_long_steps():
+    """A lava world of the reliability box (planet 20 of its seeded draw: 1.08 M_E, core fraction 0.41, stagnant
+    lid, a steam atmosphere of 2.9e20 kg of water over a magma ocean held at ~2000 K by an absorbed 11 kW/m^2,
+    the mixing-length scheme, 4.5 Gyr). Its net surface flux (~0.07 W/m^2) is the difference of two fluxes 1e5
+    times larger, so the Newton iteration's energy balance needs the airborne water to rounding and the slopes
+    of its nearly adiabatic magma ocean near their true values. Before: 139,837 steps and 478 s, held at ~30 kyr
+    by Newton failures; measured now 1,111 steps. Asserted: the run ends at 4.5 Gyr in fewer than 5,000 steps with
+    the magma ocean kept (this model's criterion for a lava world that finishes; issue #15) and the energy
+    budget closed to the summary's tolerance."""
+    cfg = {"convection": {"scheme": "mixing-length", "regime": "stagnant-lid"}, "run": {"end_time_gyr": 4.5},
+           "planet": {"mass_earth": 1.0811643683812628, "core_mass_fraction": 0.41058323454610335},
+           "surface": {"atmosphere": "steam", "water_inventory_kg": 2.8980150741365395e+20,
+                       "co2_inventory_kg": 2.7937075422064472e+19, "equilibrium_temperature_k": 666.5138538819617},
+           "initial": {"upper_temperature_k": 2178.257538170669}}
+    result = meltzone.evolve(cfg)
+    s = result.summary()
+    assert s["end_time_yr"] == pytest.approx(4.5e9, rel=1e-12)
+    assert result.history.n_steps < 5000
+    assert s["magma_ocean_at_end"] and s["energy_closure_ok"]

@@ -87,14 +87,16 @@ def atmosphere_mass(total, melt_mass, par, coeff, expo):
     """Atmospheric mass [kg] of a volatile in solubility equilibrium with the melt.
 
     Mass balance M_total = M_atm + X(P) M_melt, P = M_atm g / (4 pi R^2), X = coeff P^expo
-    (mass fraction); solved by bisection (monotone in M_atm)."""
+    (mass fraction); solved by bisection (monotone in M_atm) to rounding (1e-16 of M_total): over a lava world
+    the net surface flux is the difference of two fluxes ~1e5 times larger, one of them set by the airborne
+    water, and the former 1e-12 of M_total made the mixing-length Newton iteration cycle (tests/test_surface.py)."""
     if total <= 0.0:
         return 0.0
     if melt_mass <= 0.0:
         return total
     area = 4.0 * math.pi * par[P_RADIUS] ** 2
     args = (total, melt_mass, coeff, expo, par[P_G_SURF], area)
-    return bisect(_dissolved_residual, args, 0.0, total, 1e-12 * total, 0.0, 60)
+    return bisect(_dissolved_residual, args, 0.0, total, 1e-16 * total, 0.0, 64)
 
 
 @njit(leaf=True)
