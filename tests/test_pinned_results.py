@@ -43,6 +43,11 @@ CROSS_RTOL = 2e-2
 #: near the vent's solubility threshold: measured 4.2% apart between an AMD Zen 3 and an Intel Xeon host (the
 #: stagnant-lid grey planet), and +-3% between run.rtol 1e-7 and 1e-9 on one host; five times that spread
 CROSS_RTOL_KEYS = {"outgassed_h2o_kg": 0.15}
+#: ... or, where a planet outgasses a trace of its water, within this fraction of its water inventory: the
+#: stagnant-lid grey planet outgasses 3e-6 to 3e-5 of its 1e21 kg in one pulse at 0.79 Gyr whose size is
+#: ill-conditioned (measured 3.4e15 kg at run.rtol 1e-7, 2.8e16 and 2.7e16 kg at 1e-8 and 1e-9, 3.0e16 kg at 1e-7
+#: before the dissolved-water solve was made exact to rounding)
+CROSS_ATOL_OF_WATER = {"outgassed_h2o_kg": 1e-4}
 HOME = FIXTURE.get("_written_by", {}).get("environment") == environment()
 CASES = sorted(name for name in FIXTURE if not name.startswith("_"))
 
@@ -98,6 +103,10 @@ def test_summary_unchanged(case):
         if not HOME and key == "energy_closure":  # round-off itself: only its bound carries over
             assert got <= max(value, 1e-12) * 1e3, (name, key)
         elif isinstance(value, float) and isinstance(got, float):
-            assert got == pytest.approx(value, rel=rtol, abs=1e-300, nan_ok=True), (name, key)
+            atol = 1e-300
+            if not HOME and key in CROSS_ATOL_OF_WATER:
+                water = FIXTURE[name]["config"].get("surface", {}).get("water_inventory_kg", 0.0)
+                atol = max(atol, CROSS_ATOL_OF_WATER[key] * water)
+            assert got == pytest.approx(value, rel=rtol, abs=atol, nan_ok=True), (name, key)
         else:
             assert got == value, (name, key)
