@@ -70,13 +70,10 @@ END_SLACK = 1e-14
 #: cycled between the two for 30 iterations (measured on a steam-capped 1 M_E planet; over the 5 M_E benchmark
 #: the regularised slopes alone take fewer iterations). Numerical choice of this model
 DH_JAC_K = 1.0e-3
-#: once the updates have converged and only the step's energy balance is left to close, the slopes are taken at
-#: an excess of at most JAC_SHRINK times the last update (not below DH_JAC_MIN_K [K] times c_p), so that they
-#: approach the true slopes as the updates shrink. With the slopes fixed at DH_JAC_K a magma ocean whose faces
-#: carry an excess of ~1e-8 K (a lava world's interior near balance) converged linearly at ~0.9 per iteration,
-#: the balance did not close within M_MAX_NEWTON iterations and the steps were held at ~20 kyr (measured: a
-#: 1.08 M_E steam lava world, 139,837 steps to 4.5 Gyr; with this, 1,111). A step that closes its balance at the
-#: first convergence is unchanged to the last bit (the 5 M_E benchmark). Numerical choice of this model
+#: once the updates have converged and only the step's energy balance is left, the slopes are taken at an excess
+#: of at most JAC_SHRINK times the last update (at least DH_JAC_MIN_K c_p): at DH_JAC_K a lava world's magma ocean
+#: (faces ~1e-8 K super-adiabatic) converged linearly at ~0.9 per iteration and its steps were held at ~20 kyr
+#: (1.08 M_E steam lava world: 139,837 steps to 4.5 Gyr, now 1,111); steps that close at once are unchanged
 JAC_SHRINK = 10.0
 DH_JAC_MIN_K = 1.0e-12
 #: a step whose Newton updates took more iterations than SLOW_NEWTON to converge (those that close its energy
