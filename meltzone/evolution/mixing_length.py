@@ -74,7 +74,9 @@ Newton tolerance), adaptive steps with a local-error estimate (ERROR_FRACTION x 
 step), a per-cell bound of run.max_temperature_step_k on dT and MAX_MELT_STEP on dphi per step. Newton starts
 from the linear predictor, stops on its update or on the error left after it estimated from the contraction
 rate, takes the slopes of the convective flux at an excess of at least 1e-3 K while its updates are large (at
-the onset of convection the slope vanishes and a front would otherwise be found one cell per iteration), and
+the onset of convection the slope vanishes and a front would otherwise be found one cell per iteration) and,
+once the updates have converged and only the step's energy balance is left to close, at an excess of at most
+10 times the last update (a lava world's magma ocean carries ~1e-8 K), and
 treats a non-positive temperature iterate as a failed step; a step that needed more than SLOW_NEWTON iterations
 does not let the next one grow (the constants in :mod:`meltzone._core.implicit`). Measured for 5 M_E over 10 Gyr
 at 256 nodes: 4.0 Newton iterations per accepted step and 172 rejected steps, against 5.7 and 395 before (in a
