@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import os
 import shutil
 import statistics
 import subprocess
@@ -56,8 +57,6 @@ def main(argv=None):
     with tempfile.TemporaryDirectory(prefix="meltzone-versions-") as tmp:
         folder = Path(tmp)
         _export(args.base, folder)
-        import os
-
         os.environ["NUMBA_CACHE_DIR"] = str(folder / "numba-cache")
         sys.path.insert(0, str(folder))
         runs, agree = {}, {}

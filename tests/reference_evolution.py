@@ -439,16 +439,16 @@ def core_heat(tc, ph, core):
             - inner_core_release(inner_core(tc, core)[1], ph, core))
 
 
-def atmosphere_mass(total, melt_mass, coeff, expo, ph):
+def atmosphere_mass(total, melt_mass, coeff, expo, ph, xtol_rel=1e-13):
     """Atmospheric mass [kg] of a volatile in solubility equilibrium with the melt: M_atm + X(P) M_melt =
-    M_total with P = M_atm g / (4 pi R^2) and X = coeff P^expo."""
+    M_total with P = M_atm g / (4 pi R^2) and X = coeff P^expo; brentq to xtol_rel of M_total."""
     if total <= 0.0:
         return 0.0
     if melt_mass <= 0.0:
         return total
     area = 4.0 * math.pi * ph.radius ** 2
     f = lambda m: m + coeff * (m * ph.gravity_surface / area) ** expo * melt_mass - total  # noqa: E731
-    return brentq(f, 0.0, total, xtol=1e-13 * total, rtol=1e-14)
+    return brentq(f, 0.0, total, xtol=xtol_rel * total, rtol=max(4 * np.finfo(float).eps, min(1e-14, xtol_rel)))
 
 
 def emissivity(tu, phi_top, ph, mantle):

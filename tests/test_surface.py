@@ -64,18 +64,18 @@ def test_dissolved_water_solve_is_exact_to_rounding():
     airborne water sets one of them; solved to 1e-12 of the inventory (as before), the solve's own error made the
     mixing-length Newton iteration cycle and held the steps at ~30 kyr (1.08 M_E steam lava world, 4.5 Gyr:
     139,837 steps, 478 s)."""
-    from scipy.optimize import brentq
+    from types import SimpleNamespace
 
     from meltzone._core.radiation import atmosphere_mass
+    from reference_evolution import atmosphere_mass as reference
 
     par = np.zeros(k.N_PAR)
     par[k.P_RADIUS], par[k.P_G_SURF] = 6.371e6, 9.81
-    area = 4.0 * math.pi * par[k.P_RADIUS] ** 2
+    ph = SimpleNamespace(radius=par[k.P_RADIUS], gravity_surface=par[k.P_G_SURF])
     eps = np.finfo(float).eps
     for total, coeff, expo in ((2.9e20, 647e-6 / 1e5 ** 0.5, 0.5), (1e22, 6.8e-8, 0.7), (1e21, 4.4e-12, 1.0)):
         for melt in total * np.geomspace(1e-6, 10.0, 9):
-            f = lambda m: m + coeff * (m * par[k.P_G_SURF] / area) ** expo * melt - total  # noqa: E731
-            ref = brentq(f, 0.0, total, xtol=4 * eps * total, rtol=4 * eps)
+            ref = reference(total, melt, coeff, expo, ph, xtol_rel=4 * eps)
             assert atmosphere_mass(total, melt, par, coeff, expo) == pytest.approx(ref, rel=1e-13)
 
 
