@@ -73,7 +73,8 @@ DH_JAC_K = 1.0e-3
 #: once the updates have converged and only the step's energy balance is left, the slopes are taken at an excess
 #: of at most JAC_SHRINK times the last update (at least DH_JAC_MIN_K c_p): at DH_JAC_K a lava world's magma ocean
 #: (faces ~1e-8 K super-adiabatic) converged linearly at ~0.9 per iteration and its steps were held at ~20 kyr
-#: (1.08 M_E steam lava world: 139,837 steps to 4.5 Gyr, now 1,111); steps that close at once are unchanged
+#: (1.08 M_E steam lava world: 139,837 steps to 4.5 Gyr, now 1,111); steps that close at once are unchanged.
+#: Numerical choices of this model (JAC_SHRINK = 1 was tried: one steam world faster, another slower)
 JAC_SHRINK = 10.0
 DH_JAC_MIN_K = 1.0e-12
 #: a step whose Newton updates took more iterations than SLOW_NEWTON to converge (those that close its energy
