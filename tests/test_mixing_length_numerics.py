@@ -181,17 +181,18 @@ def test_steady_convection_follows_boundary_layer_scaling():
 
 def test_boundary_refinement_keeps_the_mantle():
     """The scheme's refinement at the boundaries (meltzone.evolution.mixing_length.refined_interior: the
-    experimental surface levels, off by default, and the CMB levels): four more nodes between the last two and
-    four between the first two mantle nodes, radii strictly increasing, the outer spacings halved four times, and
-    the cells' masses (midpoint rule on the enclosed mass) still summing to the mantle's mass to 1e-12 (common
-    practice: a refinement that adds nodes keeps the total)."""
+    experimental surface levels, off by default, the CMB levels and the split of the lowest cells): four more
+    nodes between the last two and four between the first two mantle nodes, radii strictly increasing, the outer
+    spacings halved four times, the split cells a quarter of their spacing, and the cells' masses (midpoint rule
+    on the enclosed mass) still summing to the mantle's mass to 1e-12 (common practice: a refinement that adds
+    nodes keeps the total)."""
     from meltzone.config import as_spec
     from meltzone.evolution.boundary_layer import _node_weights
     from meltzone.evolution.mixing_length import refined_interior
     from meltzone.interior import build_interior
 
     it = build_interior(as_spec({"planet": {"mass_earth": 1.0}, "interior": {"mantle_nodes": 64}}))
-    fine = refined_interior(it, 4, 4)
+    fine = refined_interior(it, 4, 4, 1)
     r, rf = it.r[it.mantle], fine.r[fine.mantle]
     assert rf.size == r.size + 8
     assert np.all(np.diff(rf) > 0.0)
@@ -201,7 +202,17 @@ def test_boundary_refinement_keeps_the_mantle():
     assert np.array_equal(fine.r[fine.core], it.r[it.core])
     w = _node_weights(rf, fine.m[fine.mantle], it.core_mass, it.mass)
     assert w.sum() == pytest.approx(it.mass - it.core_mass, rel=1e-12)
-    assert refined_interior(it, 0, 0) is it
+    assert refined_interior(it, 0, 0, 1) is it
+    # the split of the lowest cells: each cell whose top lies within 5% of the mantle's thickness above the CMB
+    # becomes four equal cells, the rest unchanged, the mass kept
+    split = refined_interior(it, 0, 0, 4, 0.05)
+    rs = split.r[split.mantle]
+    low = np.flatnonzero(r[1:] - r[0] <= 0.05 * (r[-1] - r[0]))
+    assert low.size >= 1 and rs.size == r.size + 3 * low.size
+    np.testing.assert_allclose(np.diff(rs)[:4 * low.size], np.repeat(np.diff(r)[low] / 4.0, 4), rtol=1e-9)
+    np.testing.assert_array_equal(rs[4 * low.size:], r[low.size:])
+    w = _node_weights(rs, split.m[split.mantle], it.core_mass, it.mass)
+    assert w.sum() == pytest.approx(it.mass - it.core_mass, rel=1e-12)
 
 
 def test_rigid_mixing_length_on_an_exponential_viscosity_profile():

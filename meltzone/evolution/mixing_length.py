@@ -109,22 +109,33 @@ mass-weighted bounds let the kernel depart from the plain reference by up to 1.9
 a 1 M_E stagnant lid within 100 kyr, and with the full bounds the 5 M_E, 10 Gyr run takes 10,644 accepted and
 5,233 rejected steps (5 times as many, 2.5 s). Still off.
 
-Lower boundary layer (on, ``BOTTOM_LEVELS`` = 4): BOTTOM_LEVELS nodes between the interior's first two mantle
-nodes, at heights d/16, d/8, d/4 and d/2 above the CMB of that bottom spacing d (which the interior already makes
-1/8 of its body's), so that the CMB half cell is 1/128 of the body's spacing (0.14 km at 256 nodes for 5 M_E) and
-the hot lower boundary layer, in which the basal melt layer freezes last, is resolved by the cells rather than by
-the CMB face's boundary-layer law. Measured, the end of the basal layer (defaults, 10 Gyr) at 128, 256, 512 and
-1024 nodes: 5 M_E 2.234, 2.257, 2.283, 2.309 Gyr; 10 M_E 2.194, 2.216, 2.240, 2.267 Gyr; 1 M_E 1.451, 1.464,
-1.470, 1.475 Gyr, i.e. 1.0-1.2% per doubling at 5 and 10 M_E (a drift that does not yet shrink with the cells) and
-0.4% at 1 M_E. The levels themselves are converged (5 M_E at 256 nodes with 4, 6, 8 levels: 2.257, 2.263, 2.264
-Gyr), so the drift comes from the body's spacing: the core is 2.4 and 2.9 K warmer at 2 Gyr per doubling (8877.0,
-8879.4, 8882.3 K) and the CMB heat flow at 1-2 Gyr ~1% lower (not diagnosed; not the face densities interpolated
-across the mantle's phase boundaries: taking the lower node's at those faces gave 2.258, 2.283, 2.310 Gyr);
-without the levels 2.04, 2.16, 2.23 Gyr (6.0%, 3.2%), 1.85, 2.10, 2.17 Gyr (13.4%, 3.5%) and 1.425, 1.448, 1.461
-Gyr (1.7%, 0.9%), first order in the bottom spacing. Two levels gave 2.0% and 1.5% (5 M_E). The cost: the 5 M_E,
-10 Gyr benchmark takes 2259 accepted and 506 rejected steps against 2163 and 323 (about 5% more wall time);
-counting the bottom cells' step bounds by their mass (as the top refinement's) took more steps (2344 and 631), so
-they count in full. Halving run.max_temperature_step_k moves the 5 M_E end by 0.1% (256 and 512 nodes).
+Lower boundary layer (on, ``BOTTOM_LEVELS`` = 4, ``LOWER_SPLIT`` = 4, ``LOWER_ZONE`` = 0.05): BOTTOM_LEVELS nodes
+between the interior's first two mantle nodes, at heights d/16, d/8, d/4 and d/2 above the CMB of that bottom
+spacing d (which the interior already makes 1/8 of its body's), so that the CMB half cell is 1/128 of the body's
+spacing and the hot lower boundary layer, in which the basal melt layer freezes last, is resolved by the cells
+rather than by the CMB face's boundary-layer law; then every cell whose top lies within the lowest 5% of the
+mantle's thickness is split into four equal cells (the CMB half cell is then 1/512 of the body's spacing, 35 m at
+256 nodes for 5 M_E). Why the split: near the CMB the grid is graded geometrically (spacings d/16 .. d, then the
+interior's 1/8, 1/4, 1/2 of its body's), so the spacing there grows in proportion to the height above the CMB,
+which is also the mixing length; doubling the nodes halves every spacing but keeps that ratio, and the end of the
+basal layer drifted by a constant 1.0-1.2% per doubling (5 M_E 2.234, 2.257, 2.283, 2.309 Gyr at 128-1024 nodes;
+10 M_E 2.194, 2.216, 2.240, 2.267 Gyr; 1 M_E 1.451, 1.464, 1.470, 1.475 Gyr), with the CMB heat flow 1% lower
+and the core 2-3 K warmer per doubling; neither the surface refinement (TOP_LEVELS = 4: 2.233, 2.257, 2.284 Gyr)
+nor the interior (the boundary-layer scheme on the same nodes: 7.605, 7.605, 7.585, 7.579 Gyr) was the cause,
+and uniform refinement converged only from ~1000 nodes (5 M_E 2.309 and 2.316 Gyr at 1024 and 1448). Splitting
+only the lowest 100 km of the 5 M_E mantle four ways moved the 256-node end to 2.339 Gyr. With the split (10 Gyr,
+mobile lid, defaults; measured): the basal layer ends at 1.4829, 1.4834, 1.4848 Gyr (1 M_E, 128-512 nodes),
+2.3373, 2.3397, 2.3416, 2.3439 Gyr (5 M_E, 128-1024), 2.3052, 2.3085, 2.3104 Gyr (10 M_E), 2.6189, 2.6204,
+2.6219 Gyr (15 M_E): 0.03-0.14% per doubling; the rheological transition (the CMB half cell leaving phi_c) 51.3,
+51.4, 51.4 Myr (1 M_E), 110.3, 112.3, 113.0, 113.2 Myr (5 M_E; before 85, 100, 106), 112.4, 115.8, 116.9 Myr
+(10 M_E), 177.1, 180.5, 181.6 Myr (15 M_E). A zone of 3% or 10% moves the 5 M_E end and transition by < 0.1%,
+but the basal layer's largest thickness, reached at its separation from the surface melt within the first kyr
+(a tangency), by up to 10% (2206, 2114, 1904 km at 3, 5, 10%; 2149, 2114, 2125, 2114 km at 128-1024 nodes with
+5%). The levels alone are converged (4, 6, 8 levels at 256 nodes before the split: 2.257, 2.263, 2.264 Gyr);
+without levels or split the end was first order in the bottom spacing (5 M_E 2.04, 2.16, 2.23 Gyr). The cost:
+351 cells at 256 nodes for 5 M_E instead of 294 (see README, Benchmarks). The bottom cells' step bounds count in
+full (counted by their mass, as the top refinement's, the steps rose). Halving run.max_temperature_step_k moved
+the 5 M_E end by 0.1% (256 and 512 nodes, before the split).
 
 History: regime 0 (magma ocean) while the top of the convecting mantle is above phi_c, else the configured solid
 regime. ``top_melt_fraction`` (the regime's melt fraction) is the melt fraction at the surface of the two-phase
@@ -227,36 +238,53 @@ SWITCH = "rheological_switch"
 TOP_LEVELS = 0
 #: extra halvings of the bottom node spacing (module docstring, "Lower boundary layer"; this model's choice)
 BOTTOM_LEVELS = 4
+#: every cell of the lowest LOWER_ZONE of the mantle's thickness (after the levels) is split into LOWER_SPLIT
+#: equal cells (module docstring, "Lower boundary layer"; this model's choice; measured: zones of 3, 5 and 10%
+#: give the same basal-layer end and rheological transition within 0.1%)
+LOWER_SPLIT = 4
+LOWER_ZONE = 0.05
 
 
-def refined_interior(interior, levels=TOP_LEVELS, bottom=BOTTOM_LEVELS):
+def refined_interior(interior, levels=TOP_LEVELS, bottom=BOTTOM_LEVELS, split=LOWER_SPLIT, zone=LOWER_ZONE):
     """The interior with ``levels`` more mantle nodes between the last two, at depths d/2 .. d/2^levels of their
     spacing d (the interior's top spacing, 1/8 of its body's), and ``bottom`` more between the first two, at
-    heights d/2^bottom .. d/2 above the CMB of their spacing d (also 1/8 of the body's); every node array
-    interpolated linearly in radius (phase: the outer node's)."""
+    heights d/2^bottom .. d/2 above the CMB of their spacing d (also 1/8 of the body's); then every mantle cell
+    whose top lies within ``zone`` of the mantle's thickness above the CMB split into ``split`` equal cells. Every
+    node array is interpolated linearly in radius (phase: the outer node's for the levels, the lower node's for
+    the split)."""
     import dataclasses
 
-    if levels <= 0 and bottom <= 0:
+    if levels <= 0 and bottom <= 0 and (split <= 1 or zone <= 0.0):
         return interior
     r = interior.r
     c = interior.cmb_index
     top_r = r[-1] - (r[-1] - r[-2]) * 0.5 ** np.arange(1, levels + 1)
     bottom_r = r[c] + (r[c + 1] - r[c]) * 0.5 ** np.arange(bottom, 0, -1)
+    names = ("r", "m", "P", "rho", "g", "T_ref", "adiabat")
     out = {}
-    for name in ("r", "m", "P", "rho", "g", "T_ref", "adiabat"):
+    for name in names:
         a = getattr(interior, name)
         out[name] = np.concatenate([a[:c + 1], np.interp(bottom_r, r[c:c + 2], a[c:c + 2]), a[c + 1:-1],
                                     np.interp(top_r, r[-2:], a[-2:]), a[-1:]])
     phase = interior.phase
     out["phase"] = np.concatenate([phase[:c + 1], np.repeat(phase[c], bottom), phase[c + 1:-1],
                                    np.repeat(phase[-1], levels), phase[-1:]])
+    rm = out["r"][c:]
+    low = np.flatnonzero(rm[1:] - rm[0] <= zone * (rm[-1] - rm[0])) if split > 1 else np.zeros(0, dtype=int)
+    if low.size:
+        added = (rm[low, None] + np.diff(rm)[low, None] * np.arange(1, split) / split).ravel()
+        radii = np.sort(np.concatenate([out["r"], added]))
+        r = out["r"]
+        out["phase"] = out["phase"][np.searchsorted(r, radii, side="right") - 1]
+        for name in names:
+            out[name] = np.interp(radii, r, out[name])
     return dataclasses.replace(interior, **out)
 
 
 def refined_curves(curves, interior, fine) -> dict:
     """The melting curves (:func:`meltzone.melting.node_curves` on the interior's mantle nodes) on the refined
-    nodes: linear in radius between the interior's nodes (the added nodes lie within 1/8 of a node spacing of the
-    surface or of the CMB, where the curves are smooth in pressure)."""
+    nodes: linear in radius between the interior's nodes (the added nodes lie between two of them, within 1/8
+    of a node spacing of the surface or of the CMB, or in the split lowest cells)."""
     r = interior.r[interior.mantle]
     rf = fine.r[fine.mantle]
     out = dict(curves)
@@ -392,11 +420,11 @@ def intervals_of(phis, grid) -> dict:
 
 def run(spec, interior, curves, progress=None, *, history_rows=2048) -> History:
     """Evolve one planet with the mixing-length scheme and return its :class:`History`."""
-    n = interior.r.size - interior.cmb_index + TOP_LEVELS + BOTTOM_LEVELS  # the cells with the refinement
+    fine = refined_interior(interior)
+    n = fine.r.size - fine.cmb_index  # the cells with the refinement
     if n > MAX_CELLS:
         raise ConfigError(f"interior.mantle_nodes = {spec.interior.mantle_nodes} gives {n} mantle cells, more than "
                           f"the mixing-length scheme takes ({MAX_CELLS}); lower interior.mantle_nodes")
-    fine = refined_interior(interior)
     inputs = build_inputs(spec, fine, refined_curves(curves, interior, fine))
     inputs.par[k.P_BMO] = 0.0  # no reservoir here: the basal layer is whatever the resolved profile gives
     inputs.par[k.P_BLEND] = max(inputs.par[k.P_BLEND], MIN_BLEND)
