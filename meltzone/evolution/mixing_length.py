@@ -119,21 +119,21 @@ mantle's thickness is split into four equal cells (the CMB half cell is then 1/5
 interior's 1/8, 1/4, 1/2 of its body's), so the spacing there grows in proportion to the height above the CMB,
 which is also the mixing length; doubling the nodes halves every spacing but keeps that ratio, and the end of the
 basal layer drifted by a constant 1.0-1.2% per doubling (5 M_E 2.234, 2.257, 2.283, 2.309 Gyr at 128-1024 nodes;
-10 M_E 2.194, 2.216, 2.240, 2.267 Gyr; 1 M_E 1.451, 1.464, 1.470, 1.475 Gyr), with the CMB heat flow 1% lower
-and the core 2-3 K warmer per doubling; neither the surface refinement (TOP_LEVELS = 4: 2.233, 2.257, 2.284 Gyr)
-nor the interior (the boundary-layer scheme on the same nodes: 7.605, 7.605, 7.585, 7.579 Gyr) was the cause,
-and uniform refinement converged only from ~1000 nodes (5 M_E 2.309 and 2.316 Gyr at 1024 and 1448). Splitting
-only the lowest 100 km of the 5 M_E mantle four ways moved the 256-node end to 2.339 Gyr. With the split (10 Gyr,
+10 M_E 2.194, 2.216, 2.240, 2.267 Gyr; 1 M_E 1.451, 1.464, 1.470, 1.475 Gyr), with the CMB heat flow 1% lower and
+the core 2-3 K warmer per doubling; neither the surface refinement (TOP_LEVELS = 4: 2.233, 2.257, 2.284 Gyr) nor
+the interior (the boundary-layer scheme on the same nodes: 7.605, 7.605, 7.585, 7.579 Gyr) was the cause, and
+uniform refinement converged only from ~1000 nodes (5 M_E 2.309 and 2.316 Gyr at 1024 and 1448). Splitting only
+the lowest 100 km of the 5 M_E mantle four ways moved the 256-node end to 2.339 Gyr. With the split (10 Gyr,
 mobile lid, defaults; measured): the basal layer ends at 1.4829, 1.4834, 1.4848 Gyr (1 M_E, 128-512 nodes),
-2.3373, 2.3397, 2.3416, 2.3439 Gyr (5 M_E, 128-1024), 2.3052, 2.3085, 2.3104 Gyr (10 M_E), 2.6189, 2.6204,
-2.6219 Gyr (15 M_E): 0.03-0.14% per doubling; the rheological transition (the CMB half cell leaving phi_c) 51.3,
-51.4, 51.4 Myr (1 M_E), 110.3, 112.3, 113.0, 113.2 Myr (5 M_E; before 85, 100, 106), 112.4, 115.8, 116.9 Myr
-(10 M_E), 177.1, 180.5, 181.6 Myr (15 M_E). A zone of 3% or 10% moves the 5 M_E end and transition by < 0.1%,
-but the basal layer's largest thickness, reached at its separation from the surface melt within the first kyr
-(a tangency), by up to 10% (2206, 2114, 1904 km at 3, 5, 10%; 2149, 2114, 2125, 2114 km at 128-1024 nodes with
-5%). The levels alone are converged (4, 6, 8 levels at 256 nodes before the split: 2.257, 2.263, 2.264 Gyr);
-without levels or split the end was first order in the bottom spacing (5 M_E 2.04, 2.16, 2.23 Gyr). The cost:
-351 cells at 256 nodes for 5 M_E instead of 294 (see README, Benchmarks). The bottom cells' step bounds count in
+2.3373, 2.3397, 2.3416, 2.3439 Gyr (5 M_E, 128-1024), 2.3052, 2.3085, 2.3104 Gyr (10 M_E), 2.6189, 2.6204, 2.6219
+Gyr (15 M_E): 0.03-0.14% per doubling; the rheological transition (the CMB half cell leaving phi_c) 51.3, 51.4,
+51.4 Myr (1 M_E), 110.3, 112.3, 113.0, 113.2 Myr (5 M_E; before 85, 100, 106), 112.4, 115.8, 116.9 Myr (10 M_E),
+177.1, 180.5, 181.6 Myr (15 M_E). A zone of 3% or 10% moves the 5 M_E end and transition by < 0.1%, but the basal
+layer's largest thickness, reached at its separation from the surface melt within the first kyr (a tangency), by
+up to 10% (2206, 2114, 1904 km at 3, 5, 10%; 2149, 2114, 2125, 2114 km at 128-1024 nodes with 5%). The levels
+alone are converged (4, 6, 8 levels at 256 nodes before the split: 2.257, 2.263, 2.264 Gyr); without levels or
+split the end was first order in the bottom spacing (5 M_E 2.04, 2.16, 2.23 Gyr). The cost: 351 cells at 256 nodes
+for 5 M_E instead of 294, ~20% more CPU time (measured in one process). The bottom cells' step bounds count in
 full (counted by their mass, as the top refinement's, the steps rose). Halving run.max_temperature_step_k moved
 the 5 M_E end by 0.1% (256 and 512 nodes, before the split).
 
