@@ -141,32 +141,24 @@ def basal_runs():
 
 
 def test_grid_convergence_of_the_basal_layer(basal_runs):
-    """Doubling the cells (256 -> 512 nodes, 1 M_E, 2 Gyr): the basal layer freezes (last melt) within 2% (issue
-    #12's criterion for event times) and reaches its largest thickness within 5%; the rheological transition (the
-    last cell above phi_c: the CMB half cell, a film the core keeps above phi_c) within 2%. Measured with the split
-    of the lowest cells: last melt 1.483 and 1.485 Gyr (0.1%), largest thickness 1230 and 1226 km (0.3%),
-    rheological transition 51.43 and 51.44 Myr (0.02%); before the split 0.4%, 0.4%, 0.7%; before the CMB
-    levels 0.8%, 1.8%, and the last cell above phi_c was a single cell on a plateau under the surface (5.7 and 22
-    Myr); before the high-pressure activation volume 8.8%, 10.3%. The largest thickness is reached at the
-    separation, where T - T_sol touches zero between the layers (next test); the edges at fixed times converge
+    """Doubling the cells (256 -> 512 nodes, 1 M_E, 2 Gyr): the basal layer freezes (last melt) and separates from
+    the surface magma ocean within 2% (issue #12's criterion for event times) and reaches its largest thickness
+    within 5%; the rheological transition (the last cell above phi_c: the CMB half cell, a film the core keeps
+    above phi_c) within 2%. Measured with the split of the lowest cells: last melt 1.482 and 1.483 Gyr (0.04%),
+    separation 20.09 and 20.13 kyr (0.2%; 17.0, 20.1, 20.1, 20.5, 20.8 kyr at 128-1448 nodes), largest thickness
+    1230 and 1279 km (4.0%), rheological transition 51.36 and 51.37 Myr (0.02%); before the split 0.4%, 1.4%,
+    0.4%, 0.7%; before the CMB levels 0.8%, 0.7%, 1.8%, and the last cell above phi_c was a single cell on a
+    plateau under the surface (5.7 and 22 Myr); before the high-pressure activation volume 2.4%, 8.8%, 10.3%. The
+    largest thickness is reached at the separation, where T - T_sol touches zero between the layers: a tangency,
+    ill-conditioned in the refinement's pattern rather than in the node count (at 256 and 512 nodes 29.5 and 29.1
+    kyr without the split, 8.2 and 10.1 kyr with an eightfold split, while those grids' profiles agree within 2 K
+    at 50 km above the CMB and 1 K in the core over the first 30 kyr); the edges at fixed times converge
     (test_grid_convergence_of_the_basal_layer_edge)."""
-    (_, d1, l1, r1), (_, d2, l2, r2) = basal_runs
+    (s1, d1, l1, r1), (s2, d2, l2, r2) = basal_runs
+    assert s2 == pytest.approx(s1, rel=0.02)
     assert d2 == pytest.approx(d1, rel=0.05)
     assert l2 == pytest.approx(l1, rel=0.02)
     assert r2 == pytest.approx(r1, rel=0.02)
-
-
-@pytest.mark.xfail(strict=True, reason="measured 20.1 and 21.3 kyr at 256 and 512 nodes (6.2%); 16.7, 20.1, 21.3, "
-                   "22.1, 21.2 kyr at 128, 256, 512, 1024, 1448 nodes. The separation is a tangency (T - T_sol "
-                   "touching zero between the layers) and ill-conditioned: without the split of the lowest cells "
-                   "31.7, 29.5, 29.1, 30.7, 31.3 kyr at 128-1448 nodes, with an eightfold split 8.2 and 10.2 kyr at "
-                   "256 and 512, while the three grids' profiles at 256 nodes agree within 2 K at 50 km above the "
-                   "CMB and 1 K in the core over the first 30 kyr (measured)")
-def test_grid_convergence_of_the_basal_layer_separation(basal_runs):
-    """The basal layer separates from the surface magma ocean at a time that moves by <= 2% from 256 to 512 nodes
-    (issue #12's criterion for event times; 1 M_E, 2 Gyr; strict xfail: the measured state is in the reason)."""
-    (s1, *_), (s2, *_) = basal_runs
-    assert s2 == pytest.approx(s1, rel=0.02)
 
 
 @pytest.fixture(scope="module")
@@ -179,8 +171,8 @@ def super_earth_basal_ends():
 def test_grid_convergence_of_the_super_earth_basal_layer_end(super_earth_basal_ends):
     """Issue #12's criterion "doubling the cells moves event times by <= 2%" on the end of the 5 and 10 M_E basal
     layers, 256 -> 512 nodes. Measured with the CMB levels and the split of the lowest cells
-    (meltzone.evolution.mixing_length, "Lower boundary layer"): 5 M_E 2.3397 and 2.3416 Gyr (0.08%), 10 M_E
-    2.3085 and 2.3104 Gyr (0.08%); with the levels alone 2.257 and 2.283 Gyr (1.2%), 2.216 and 2.240 Gyr (1.1%), a
+    (meltzone.evolution.mixing_length, "Lower boundary layer"): 5 M_E 2.3374 and 2.3386 Gyr (0.05%), 10 M_E
+    2.3049 and 2.3061 Gyr (0.06%); with the levels alone 2.257 and 2.283 Gyr (1.2%), 2.216 and 2.240 Gyr (1.1%), a
     drift that did not shrink with the cells; without either 3.2% and 3.5%, and with V_inf = 0 the 5 M_E layer
     was a film in the bottom cell and its end moved 4x (33 and 132 Myr)."""
     e = super_earth_basal_ends
@@ -191,10 +183,10 @@ def test_grid_convergence_of_the_super_earth_basal_layer_end(super_earth_basal_e
 def test_super_earth_basal_layers_outlive_earths():
     """Lherm, Nakajima & Blackman 2026 (JGR Planets 131, abstract checked): "more massive planets host larger BMOs
     with prolonged ... silicate dynamos". The resolved profile's basal layer (defaults, 128 nodes, 10 Gyr) lives
-    longer and grows thicker at 5, 10 and 15 M_E than at 1 M_E (measured 1.48, 2.34, 2.31, 2.62 Gyr and 1282,
-    2149, 2070, 2077 km; with the CMB levels alone 1.45, 2.23, 2.19, 2.52 Gyr; without them 1.42, 2.04, 1.85, 2.43
+    longer and grows thicker at 5, 10 and 15 M_E than at 1 M_E (measured 1.48, 2.34, 2.30, 2.63 Gyr and 1257,
+    2148, 2068, 2061 km; with the CMB levels alone 1.45, 2.23, 2.19, 2.52 Gyr; without them 1.42, 2.04, 1.85, 2.43
     Gyr; with V_inf = 0: 0.98 Gyr, 5.4 Myr and none at 10-15 M_E). The order among 5-15 M_E is not asserted (10
-    M_E ends 1.3% before 5 M_E at 128 nodes)."""
+    M_E ends 1.5% before 5 M_E at 128 nodes)."""
     ends = {m: evolve(spec_of(m, 128, 10.0)).summary()["basal_layer"] for m in (1.0, 5.0, 10.0, 15.0)}
     for m in (5.0, 10.0, 15.0):
         assert ends[m]["end_yr"] > ends[1.0]["end_yr"], m
@@ -213,9 +205,12 @@ def basal_top(history, t):
 def test_grid_convergence_of_the_basal_layer_edge():
     """Issue #12's criterion "doubling the cells moves layer edges by less than one old cell" on the basal layer's
     top at 40 and 60 kyr (it separated at ~20 kyr), 0.3 and 1 Myr (when its top follows the core's heat), 1 M_E,
-    256 -> 512 nodes. Measured with the split of the lowest cells: 9.1, 4.8, 1.4 and 0.8 km against a median cell
-    of 11.4 km (thickness 888, 731, 329, 178 km); before the split 2.3, 0.3, 0.5 and 2.6 km (thickness 823, 630,
-    240, 111 km). With the CMB boundary layer's viscosity at the lowest cell's melt fraction the edge at 1 Myr
+    256 -> 512 nodes. Measured with the split of the lowest cells: 9.3, 4.5, 1.5 and 0.8 km against a median cell
+    of 11.4 km (thickness 888, 731, 328, 178 km); in an earlier version before the split 2.3, 0.3, 0.5 and 2.6 km
+    (thickness 823, 630, 240, 111 km). Not covered by doubling the nodes: the refinement's pattern near the CMB. At
+    256 nodes with no, a fourfold and an eightfold split the thickness is 959, 888, 678 km at 40 kyr, 767, 731, 594
+    km at 60 kyr, 336, 329, 304 km at 0.3 Myr and 174, 178, 172 km at 1 Myr: the early edges follow the
+    separation (a tangency, see test_grid_convergence_of_the_basal_layer), the later ones agree within 10% and 4%. With the CMB boundary layer's viscosity at the lowest cell's melt fraction the edge at 1 Myr
     moved by 51 km (93, 145, 170 km at 256, 512, 1024 nodes)."""
     runs = [evolve(spec_of(1.0, n, 1.1e-3)).history for n in (256, 512)]
     cell = float(np.median(np.diff(runs[0].grid.radius)))
@@ -230,17 +225,24 @@ def mass_above_end(history, share):
     return history.time[int(np.argmax(above < share))]
 
 
-@pytest.mark.parametrize("mass, share, nodes", [(5.0, 0.02, (256, 512)), (1.0, 0.10, (128, 256))])
+#: the summary's 1% threshold at 5 M_E, on a plateau (strict expected failure; the measured state in the reason)
+PLATEAU = pytest.mark.xfail(strict=True, raises=AssertionError, reason="measured 3.45 and 4.07 kyr at 512 and 1024 "
+                            "nodes (4.88, 4.89 kyr at 128, 256): from 2 to 8 kyr the mass above phi_c is the basal "
+                            "layer's, 0.7% falling to 0.3%, plus a shallow layer's under the surface, 0.4-0.7% in "
+                            "steps as single cells pass phi_c, so 1% falls on that plateau (before the split of the "
+                            "lowest cells 1.876 and 1.881 kyr, a first brief dip below 1%)")
+
+
+@pytest.mark.parametrize("mass, share, nodes", [(5.0, 0.02, (256, 512)), (1.0, 0.10, (128, 256)),
+                                                pytest.param(5.0, 0.01, (512, 1024), marks=PLATEAU)])
 def test_grid_convergence_of_the_mass_based_magma_ocean_end(mass, share, nodes):
     """Doubling the cells moves the time at which less than ``share`` of the mantle mass is above phi_c by at
     most 2% (the required grid convergence of event times; this model's choice). Measured at 128, 256, 512 and
-    1024 nodes with the split of the lowest cells: 5 M_E, 2%: 1.744, 1.778, 1.772, 1.784 kyr; 5%: 1.630, 1.635,
-    1.651, 1.654 kyr. 1 M_E, 10%: 0.738, 0.727, 0.725, 0.725, 0.727 kyr at 64-1024 nodes. Not
-    asserted: the 1% threshold of the summary's magma-ocean end at 5 and at 1 M_E. At 5 M_E the mass above phi_c
-    falls from 40% to ~1.3% within 2 kyr and then stays at 0.8-1.3% until ~8 kyr as single cells pass phi_c, so
-    1% falls on that plateau: 4.91, 4.89, 3.41, 4.13 kyr at 128-1024 nodes (before the split 1.84, 1.88, 1.88 kyr
-    at 256-1024, a first brief dip below 1%). At 1 M_E (1.4 to 3.0 Myr) a shallow mushy layer of ~1-1.5% of the
-    mantle mass stays a few hundredths above phi_c for Myr (see the scheme's docstring)."""
+    1024 nodes with the split of the lowest cells: 5 M_E, 2%: 1.744, 1.778, 1.771, 1.783 kyr; 5%: 1.630, 1.635,
+    1.649, 1.652 kyr. 1 M_E, 10%: 0.738, 0.726, 0.725, 0.726, 0.728 kyr at 64-1024 nodes. The 1% threshold of the
+    summary's magma-ocean end: at 5 M_E a strict expected failure (the plateau in its reason); at 1 M_E not
+    asserted (1.4 to 3.0 Myr): a shallow mushy layer of ~1-1.5% of the mantle mass stays a few hundredths above
+    phi_c for Myr (see the scheme's docstring)."""
     ends = [mass_above_end(evolve(spec_of(mass, n, 1e-5)).history, share) for n in nodes]
     assert ends[1] == pytest.approx(ends[0], rel=0.02)
 
@@ -273,16 +275,19 @@ def test_grid_convergence_of_the_rheological_front():
         assert np.all(np.abs(fine - coarse) < cell)
 
 
-@pytest.mark.parametrize("mass, nodes", [(5.0, 256), (1.0, 128), (1.0, 256)])
+@pytest.mark.parametrize("mass, nodes", [(5.0, 256), (1.0, 128), (1.0, 256), pytest.param(
+    1.0, 64, marks=pytest.mark.xfail(strict=True, raises=AssertionError, reason="measured: three crossings, 5.54, "
+                                     "6.18, 7.85 Myr, the regime's melt fraction within 0.4% of phi_c for ~2 Myr "
+                                     "(0.394-0.405) at this coarse grid, with the split of the lowest cells"))])
 def test_surface_magma_ocean_ends_once(mass, nodes):
     """A cooling planet without re-melting from outside: the regime series leaves the magma ocean once and does
     not return within 50 Myr (common practice: the top of the convecting mantle falls through phi_c once). With the
     face viscosity at the cells' mean melt fraction the top cell froze and re-melted 83, 11 and 3 times (5 M_E at
     256, 1 M_E at 64 and 128 nodes); the end lies between 2 and 50 Myr (with the top cell's own melt fraction as
-    the regime's, 2.7, 0.9 and 1.2 Myr). At 64 nodes (1 M_E) the regime's melt fraction, within 0.001 of phi_c
-    for ~2 Myr, now crosses it three times (5.56, 6.17, 7.78 Myr), jumping by ~0.007 where the top convecting cell
-    changes; at 128 nodes once (8.56 Myr), so 64 nodes is no longer checked (measured with the split of the
-    lowest cells)."""
+    the regime's, 2.7, 0.9 and 1.2 Myr). Measured with the split of the lowest cells: once at 13.9, 8.7 and 5.6
+    Myr; at 64 nodes (1 M_E) three times (strict expected failure). Making the regime's melt fraction continuous
+    where the top convecting cell changes (weighted between two cells' isentropes by the convective share, as the
+    lid's base is) was tried: 64 nodes still three times, and 512 and 1024 nodes then three and seven times."""
     h = evolve(spec_of(mass, nodes, 0.05)).history
     regime = h.series["regime"]
     flips = np.flatnonzero(np.diff(regime) != 0)
@@ -298,15 +303,16 @@ def surface_end_yr(mass, nodes, end_gyr):
 def test_grid_convergence_of_the_surface_magma_ocean_end():
     """Issue #12's criterion "doubling the cells moves event times by <= 2%" on the end of the surface magma ocean
     (the regime's melt fraction, the isentrope of the top convecting cell at the surface, leaving phi_c), 1 M_E,
-    512 -> 1024 nodes: measured 4.795 and 4.751 Myr (0.9%; 5.49, 8.50, 5.43, 4.79 Myr at 64-512 nodes, so not
+    512 -> 1024 nodes: measured 4.794 and 4.750 Myr (0.9%; 5.51, 8.53, 5.44, 4.79 Myr at 64-512 nodes, so not
     within 2% below 512 nodes). With the top cell's own melt fraction it was 0.88, 0.34, 0.16 Myr at 256, 512,
     1024 nodes (halving with the cell)."""
     coarse, fine = (surface_end_yr(1.0, n, 0.0055) for n in (512, 1024))
     assert fine == pytest.approx(coarse, rel=0.02)
 
 
-@pytest.mark.xfail(strict=True, reason="measured 13.9 and 13.3 Myr (3.9%) at 256 and 512 nodes with the split of the "
-                                       "lowest cells (16.6 and 14.8 Myr before it; 16.1 and 14.8 Myr "
+@pytest.mark.xfail(strict=True, reason="measured 13.9 and 13.4 Myr (3.5%) at 256 and 512 nodes with the split of the "
+                                       "lowest cells, 14.9 and 7.0 Myr at 256 nodes with zones of 3% and 10% instead of 5% (16.6 and 14.8 Myr "
+                                       "before it; 16.1 and 14.8 Myr "
                                        "without the CMB levels; 20.6 and 16.6 "
                                        "Myr before the high-pressure activation volume; 22.3, 17.0 and 7.8 Myr at "
                                        "256, 512 and 1024 before the liquid-iron core profile): "
@@ -377,7 +383,7 @@ def test_stagnant_lid_loses_heat_more_slowly_than_a_mobile_lid():
 def test_grid_convergence_of_the_stagnant_lid_heat_flow():
     """Issue #12's grid convergence in the solid stage: a 5 M_E stagnant-lid planet at 4.5 Gyr, 256 -> 512 nodes,
     its surface heat flow (the heat pipe included) within 2% and its core temperature within 1% (this model's
-    tolerances; measured 178.3 and 178.1 TW, 0.1%; 8534 and 8534 K, with the split of the lowest cells; 178.7 TW
+    tolerances; measured 178.2 and 178.0 TW, 0.1%; 8533 and 8533 K, with the split of the lowest cells; 178.7 TW
     and 8519 K without it at 256 nodes). With the rigid mixing length also bounding
     the faces nearer the core, the hot lower boundary layer, whose viscosity rises upward too, grew conductively
     to ~500 km and overturned at a time set by the grid (2.3 Gyr at 512 nodes, 4.3 Gyr at 256): 294 against

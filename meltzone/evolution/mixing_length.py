@@ -55,7 +55,8 @@ Physics (kernels in :mod:`meltzone._core.mlt_physics`, integrator in :mod:`meltz
   convecting layer with an Arrhenius viscosity carried 8-14 times the stagnant-lid boundary-layer scaling, with
   the bound 1.8-2.1 times (tests/test_mixing_length_numerics.py); 1 M_E at 4.5 Gyr lost 33.5 TW through a
   stagnant lid against 31.0 TW through a mobile one (64 nodes), then 26.3 TW (26.3 at 256 and 512 nodes; 25.1
-  TW against 29.7 mobile with the high-pressure activation volume);
+  TW against 29.7 mobile with the high-pressure activation volume, against 31.2 with the split of the lowest
+  cells);
 * heat pipe (stagnant lid, volcanism.enabled = "on", under a solid top cell): melt above 1% in a cell no deeper
   than volcanism.max_extraction_pressure_gpa leaves at the rate m (phi - 0.01) w / 10 kyr (w falls from 1 to 0
   across the rheological transition: a magma ocean convects instead) and erupts, each kg taking L + c_p (T - T_s)
@@ -111,31 +112,35 @@ a 1 M_E stagnant lid within 100 kyr, and with the full bounds the 5 M_E, 10 Gyr 
 
 Lower boundary layer (on, ``BOTTOM_LEVELS`` = 4, ``LOWER_SPLIT`` = 4, ``LOWER_ZONE`` = 0.05): BOTTOM_LEVELS nodes
 between the interior's first two mantle nodes, at heights d/16, d/8, d/4 and d/2 above the CMB of that bottom
-spacing d (which the interior already makes 1/8 of its body's), so that the CMB half cell is 1/128 of the body's
-spacing and the hot lower boundary layer, in which the basal melt layer freezes last, is resolved by the cells
-rather than by the CMB face's boundary-layer law; then every cell whose top lies within the lowest 5% of the
-mantle's thickness is split into four equal cells (the CMB half cell is then 1/512 of the body's spacing, 35 m at
-256 nodes for 5 M_E). Why the split: near the CMB the grid is graded geometrically (spacings d/16 .. d, then the
-interior's 1/8, 1/4, 1/2 of its body's), so the spacing there grows in proportion to the height above the CMB,
-which is also the mixing length; doubling the nodes halves every spacing but keeps that ratio, and the end of the
-basal layer drifted by a constant 1.0-1.2% per doubling (5 M_E 2.234, 2.257, 2.283, 2.309 Gyr at 128-1024 nodes;
-10 M_E 2.194, 2.216, 2.240, 2.267 Gyr; 1 M_E 1.451, 1.464, 1.470, 1.475 Gyr), with the CMB heat flow 1% lower and
-the core 2-3 K warmer per doubling; neither the surface refinement (TOP_LEVELS = 4: 2.233, 2.257, 2.284 Gyr) nor
-the interior (the boundary-layer scheme on the same nodes: 7.605, 7.605, 7.585, 7.579 Gyr) was the cause, and
-uniform refinement converged only from ~1000 nodes (5 M_E 2.309 and 2.316 Gyr at 1024 and 1448). Splitting only
-the lowest 100 km of the 5 M_E mantle four ways moved the 256-node end to 2.339 Gyr. With the split (10 Gyr,
-mobile lid, defaults; measured): the basal layer ends at 1.4829, 1.4834, 1.4848 Gyr (1 M_E, 128-512 nodes),
-2.3373, 2.3397, 2.3416, 2.3439 Gyr (5 M_E, 128-1024), 2.3052, 2.3085, 2.3104 Gyr (10 M_E), 2.6189, 2.6204, 2.6219
-Gyr (15 M_E): 0.03-0.14% per doubling; the rheological transition (the CMB half cell leaving phi_c) 51.3, 51.4,
-51.4 Myr (1 M_E), 110.3, 112.3, 113.0, 113.2 Myr (5 M_E; before 85, 100, 106), 112.4, 115.8, 116.9 Myr (10 M_E),
-177.1, 180.5, 181.6 Myr (15 M_E). A zone of 3% or 10% moves the 5 M_E end and transition by < 0.1%, but the basal
-layer's largest thickness, reached at its separation from the surface melt within the first kyr (a tangency), by
-up to 10% (2206, 2114, 1904 km at 3, 5, 10%; 2149, 2114, 2125, 2114 km at 128-1024 nodes with 5%). The levels
-alone are converged (4, 6, 8 levels at 256 nodes before the split: 2.257, 2.263, 2.264 Gyr); without levels or
-split the end was first order in the bottom spacing (5 M_E 2.04, 2.16, 2.23 Gyr). The cost: 351 cells at 256 nodes
-for 5 M_E instead of 294, ~20% more CPU time (measured in one process). The bottom cells' step bounds count in
-full (counted by their mass, as the top refinement's, the steps rose). Halving run.max_temperature_step_k moved
-the 5 M_E end by 0.1% (256 and 512 nodes, before the split).
+spacing d (which the interior already makes 1/8 of its body's), so that the first spacing above the CMB is 1/128
+of the body's and the hot lower boundary layer, in which the basal melt layer freezes last, is resolved by the
+cells rather than by the CMB face's boundary-layer law; then every mantle cell whose top lies within the lowest 5%
+of the mantle's thickness is split into four equal cells (the first spacing is then 1/512 of the body's, 35 m at
+256 nodes for 5 M_E, and the CMB half cell half of that; the core's nodes are left alone). Why the split: near the
+CMB the grid is graded geometrically (spacings d/16 .. d, then the interior's 1/8, 1/4, 1/2 of its body's), so the
+spacing there grows in proportion to the height above the CMB, which is also the mixing length; doubling the nodes
+halves every spacing but keeps that ratio, and the end of the basal layer drifted by a constant 1.0-1.2% per
+doubling (5 M_E 2.234, 2.257, 2.283, 2.309 Gyr at 128-1024 nodes; 10 M_E 2.194, 2.216, 2.240, 2.267 Gyr; 1 M_E
+1.451, 1.464, 1.470, 1.475 Gyr), with the CMB heat flow 1% lower and the core 2-3 K warmer per doubling; the
+surface refinement did not change it (TOP_LEVELS = 4: 2.233, 2.257, 2.284 Gyr), and uniform refinement moved it by
+0.3% from 1024 to 1448 nodes (2.309 and 2.316 Gyr). The split keeps the spacing-to-height ratio fixed too, only
+four times smaller, so it does not restore convergence in the node count; it cut the drift about tenfold (10 Gyr,
+mobile lid, defaults; measured): the basal layer ends at 1.4795, 1.4823, 1.4828 Gyr (1 M_E, 128-512 nodes),
+2.3352, 2.3374, 2.3386, 2.3404 Gyr (5 M_E, 128-1024), 2.3005, 2.3049, 2.3061 Gyr (10 M_E), 2.6277, 2.6284, 2.6302
+Gyr (15 M_E): 0.03-0.19% per doubling, not yet shrinking. Splitting the lowest 300 km of 5 M_E twofold, fourfold,
+eightfold gives 2.3200, 2.3371, 2.3405 Gyr at 256 nodes (the lowest 100 km fourfold 2.3366), so the limit lies
+near or a little above 2.34 Gyr. The rheological transition (the CMB half cell leaving phi_c) 51.29, 51.36, 51.37
+Myr (1 M_E), 110.3, 112.2, 112.9, 113.1 Myr (5 M_E; before 85, 100, 106), 112.2, 115.6, 116.7 Myr (10 M_E), 176.7,
+180.1, 181.2 Myr (15 M_E). Zones of 3%, 5% and 10% give the 5 M_E end 2.3365, 2.3374, 2.3372 Gyr at 256 nodes and
+2.3391, 2.3386, 2.3398 Gyr at 512, the transition 112.2, 112.2, 112.1 Myr; but the basal layer's largest
+thickness, reached at its separation from the surface melt within the first kyr (a tangency), 2205, 2114, 1903 km
+(2148, 2114, 2124, 2101 km at 128-1024 nodes with 5%), and the 5 M_E surface magma-ocean end, which drifts along
+phi_c for ~10 Myr (see "Grid convergence"), 14.9, 13.9, 7.0 Myr. The levels alone are converged (4, 6, 8 levels at
+256 nodes before the split: 2.257, 2.263, 2.264 Gyr); without levels or split the end was first order in the
+bottom spacing (5 M_E 2.04, 2.16, 2.23 Gyr). The cost: 351 cells at 256 nodes for 5 M_E instead of 294, ~20% more
+CPU time (measured in one process). The bottom cells' step bounds count in full (counted by their mass, as the top
+refinement's, the steps rose). Halving run.max_temperature_step_k moved the 5 M_E end by 0.1% (256 and 512 nodes,
+before the split).
 
 History: regime 0 (magma ocean) while the top of the convecting mantle is above phi_c, else the configured solid
 regime. ``top_melt_fraction`` (the regime's melt fraction) is the melt fraction at the surface of the two-phase
@@ -156,33 +161,38 @@ interpolated in radius between that cell's upper face and the face above
 which no cell is above phi_c.
 
 Grid convergence (measured with ``benchmarks/convergence_mlt.py``, mobile lid; the numbers before the surface
-refinement at 64, 128, 256, 512, 1024 nodes unless said, with it at 256, 512, 1024). The bulk of the magma ocean
-passes the rheological transition within ~1-3 kyr and this converges: the time at which less than 1% of the mantle
-mass is above phi_c, 5 M_E: 1.710, 1.771, 1.798, 1.819, 1.835 kyr (with the refinement 1.806, 1.844, 1.856 kyr).
-The surface magma ocean's end (the regime's isentrope leaving phi_c), 1 M_E: 9.40, 9.00, 5.43, 4.86, 4.80 Myr
-(with the refinement 4.83 and 4.80 Myr at 512 and 1024 nodes, 0.7%). 5 M_E: 8.2, 12.8, 22.3, 17.0, 7.8 Myr before
-the refinement (the conductive lid inside the top half cell, see "Upper boundary layer"); with it 8.18, 7.90, 7.61
-Myr (3.5% and 3.6% per doubling, runs to 25 Myr): still short of 2%, because the regime's melt fraction drifts
-along phi_c (~0.008 per Myr) and the upper mantle's profile still moves by ~0.005 in phi per doubling. 10 M_E is
-not converged with it either (43.0 and 75.3 Myr at 256 and 512 nodes, runs to 200 Myr; not diagnosed). The 1 M_E
-time of less than 1% above phi_c falls on a plateau of ~1-1.4% of the mantle mass (1.35, 2.24, 2.98, 2.38, 1.55
-Myr), and so does the reported ``magma_ocean_end_yr`` (which needs both; with the refinement 2.26 and 1.55 Myr at
-512 and 1024 nodes). The basal layer's edges at fixed times converge (1 M_E, top at 40 kyr to 1 Myr: within 3 km
-from 256 to 1024 nodes, cells of 11 to 3 km; the core's heat flow at 1 Myr 3.3e14, 3.7e14, 3.6e14 W), but its
-separation is a tangency of T - T_sol with zero: 1 M_E 33.9, 33.5, 32.9, 30.0, 31.2 kyr, its largest thickness
-(reached then) 965, 960, 963, 1063, 1006 km; 5 M_E 530 kyr within 0.2% and 438, 439, 423, 427, 425 km (with the
-refinement 534, 534, 536 kyr and 425, 452, 436 km). The last melt (the basal layer's freezing) moved by 4.7% and
-2.4% (1 M_E, 128-512 nodes), 4.0% and 2.8% (5 M_E), 7.6% and 5.9% (10 M_E) in an earlier version without the CMB
-refinement (see "Lower boundary layer" for the current numbers); with the node distances at the outer faces and
-the cell's melt fraction at the CMB 13.9% and 11.3% (5 M_E), 13.6% and 10.7% (10 M_E). The last cell above phi_c
-(``rheological_transition_yr``) is, with the CMB refinement, the CMB half cell: a film of tens of metres that the
-core keeps above phi_c (1 M_E 47.9, 48.9, 49.3 Myr and 5 M_E 85.1, 100.4, 106.2 Myr at 128, 256, 512 nodes);
-without it, one cell on a plateau at phi_c under the surface (1 M_E 8.0, 7.8, 5.7, 22.2, 29.5 Myr; 5 M_E 4.7, 7.4,
-20.2, 15.9, 12.2 Myr; with the surface refinement 5 M_E 13.7, 12.9, 12.2 Myr, 6% per doubling). Halving the step
-tolerance (run.max_temperature_step_k) moved every event by < 1% except the basal layer's largest thickness (1-6%)
-before the refinement. Tried without effect on the top cell's freezing: mixing lengths at the geometric mean of
-the two nodes' distances to the boundary, and the node distance at the faces next to the outer half cells.
-"""
+refinement at 64, 128, 256, 512, 1024 nodes unless said, with it at 256, 512, 1024; all in earlier versions,
+before the split of the lowest cells, unless said: for the current grid see "Lower boundary layer" and the tests).
+The bulk of the magma ocean passes the rheological transition within ~1-3 kyr and this converges: the time at
+which less than 1% of the mantle mass is above phi_c, 5 M_E: 1.710, 1.771, 1.798, 1.819, 1.835 kyr (with the
+refinement 1.806, 1.844, 1.856 kyr); with the split of the lowest cells that 1% falls on a plateau, 4.88, 4.89,
+3.45, 4.07 kyr at 128-1024 nodes: from 2 to 8 kyr the mass above phi_c is the basal layer's (0.7% falling to 0.3%)
+plus a shallow layer's under the surface (0.4-0.7%, in steps as single cells pass phi_c), while 2% converges
+(1.744, 1.778, 1.771, 1.783 kyr). The surface magma ocean's end (the regime's isentrope leaving phi_c), 1 M_E:
+9.40, 9.00, 5.43, 4.86, 4.80 Myr (with the refinement 4.83 and 4.80 Myr at 512 and 1024 nodes, 0.7%). 5 M_E: 8.2,
+12.8, 22.3, 17.0, 7.8 Myr before the refinement (the conductive lid inside the top half cell, see "Upper boundary
+layer"); with it 8.18, 7.90, 7.61 Myr (3.5% and 3.6% per doubling, runs to 25 Myr): still short of 2%, because the
+regime's melt fraction drifts along phi_c (~0.008 per Myr) and the upper mantle's profile still moves by ~0.005 in
+phi per doubling. 10 M_E is not converged with it either (43.0 and 75.3 Myr at 256 and 512 nodes, runs to 200 Myr;
+not diagnosed). The 1 M_E time of less than 1% above phi_c falls on a plateau of ~1-1.4% of the mantle mass (1.35,
+2.24, 2.98, 2.38, 1.55 Myr), and so does the reported ``magma_ocean_end_yr`` (which needs both; with the
+refinement 2.26 and 1.55 Myr at 512 and 1024 nodes). The basal layer's edges at fixed times converge (1 M_E, top
+at 40 kyr to 1 Myr: within 3 km from 256 to 1024 nodes, cells of 11 to 3 km; the core's heat flow at 1 Myr 3.3e14,
+3.7e14, 3.6e14 W), but its separation is a tangency of T - T_sol with zero: 1 M_E 33.9, 33.5, 32.9, 30.0, 31.2
+kyr, its largest thickness (reached then) 965, 960, 963, 1063, 1006 km; 5 M_E 530 kyr within 0.2% and 438, 439,
+423, 427, 425 km (with the refinement 534, 534, 536 kyr and 425, 452, 436 km). The last melt (the basal layer's
+freezing) moved by 4.7% and 2.4% (1 M_E, 128-512 nodes), 4.0% and 2.8% (5 M_E), 7.6% and 5.9% (10 M_E) in an
+earlier version without the CMB refinement (see "Lower boundary layer" for the current numbers); with the node
+distances at the outer faces and the cell's melt fraction at the CMB 13.9% and 11.3% (5 M_E), 13.6% and 10.7% (10
+M_E). The last cell above phi_c (``rheological_transition_yr``) is, with the CMB refinement, the CMB half cell: a
+film of metres to tens of metres that the core keeps above phi_c (1 M_E 47.9, 48.9, 49.3 Myr and 5 M_E 85.1,
+100.4, 106.2 Myr at 128, 256, 512 nodes; with the split 51.29, 51.36, 51.37 and 110.3, 112.2, 112.9 Myr, tied to
+the core's cooling, not to the film's size); without it, one cell on a plateau at phi_c under the surface (1 M_E
+8.0, 7.8, 5.7, 22.2, 29.5 Myr; 5 M_E 4.7, 7.4, 20.2, 15.9, 12.2 Myr; with the surface refinement 5 M_E 13.7, 12.9,
+12.2 Myr, 6% per doubling). Halving the step tolerance (run.max_temperature_step_k) moved every event by < 1%
+except the basal layer's largest thickness (1-6%) before the refinement. Tried without effect on the top cell's
+freezing: mixing lengths at the geometric mean of the two nodes' distances to the boundary, and the node distance
+at the faces next to the outer half cells. """
 
 from __future__ import annotations
 
@@ -269,15 +279,15 @@ def refined_interior(interior, levels=TOP_LEVELS, bottom=BOTTOM_LEVELS, split=LO
     phase = interior.phase
     out["phase"] = np.concatenate([phase[:c + 1], np.repeat(phase[c], bottom), phase[c + 1:-1],
                                    np.repeat(phase[-1], levels), phase[-1:]])
-    rm = out["r"][c:]
+    rm = out["r"][c:]  # the mantle's nodes (the CMB radius is also the core's last node, c - 1: left alone)
     low = np.flatnonzero(rm[1:] - rm[0] <= zone * (rm[-1] - rm[0])) if split > 1 else np.zeros(0, dtype=int)
     if low.size:
         added = (rm[low, None] + np.diff(rm)[low, None] * np.arange(1, split) / split).ravel()
-        radii = np.sort(np.concatenate([out["r"], added]))
-        r = out["r"]
-        out["phase"] = out["phase"][np.searchsorted(r, radii, side="right") - 1]
+        radii = np.sort(np.concatenate([rm, added]))
+        below = np.searchsorted(rm, radii, "right") - 1
+        out["phase"] = np.concatenate([out["phase"][:c], out["phase"][c:][below]])
         for name in names:
-            out[name] = np.interp(radii, r, out[name])
+            out[name] = np.concatenate([out[name][:c], np.interp(radii, rm, out[name][c:])])
     return dataclasses.replace(interior, **out)
 
 
